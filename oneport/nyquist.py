@@ -1,0 +1,334 @@
+"""The Nyquist test on sampled loop gains: count, closure, crossings, bands and margins.
+
+Pure computation on numpy arrays with frequency on the last axis, so a sweep adds leading axes
+and every vectorised function here works on one variant or a million alike. Nothing here reads
+files, prints, plots or decides a verdict: see ``check.py`` for that.
+
+Conventions (METHODS §1–2): L = Γd·ΓL, F = 1 − L. The count N_cw of clockwise encirclements of
++1 by L over the whole frequency axis equals the number of right-half-plane natural frequencies
+when F has no right-half-plane poles (the device stable in its measurement impedance). Real
+networks have F(−jω) = conj F(jω), so N_cw = −Δarg F / π over 0 ≤ ω < ∞; F(0) and F(∞) are real
+and the sampled band is closed to them by the assumption that L does not cross the positive real
+axis beyond +1 outside the sweep. Where that assumption is not founded the count is not given.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+#: Largest phase step of F between neighbouring samples that unwrapping is trusted with (rad).
+#: Steps near π make the unwrapped phase, and so the count, ambiguous.
+UNSAFE_PHASE_STEP_RAD = np.deg2rad(120.0)
+#: Above this step (rad) unwrapping still works but the grid is coarse: a warning.
+COARSE_PHASE_STEP_RAD = np.deg2rad(45.0)
+#: The edge closure is founded by settling when L's extrapolated motion to the limit, and its
+#: distance from the real axis, stay below this fraction of |F| at the edge.
+SETTLED_FRACTION = 0.5
+
+
+@dataclass(frozen=True)
+class EdgeClosure:
+    """How the sampled band is closed towards DC (``side="low"``) or infinity (``"high"``).
+
+    ``basis`` is ``"dc-sample"`` (the data include 0 Hz), ``"loop-gain-below-unity"``
+    (|L| < 1 at the edge), ``"settled"`` (L has stopped moving, far from +1) or
+    ``"not-founded"``. ``sign_at_limit`` is the sign of the real F(0) or F(∞) the closure implies
+    (0 when not founded). ``motion`` is the extrapolated movement of L beyond the edge.
+    """
+
+    side: str
+    basis: str
+    sign_at_limit: int
+    loop_gain_at_edge: complex
+    motion: float
+    extend_to_hz: float | None
+
+    @property
+    def founded(self) -> bool:
+        """True when the closing assumption has a basis in the data at this edge."""
+        return self.basis != "not-founded"
+
+
+@dataclass(frozen=True)
+class Crossing:
+    """L crossing the positive real axis beyond +1 (F crossing its negative real axis)."""
+
+    frequency_hz: float
+    direction: str  # "clockwise" or "counterclockwise" around +1
+    loop_gain: complex
+    within_noise: bool
+
+    @property
+    def contribution(self) -> int:
+        """What this crossing adds to N_cw over the whole axis (its mirror image included)."""
+        return 2 if self.direction == "clockwise" else -2
+
+
+@dataclass(frozen=True)
+class Band:
+    """A stretch of the sweep where |L| ≥ 1."""
+
+    start_hz: float
+    stop_hz: float
+    peak_loop_gain: float
+    peak_frequency_hz: float
+    starts_at_sweep_edge: bool
+    stops_at_sweep_edge: bool
+
+
+@dataclass(frozen=True)
+class Margins:
+    """Distances from the critical point; each frequency is None where the margin has none."""
+
+    gain_margin_db: float | None
+    gain_margin_frequency_hz: float | None
+    phase_margin_deg: float | None
+    phase_margin_frequency_hz: float | None
+    modulus_margin: float
+    modulus_margin_frequency_hz: float
+
+
+def characteristic(loop_gain: np.ndarray) -> np.ndarray:
+    """F = 1 − L, elementwise."""
+    return 1.0 - np.asarray(loop_gain, dtype=complex)
+
+
+def unwrapped_phase(loop_gain: np.ndarray) -> np.ndarray:
+    """Continuous phase of F = 1 − L along the last axis, rad."""
+    return np.unwrap(np.angle(characteristic(loop_gain)), axis=-1)
+
+
+def largest_phase_step(loop_gain: np.ndarray) -> np.ndarray:
+    """Largest |Δ arg F| between neighbouring samples along the last axis, rad."""
+    return np.max(np.abs(np.diff(unwrapped_phase(loop_gain), axis=-1)), axis=-1)
+
+
+def count_encirclements(
+    loop_gain: np.ndarray, sign_low: np.ndarray, sign_high: np.ndarray
+) -> np.ndarray:
+    """N_cw over the whole frequency axis, given the signs of F(0) and F(∞).
+
+    Parameters
+    ----------
+    loop_gain : ndarray of complex, shape (..., n)
+        L on the sampled band.
+    sign_low, sign_high : ndarray of int, shape (...)
+        +1 or −1: the sign of the real F(0) and F(∞) the closure implies.
+
+    Returns
+    -------
+    ndarray of int, shape (...)
+        Clockwise encirclements of +1 by L.
+
+    Examples
+    --------
+    A loop that never reaches +1 does not encircle it:
+
+    >>> L = 0.5 * np.exp(-1j * np.linspace(0, 3, 50))
+    >>> int(count_encirclements(L, np.array(1), np.array(1)))
+    0
+    """
+    f = characteristic(loop_gain)
+    phase = np.unwrap(np.angle(f), axis=-1)
+    in_band = phase[..., -1] - phase[..., 0]
+    low = np.angle(f[..., 0]) - _reference_angle(sign_low, f[..., 0].imag)
+    high = _reference_angle(sign_high, f[..., -1].imag) - np.angle(f[..., -1])
+    return np.rint(-(in_band + low + high) / np.pi).astype(int)
+
+
+def _reference_angle(sign: np.ndarray, imaginary: np.ndarray) -> np.ndarray:
+    """Angle of the real F at a limit, on the branch the edge sample leaves it by (0 or ±π)."""
+    side = np.where(imaginary < 0, -1.0, 1.0)
+    return np.where(np.asarray(sign) < 0, side * np.pi, 0.0)
+
+
+def close_edge(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> EdgeClosure:
+    """Decide whether the band can be closed towards DC (``"low"``) or infinity (``"high"``).
+
+    L's motion beyond the edge is extrapolated from a least-squares line through the outermost
+    twentieth of the sweep (at least four points, so measurement noise averages out): to DC for
+    the low edge, over one more octave for the high edge.
+    """
+    n = frequency_hz.size
+    count = min(n, max(4, n // 20))
+    outer = slice(0, count) if side == "low" else slice(n - count, n)
+    f, values = frequency_hz[outer], loop_gain[outer]
+    edge_frequency = frequency_hz[0] if side == "low" else frequency_hz[-1]
+    slope, fitted_edge = _line_fit(f, values, edge_frequency)
+    edge_value = complex(loop_gain[0] if side == "low" else loop_gain[-1])
+    motion = float(abs(slope) * edge_frequency) if edge_frequency > 0 else 0.0
+    f_edge = 1.0 - fitted_edge
+
+    if side == "low" and frequency_hz[0] == 0.0:
+        sign = 1 if (1.0 - edge_value).real > 0 else -1
+        return EdgeClosure(side, "dc-sample", sign, edge_value, 0.0, None)
+    if abs(fitted_edge) < 1.0 and abs(edge_value) < 1.0:
+        return EdgeClosure(side, "loop-gain-below-unity", 1, edge_value, motion, None)
+    spread = max(motion, abs(f_edge.imag))
+    if spread < SETTLED_FRACTION * abs(f_edge):
+        sign = 1 if f_edge.real > 0 else -1
+        return EdgeClosure(side, "settled", sign, edge_value, motion, None)
+    return EdgeClosure(
+        side, "not-founded", 0, edge_value, motion, _extend_to(f, values, edge_frequency, side)
+    )
+
+
+def _line_fit(f: np.ndarray, values: np.ndarray, at: float) -> tuple[complex, complex]:
+    """Slope (per Hz) and value at ``at`` of the least-squares line through complex samples."""
+    centre = f.mean()
+    spread = np.sum((f - centre) ** 2)
+    mean = values.mean()
+    slope = complex(np.sum((f - centre) * (values - mean)) / spread) if spread > 0 else 0j
+    return slope, complex(mean + slope * (at - centre))
+
+
+def _extend_to(f: np.ndarray, values: np.ndarray, edge_frequency: float, side: str) -> float:
+    """Where to extend the sweep so the edge would likely close: a decade, or where |L| < 1."""
+    if side == "low":
+        return edge_frequency / 10.0
+    decibels = 20.0 * np.log10(np.maximum(np.abs(values), 1e-300))
+    octaves = np.log2(f)
+    slope_per_octave = np.polyfit(octaves, decibels, 1)[0] if np.ptp(octaves) > 0 else 0.0
+    if slope_per_octave < -1e-3:
+        needed_octaves = (decibels[-1] + 3.0) / -slope_per_octave
+        return float(edge_frequency * 2.0 ** min(max(needed_octaves, 0.5), 6.6))
+    return edge_frequency * 10.0
+
+
+def find_crossings(
+    frequency_hz: np.ndarray, loop_gain: np.ndarray, noise: float = 0.0
+) -> list[Crossing]:
+    """Every crossing of the positive real axis beyond +1 by L, by linear interpolation.
+
+    ``noise`` is the estimated standard deviation of L; a crossing whose distance from +1 is
+    within three of it is marked ``within_noise``.
+    """
+    imaginary = loop_gain.imag
+    upward = (imaginary[:-1] < 0) & (imaginary[1:] >= 0)
+    downward = (imaginary[:-1] >= 0) & (imaginary[1:] < 0)
+    crossings = []
+    for index in np.flatnonzero(upward | downward):
+        a, b = imaginary[index], imaginary[index + 1]
+        t = a / (a - b)
+        value = complex(loop_gain[index] + t * (loop_gain[index + 1] - loop_gain[index]))
+        if value.real <= 1.0:
+            continue
+        frequency = float(frequency_hz[index] + t * (frequency_hz[index + 1] - frequency_hz[index]))
+        crossings.append(
+            Crossing(
+                frequency_hz=frequency,
+                direction="counterclockwise" if upward[index] else "clockwise",
+                loop_gain=value,
+                within_noise=abs(value - 1.0) < 3.0 * noise,
+            )
+        )
+    return crossings
+
+
+def net_crossings(crossings: list[Crossing]) -> list[Crossing]:
+    """The crossings that carry the net count once neighbouring opposite ones cancel."""
+    stack: list[Crossing] = []
+    for crossing in crossings:
+        if stack and stack[-1].direction != crossing.direction:
+            stack.pop()
+        else:
+            stack.append(crossing)
+    return stack
+
+
+def find_bands(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> list[Band]:
+    """Contiguous stretches where |L| ≥ 1, edges interpolated where |L| passes 1 (in dB)."""
+    magnitude = np.abs(loop_gain)
+    above = magnitude >= 1.0
+    edges = np.diff(above.astype(int))
+    starts = list(np.flatnonzero(edges == 1) + 1)
+    stops = list(np.flatnonzero(edges == -1))
+    if above[0]:
+        starts.insert(0, 0)
+    if above[-1]:
+        stops.append(above.size - 1)
+    bands = []
+    for start, stop in zip(starts, stops, strict=True):
+        peak = start + int(np.argmax(magnitude[start : stop + 1]))
+        bands.append(
+            Band(
+                start_hz=_unity_crossing(frequency_hz, magnitude, start - 1)
+                if start > 0
+                else float(frequency_hz[0]),
+                stop_hz=_unity_crossing(frequency_hz, magnitude, stop)
+                if stop < above.size - 1
+                else float(frequency_hz[-1]),
+                peak_loop_gain=float(magnitude[peak]),
+                peak_frequency_hz=float(frequency_hz[peak]),
+                starts_at_sweep_edge=start == 0,
+                stops_at_sweep_edge=stop == above.size - 1,
+            )
+        )
+    return bands
+
+
+def _unity_crossing(frequency_hz: np.ndarray, magnitude: np.ndarray, index: int) -> float:
+    """Frequency where |L| passes 1 between samples ``index`` and ``index + 1`` (dB-linear)."""
+    a, b = np.log10(magnitude[index]), np.log10(magnitude[index + 1])
+    t = a / (a - b) if a != b else 0.5
+    return float(frequency_hz[index] + t * (frequency_hz[index + 1] - frequency_hz[index]))
+
+
+def find_margins(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> Margins:
+    """Gain, phase and modulus margins of L against the critical point +1."""
+    f = characteristic(loop_gain)
+    modulus = np.abs(f)
+    closest = int(np.argmin(modulus))
+
+    imaginary = loop_gain.imag
+    gain_margin = gain_frequency = None
+    for index in np.flatnonzero(np.sign(imaginary[:-1]) * np.sign(imaginary[1:]) < 0):
+        a, b = imaginary[index], imaginary[index + 1]
+        t = a / (a - b)
+        real = float((loop_gain[index] + t * (loop_gain[index + 1] - loop_gain[index])).real)
+        if 0.0 < real < 1.0:
+            margin = -20.0 * np.log10(real)
+            if gain_margin is None or margin < gain_margin:
+                gain_margin = float(margin)
+                gain_frequency = float(
+                    frequency_hz[index] + t * (frequency_hz[index + 1] - frequency_hz[index])
+                )
+
+    phase_margin = phase_frequency = None
+    magnitude = np.abs(loop_gain)
+    for index in np.flatnonzero((magnitude[:-1] >= 1.0) != (magnitude[1:] >= 1.0)):
+        a, b = np.log10(magnitude[index]), np.log10(magnitude[index + 1])
+        t = a / (a - b)
+        value = loop_gain[index] + t * (loop_gain[index + 1] - loop_gain[index])
+        margin = float(np.degrees(abs(np.angle(value))))
+        if phase_margin is None or margin < phase_margin:
+            phase_margin = margin
+            phase_frequency = float(
+                frequency_hz[index] + t * (frequency_hz[index + 1] - frequency_hz[index])
+            )
+
+    return Margins(
+        gain_margin_db=gain_margin,
+        gain_margin_frequency_hz=gain_frequency,
+        phase_margin_deg=phase_margin,
+        phase_margin_frequency_hz=phase_frequency,
+        modulus_margin=float(modulus[closest]),
+        modulus_margin_frequency_hz=float(frequency_hz[closest]),
+    )
+
+
+def estimate_noise(loop_gain: np.ndarray) -> float:
+    """Standard deviation of the point-to-point scatter of L (robust, from second differences).
+
+    For white noise of σ on each sample, the second difference has σ·√6; the median absolute
+    value keeps real curvature (a resonance) from inflating the estimate.
+    """
+    if loop_gain.size < 3:
+        return 0.0
+    second = np.diff(loop_gain, n=2)
+    # For complex Gaussian noise |second| is Rayleigh; its median is σ_c·sqrt(ln 4) where σ_c is
+    # the per-component deviation times sqrt(6). Report the complex (total) deviation of L.
+    per_component = np.median(np.abs(second)) / np.sqrt(np.log(4.0)) / np.sqrt(6.0)
+    return float(per_component * np.sqrt(2.0))

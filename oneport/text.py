@@ -1,0 +1,152 @@
+"""Plain-text report of a check, for a bench engineer reading at a glance.
+
+Rendering only: it formats what the result holds (verdict first, cautions last) and computes
+nothing. Units for reading (GHz, dB, degrees) appear here and nowhere inside.
+"""
+
+from __future__ import annotations
+
+import math
+import textwrap
+
+from .result import CheckResult
+from .units import format_frequency, to_decibels
+
+_HEADLINE = {
+    "stable": "STABLE (small-signal)",
+    "unstable": "UNSTABLE",
+    "inconclusive": "INCONCLUSIVE: the data cannot decide",
+}
+_WIDTH = 92
+
+
+def verdict_line(result: CheckResult) -> str:
+    """One line: the verdict, the count and the analysed band."""
+    low, high = result.frequency_range_hz
+    band = f"{format_frequency(low)}-{format_frequency(high)}"
+    count = "N = ?" if result.encirclements is None else f"N = {result.encirclements}"
+    extra = ""
+    if result.latch_up:
+        extra += ", latch-up (real root)"
+    if result.oscillation_frequencies_hz:
+        listed = ", ".join(format_frequency(f) for f in result.oscillation_frequencies_hz)
+        extra += f", oscillation near {listed}"
+    return f"{_HEADLINE[result.verdict]}: {count}{extra}; {band}, Z0 = {_ohm(result)}"
+
+
+def render(result: CheckResult) -> str:
+    """The full text report."""
+    parts = [verdict_line(result), ""]
+    parts += [_wrap(reason, "  ") for reason in result.reasons]
+    parts += ["", "Inputs"]
+    for record in result.inputs:
+        low, high = record.frequency_range_hz
+        renormalised = (
+            f", renormalised {record.file_reference_impedance_ohm:g} -> "
+            f"{record.analysed_reference_impedance_ohm:g} ohm"
+            if record.file_reference_impedance_ohm != record.analysed_reference_impedance_ohm
+            else ""
+        )
+        parts.append(
+            f"  {record.role:<7}{record.source}  ({record.parameter} {record.number_format},"
+            f" Touchstone {record.version}, {record.points} points,"
+            f" {format_frequency(low)}-{format_frequency(high)},"
+            f" R = {record.file_reference_impedance_ohm:g} ohm{renormalised})"
+        )
+    low, high = result.frequency_range_hz
+    parts.append(
+        f"  analysed {format_frequency(low)}-{format_frequency(high)},"
+        f" {result.frequency_hz.size} points, in Z0 = {_ohm(result)} (device measurement"
+        " impedance)"
+    )
+    parts += ["", *_bands(result), "", *_crossings(result), "", *_margins(result), ""]
+    parts += _closure(result)
+    if result.warnings:
+        parts += ["", "Warnings"]
+        parts += [_wrap(f"[{w.code}] {w.message}", "  ") for w in result.warnings]
+    if result.next_steps:
+        parts += ["", "What to do next"]
+        parts += [_wrap(step, "  - ") for step in result.next_steps]
+    parts += ["", "Premise", _wrap(result.premise, "  ")]
+    parts += ["", "Cautions"]
+    parts += [_wrap(caution, "  ! ") for caution in result.cautions]
+    return "\n".join(parts) + "\n"
+
+
+def _bands(result: CheckResult) -> list[str]:
+    title = f"Bands where |L| >= 1 (Z0 = {_ohm(result)})"
+    if not result.bands:
+        return [title, "  none: |L| < 1 across the analysed band"]
+    rows = [title, f"  {'from':>12}  {'to':>12}  {'peak':>9}  {'at':>12}"]
+    for band in result.bands:
+        rows.append(
+            f"  {format_frequency(band.start_hz):>12}  {format_frequency(band.stop_hz):>12}"
+            f"  {to_decibels(band.peak_loop_gain):>6.2f} dB  {format_frequency(band.peak_frequency_hz):>12}"
+            + ("  (runs to the sweep edge)" if band.starts_at_sweep_edge or band.stops_at_sweep_edge else "")
+        )
+    return rows
+
+
+def _crossings(result: CheckResult) -> list[str]:
+    title = f"Crossings of the real axis beyond +1 (Z0 = {_ohm(result)})"
+    if not result.crossings:
+        return [title, "  none"]
+    rows = [title, f"  {'at':>12}  {'|L|':>9}  direction"]
+    for crossing in result.crossings:
+        note = "  (within noise)" if crossing.within_noise else ""
+        rows.append(
+            f"  {format_frequency(crossing.frequency_hz):>12}"
+            f"  {to_decibels(abs(crossing.loop_gain)):>6.2f} dB  {crossing.direction}{note}"
+        )
+    return rows
+
+
+def _margins(result: CheckResult) -> list[str]:
+    margins = result.margins
+    rows = [f"Margins (Z0 = {_ohm(result)})"]
+    rows.append(
+        f"  closest approach to +1   |1 - L| = {margins.modulus_margin:.3g}"
+        f" at {format_frequency(margins.modulus_margin_frequency_hz)}"
+    )
+    if margins.gain_margin_db is not None and margins.gain_margin_frequency_hz is not None:
+        rows.append(
+            f"  gain margin              {margins.gain_margin_db:.2f} dB"
+            f" at {format_frequency(margins.gain_margin_frequency_hz)}"
+        )
+    else:
+        rows.append("  gain margin              none (L does not cross (0, 1) on the real axis)")
+    if margins.phase_margin_deg is not None and margins.phase_margin_frequency_hz is not None:
+        rows.append(
+            f"  phase margin             {margins.phase_margin_deg:.1f} deg"
+            f" at {format_frequency(margins.phase_margin_frequency_hz)}"
+        )
+    else:
+        rows.append("  phase margin             none (|L| does not pass 1)")
+    return rows
+
+
+def _closure(result: CheckResult) -> list[str]:
+    words = {
+        "dc-sample": "the data include 0 Hz",
+        "loop-gain-below-unity": "|L| < 1 at the edge",
+        "settled": "L has settled, far from +1",
+        "not-founded": "NOT FOUNDED",
+    }
+    rows = ["Closing the contour outside the sweep"]
+    for closure in result.closures:
+        limit = "towards DC      " if closure.side == "low" else "towards infinity"
+        sign = {1: ", F > 0 there", -1: ", F < 0 there"}.get(closure.sign_at_limit, "")
+        rows.append(f"  {limit}  {words[closure.basis]}{sign}")
+    step = math.degrees(result.largest_phase_step_rad)
+    rows.append(f"  largest phase step of 1 - L between samples: {step:.1f} deg")
+    return rows
+
+
+def _ohm(result: CheckResult) -> str:
+    return f"{result.reference_impedance_ohm:g} ohm"
+
+
+def _wrap(text: str, indent: str) -> str:
+    return textwrap.fill(
+        text, width=_WIDTH, initial_indent=indent, subsequent_indent=" " * len(indent)
+    )

@@ -1,0 +1,411 @@
+"""Safe, strict reading of one-port Touchstone files (versions 1.x, 2.0 and 2.1).
+
+This room is the edge where user files enter. It never unpickles: ``skrf.Network(path)`` tries
+``pickle`` first and so could run code from a hostile file, so the text is first checked here,
+line by line, and only then handed to scikit-rf's text reader
+(:class:`skrf.io.touchstone.Touchstone`), which converts Z, Y and every number format to S.
+scikit-rf objects stop here: the rest of the package sees :class:`OnePort`, plain numpy arrays.
+
+Accepted: S, Z or Y parameters; RI, MA or DB; Hz, kHz, MHz or GHz; any positive real ``R`` or
+``[Reference]``. Refused, each with one line naming file, line, value and what is accepted:
+binary or empty files, no data, wrong column counts, frequencies that are negative, repeated or
+not increasing, NaN or infinite values, and files with more than one port.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import io
+import math
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from .errors import FileFormatError
+
+_FREQUENCY_UNITS = {"hz": 1.0, "khz": 1e3, "mhz": 1e6, "ghz": 1e9}
+_PARAMETERS = ("s", "y", "z")
+_FORMATS = ("ri", "ma", "db")
+_PORTS_FROM_SUFFIX = re.compile(r"^\.s(\d+)p$", re.IGNORECASE)
+
+
+@dataclass(frozen=True)
+class OnePort:
+    """A one-port's reflection coefficient on its own frequency grid.
+
+    Attributes
+    ----------
+    frequency_hz : ndarray of float, shape (n,)
+        Strictly increasing, non-negative, Hz.
+    gamma : ndarray of complex, shape (n,)
+        Reflection coefficient referred to ``reference_impedance_ohm``.
+    reference_impedance_ohm : float
+        The real, positive reference impedance of ``gamma`` (the file's ``R`` or ``[Reference]``).
+    source : str
+        The file path, or a description for data given as objects.
+    sha256 : str or None
+        SHA-256 of the file's bytes; None for data not read from a file.
+    parameter, number_format, version : str
+        What the file said (``"S"``, ``"RI"``, ``"1.x"``…), for the record.
+    """
+
+    frequency_hz: np.ndarray
+    gamma: np.ndarray
+    reference_impedance_ohm: float
+    source: str
+    sha256: str | None = None
+    parameter: str = "S"
+    number_format: str = "RI"
+    version: str = "1.x"
+    comments: tuple[str, ...] = field(default=())
+
+    @property
+    def points(self) -> int:
+        """Number of frequency points."""
+        return int(self.frequency_hz.size)
+
+
+@dataclass
+class _Header:
+    version: str = "1.x"
+    ports: int | None = None
+    unit: str = "ghz"
+    parameter: str = "s"
+    number_format: str = "ma"
+    reference: float = 50.0
+    declared_frequencies: int | None = None
+    option_line: int | None = None
+
+
+def read_one_port(path: str | Path) -> OnePort:
+    """Read a one-port Touchstone file safely and strictly.
+
+    Parameters
+    ----------
+    path : str or Path
+        A Touchstone 1.x file (``.s1p``) or a 2.x file (``.ts`` or ``.s1p`` with ``[Version]``).
+
+    Returns
+    -------
+    OnePort
+        Reflection coefficient in the file's own reference impedance.
+
+    Raises
+    ------
+    FileFormatError
+        One line naming the file, the line where possible, the problem and what is accepted.
+    """
+    name = str(path)
+    try:
+        raw = Path(path).read_bytes()
+    except FileNotFoundError:
+        raise FileFormatError(name, "no such file") from None
+    except IsADirectoryError:
+        raise FileFormatError(name, "is a folder, not a Touchstone file") from None
+    except OSError as error:
+        raise FileFormatError(name, f"cannot be read ({error.strerror})") from None
+    text = _decode(name, raw)
+    header, frequency_hz = _validate(name, text)
+    gamma = _convert_with_scikit_rf(name, text, header, frequency_hz)
+    comments = tuple(
+        line.split("!", 1)[1].strip() for line in text.splitlines() if "!" in line
+    )
+    return OnePort(
+        frequency_hz=frequency_hz,
+        gamma=gamma,
+        reference_impedance_ohm=header.reference,
+        source=name,
+        sha256=hashlib.sha256(raw).hexdigest(),
+        parameter=header.parameter.upper(),
+        number_format=header.number_format.upper(),
+        version=header.version,
+        comments=comments,
+    )
+
+
+def one_port_from_network(network: Any, description: str = "network") -> OnePort:
+    """Take a one-port from a scikit-rf ``Network`` already in memory (API use).
+
+    The network must have one port and a real, positive reference impedance that does not change
+    with frequency.
+    """
+    s = np.asarray(network.s)
+    if s.ndim != 3 or s.shape[1:] != (1, 1):
+        ports = s.shape[1] if s.ndim == 3 else "?"
+        raise FileFormatError(description, f"has {ports} ports; a one-port network is needed")
+    z0 = np.asarray(network.z0)[:, 0]
+    reference = _constant_real_reference(description, z0)
+    frequency_hz = np.asarray(network.f, dtype=float)
+    gamma = s[:, 0, 0].astype(complex)
+    _check_arrays(description, frequency_hz, gamma)
+    return OnePort(
+        frequency_hz=frequency_hz,
+        gamma=gamma,
+        reference_impedance_ohm=reference,
+        source=str(getattr(network, "name", None) or description),
+    )
+
+
+def _decode(name: str, raw: bytes) -> str:
+    if not raw.strip():
+        raise FileFormatError(name, "is empty; a Touchstone file holds an option line and data")
+    if raw[:1] == b"\x80" or b"\x00" in raw:
+        raise FileFormatError(
+            name,
+            "has binary content (a pickle or other binary file); only Touchstone text is read,"
+            " and binary files are never opened as objects",
+        )
+    try:
+        return raw.decode("utf-8")
+    except UnicodeDecodeError as error:
+        line = raw[: error.start].count(b"\n") + 1
+        raise FileFormatError(
+            name, "is not text (invalid UTF-8); Touchstone files are ASCII text", line
+        ) from None
+
+
+def _validate(name: str, text: str) -> tuple[_Header, np.ndarray]:
+    """Check the whole file and return its header and frequencies in Hz."""
+    header = _Header()
+    suffix_ports = _ports_from_suffix(name)
+    rows: list[tuple[int, list[float]]] = []
+    in_information = False
+    awaiting_reference = False
+    first_content = True
+    for number, line in enumerate(text.splitlines(), start=1):
+        content = line.split("!", 1)[0].strip()
+        if not content:
+            continue
+        lowered = content.lower()
+        if in_information:
+            in_information = not lowered.startswith("[end information]")
+            continue
+        if content.startswith("["):
+            keyword, _, rest = content.partition("]")
+            keyword = keyword[1:].strip().lower()
+            rest = rest.strip()
+            if first_content and keyword != "version":
+                raise FileFormatError(
+                    name, f"[{keyword}] before [Version]; a 2.x file starts with [Version]", number
+                )
+            awaiting_reference = _keyword(name, number, keyword, rest, header)
+            in_information = keyword == "begin information"
+            first_content = False
+            continue
+        first_content = False
+        if content.startswith("#"):
+            if header.option_line is None:
+                _option_line(name, number, content, header)
+            continue
+        values = _numbers(name, number, content)
+        if awaiting_reference:
+            header.reference = _positive_reference(name, number, values[0])
+            awaiting_reference = False
+            continue
+        rows.append((number, values))
+
+    ports = header.ports if header.version != "1.x" else suffix_ports
+    if ports is None:
+        raise FileFormatError(
+            name,
+            "cannot tell how many ports it has: a Touchstone 1.x file needs the extension .s1p,"
+            " a 2.x file needs [Version] and [Number of Ports]",
+        )
+    if ports != 1:
+        raise FileFormatError(
+            name,
+            f"is a {ports}-port file; a one-port is needed: save the reflection S11 alone as a"
+            " .s1p, or terminate the other port(s) in their real load and measure again",
+        )
+    if header.parameter not in _PARAMETERS:
+        raise FileFormatError(
+            name,
+            f"holds {header.parameter.upper()} parameters; a one-port file holds S, Z or Y",
+            header.option_line,
+        )
+    if not rows:
+        raise FileFormatError(name, "has no data lines; expected lines of: frequency, two values")
+    for number, values in rows:
+        if len(values) != 3:
+            raise FileFormatError(
+                name,
+                f"a one-port data line holds 3 values (frequency and two parts of the parameter),"
+                f" this one has {len(values)}",
+                number,
+            )
+    frequency_hz = np.array([values[0] for _, values in rows]) * _FREQUENCY_UNITS[header.unit]
+    _check_frequencies(name, rows, frequency_hz)
+    if header.declared_frequencies is not None and header.declared_frequencies != len(rows):
+        raise FileFormatError(
+            name,
+            f"[Number of Frequencies] says {header.declared_frequencies} but the file holds"
+            f" {len(rows)} data lines",
+        )
+    return header, frequency_hz
+
+
+def _keyword(name: str, number: int, keyword: str, rest: str, header: _Header) -> bool:
+    """Apply a 2.x keyword; return True when its value is still to come on a later line."""
+    if keyword == "version":
+        if rest not in ("2.0", "2.1"):
+            raise FileFormatError(
+                name, f"[Version] {rest!r} is not supported; accepted: 2.0, 2.1", number
+            )
+        header.version = rest
+    elif keyword == "number of ports":
+        header.ports = _whole_number(name, number, keyword, rest)
+    elif keyword == "number of frequencies":
+        header.declared_frequencies = _whole_number(name, number, keyword, rest)
+    elif keyword == "reference":
+        if not rest:
+            return True
+        values = _numbers(name, number, rest)
+        header.reference = _positive_reference(name, number, values[0])
+    return False
+
+
+def _option_line(name: str, number: int, content: str, header: _Header) -> None:
+    header.option_line = number
+    tokens = content[1:].split()
+    index = 0
+    while index < len(tokens):
+        token = tokens[index].lower()
+        if token in _FREQUENCY_UNITS:
+            header.unit = token
+        elif token in ("s", "y", "z", "g", "h"):
+            header.parameter = token
+        elif token in _FORMATS:
+            header.number_format = token
+        elif token == "r":
+            if index + 1 >= len(tokens):
+                raise FileFormatError(name, "option line has R without a value", number)
+            index += 1
+            try:
+                value = float(tokens[index])
+            except ValueError:
+                raise FileFormatError(
+                    name, f"option line R {tokens[index]!r} is not a number", number
+                ) from None
+            header.reference = _positive_reference(name, number, value)
+        else:
+            raise FileFormatError(
+                name,
+                f"option line token {tokens[index]!r} is not understood; accepted: a frequency"
+                " unit (Hz kHz MHz GHz), a parameter (S Z Y), a format (RI MA DB), R <ohms>",
+                number,
+            )
+        index += 1
+
+
+def _numbers(name: str, number: int, content: str) -> list[float]:
+    values = []
+    for token in content.split():
+        try:
+            value = float(token)
+        except ValueError:
+            raise FileFormatError(
+                name, f"{token!r} is not a number; data lines hold numbers only", number
+            ) from None
+        if not math.isfinite(value):
+            raise FileFormatError(
+                name, f"value {token!r} is not finite; NaN and infinity are not accepted", number
+            )
+        values.append(value)
+    return values
+
+
+def _whole_number(name: str, number: int, keyword: str, rest: str) -> int:
+    try:
+        value = int(rest)
+    except ValueError:
+        value = -1
+    if value < 1:
+        raise FileFormatError(
+            name, f"[{keyword.title()}] {rest!r} is not a positive whole number", number
+        )
+    return value
+
+
+def _positive_reference(name: str, number: int, value: float) -> float:
+    if not (math.isfinite(value) and value > 0):
+        raise FileFormatError(
+            name, f"reference impedance {value!r} ohm; a positive number of ohms is needed", number
+        )
+    return value
+
+
+def _ports_from_suffix(name: str) -> int | None:
+    match = _PORTS_FROM_SUFFIX.match(Path(name).suffix)
+    return int(match.group(1)) if match else None
+
+
+def _check_frequencies(
+    name: str, rows: list[tuple[int, list[float]]], frequency_hz: np.ndarray
+) -> None:
+    if frequency_hz[0] < 0:
+        raise FileFormatError(
+            name, f"frequency {rows[0][1][0]!r} is negative; frequencies are >= 0", rows[0][0]
+        )
+    steps = np.diff(frequency_hz)
+    bad = np.flatnonzero(steps <= 0)
+    if bad.size:
+        index = int(bad[0]) + 1
+        word = "repeats" if steps[bad[0]] == 0 else "is below"
+        raise FileFormatError(
+            name,
+            f"frequency {rows[index][1][0]!r} {word} the one before (line {rows[index - 1][0]});"
+            " frequencies must increase strictly",
+            rows[index][0],
+        )
+
+
+def _convert_with_scikit_rf(
+    name: str, text: str, header: _Header, frequency_hz: np.ndarray
+) -> np.ndarray:
+    """Convert the checked text to S11 with scikit-rf's text reader (never its pickle path)."""
+    from skrf.io.touchstone import Touchstone
+
+    buffer = io.StringIO(text)
+    # scikit-rf takes the port count of a 1.x file from the name of the file object.
+    buffer.name = Path(name).name if header.version != "1.x" else "data.s1p"
+    try:
+        parsed = Touchstone(buffer)
+        skrf_frequency, s = parsed.get_sparameter_arrays()
+    except Exception as error:  # the text passed our checks; say what scikit-rf refused
+        raise FileFormatError(name, f"scikit-rf's Touchstone reader refused it: {error}") from None
+    gamma = np.asarray(s, dtype=complex).reshape(-1)
+    if gamma.shape != frequency_hz.shape or not np.allclose(skrf_frequency, frequency_hz):
+        raise FileFormatError(name, "scikit-rf read a different frequency list than the file has")
+    _check_arrays(name, frequency_hz, gamma)
+    return gamma
+
+
+def _constant_real_reference(description: str, z0: np.ndarray) -> float:
+    reference = complex(z0[0])
+    if (
+        abs(reference.imag) > 0
+        or not reference.real > 0
+        or not np.allclose(z0, reference, rtol=1e-12, atol=0)
+    ):
+        raise FileFormatError(
+            description,
+            "reference impedance must be real, positive and the same at every frequency",
+        )
+    return reference.real
+
+
+def _check_arrays(description: str, frequency_hz: np.ndarray, gamma: np.ndarray) -> None:
+    if frequency_hz.size == 0:
+        raise FileFormatError(description, "has no frequency points")
+    if not np.all(np.isfinite(gamma)):
+        index = int(np.flatnonzero(~np.isfinite(gamma))[0])
+        raise FileFormatError(
+            description,
+            f"reflection at {frequency_hz[index]:.6g} Hz is not finite (an impedance of exactly"
+            " the reference value in a Y file, or infinite Z, cannot be converted to S)",
+        )
+    if frequency_hz[0] < 0 or np.any(np.diff(frequency_hz) <= 0):
+        raise FileFormatError(description, "frequencies must be >= 0 and increase strictly")

@@ -1,0 +1,129 @@
+"""Quantities as people type them (``2.4GHz``, ``12ps``, ``15dB``, ``50ohm``) and as they read them.
+
+This room is the edge of the package: the only place where SI prefixes and display units are
+parsed or produced. Everything it returns is in SI base units (Hz, s, Ω) or a linear magnitude.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+from .errors import InputError
+
+_PREFIXES = {
+    "f": 1e-15,
+    "p": 1e-12,
+    "n": 1e-9,
+    "u": 1e-6,
+    "µ": 1e-6,
+    "m": 1e-3,
+    "": 1.0,
+    "k": 1e3,
+    "M": 1e6,
+    "meg": 1e6,
+    "G": 1e9,
+    "T": 1e12,
+}
+
+# Units each kind of quantity accepts; matched case-insensitively after the prefix.
+_UNITS = {
+    "frequency": ("hz",),
+    "time": ("s",),
+    "resistance": ("ohm", "ohms", "Ω"),
+    "capacitance": ("f",),
+    "inductance": ("h",),
+}
+
+_NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
+_QUANTITY = re.compile(rf"^\s*({_NUMBER})\s*([a-zA-Zµ]*|Ω)\s*$")
+
+
+def parse_quantity(text: str, kind: str, *, option: str) -> float:
+    """Parse ``text`` as a quantity of ``kind`` and return it in SI units.
+
+    Parameters
+    ----------
+    text : str
+        What the user typed, e.g. ``"2.4GHz"``, ``"50ohm"``, ``"12ps"`` or a bare number (SI).
+    kind : str
+        One of ``"frequency"``, ``"time"``, ``"resistance"``, ``"capacitance"``, ``"inductance"``.
+    option : str
+        The option or field name, for the error message.
+
+    Returns
+    -------
+    float
+        The value in Hz, s, Ω, F or H.
+
+    Examples
+    --------
+    >>> parse_quantity("2.4GHz", "frequency", option="--start")
+    2400000000.0
+    >>> parse_quantity("50ohm", "resistance", option="--measurement-impedance")
+    50.0
+    """
+    match = _QUANTITY.match(text)
+    accepted = f"a number with an optional SI prefix and unit, e.g. {_EXAMPLES[kind]}"
+    if not match:
+        raise InputError(f"{option}: cannot read {text!r} as a {kind}; give {accepted}")
+    value = float(match.group(1))
+    suffix = match.group(2)
+    scale = _suffix_scale(suffix, _UNITS[kind])
+    if scale is None:
+        raise InputError(f"{option}: unknown unit {suffix!r} in {text!r}; give {accepted}")
+    result = value * scale
+    if not math.isfinite(result):
+        raise InputError(f"{option}: {text!r} is not a finite number; give {accepted}")
+    return result
+
+
+def parse_decibels(text: str, *, option: str) -> float:
+    """Parse a level in dB (``"15dB"`` or ``"15"``) and return it in dB."""
+    match = re.match(rf"^\s*({_NUMBER})\s*(dB|db|DB)?\s*$", text)
+    if not match:
+        raise InputError(f"{option}: cannot read {text!r} as a level in dB; give e.g. 15dB")
+    return float(match.group(1))
+
+
+_EXAMPLES = {
+    "frequency": "2.4GHz",
+    "time": "12ps",
+    "resistance": "50ohm",
+    "capacitance": "1.2pF",
+    "inductance": "3.3nH",
+}
+
+
+def _suffix_scale(suffix: str, units: tuple[str, ...]) -> float | None:
+    """Scale factor of a prefix+unit suffix, or None when it is not one of ``units``."""
+    if suffix == "":
+        return 1.0
+    for unit in units:
+        if suffix.lower().endswith(unit.lower()):
+            prefix = suffix[: len(suffix) - len(unit)]
+            if prefix in _PREFIXES:
+                return _PREFIXES[prefix]
+            if prefix.lower() in ("meg", "k", "u", "n", "p", "f"):
+                return _PREFIXES[prefix.lower()]
+            return None
+    # A bare SI prefix with no unit letter ("2.4G") is accepted as the kind's unit.
+    if suffix in _PREFIXES:
+        return _PREFIXES[suffix]
+    if suffix.lower() == "meg":
+        return 1e6
+    return None
+
+
+def format_frequency(frequency_hz: float) -> str:
+    """Frequency for reading: ``1.472 GHz``, ``350.0 MHz``, ``12.0 kHz``."""
+    magnitude = abs(frequency_hz)
+    for scale, unit in ((1e9, "GHz"), (1e6, "MHz"), (1e3, "kHz")):
+        if magnitude >= scale:
+            return f"{frequency_hz / scale:.4g} {unit}"
+    return f"{frequency_hz:.4g} Hz"
+
+
+def to_decibels(magnitude: float) -> float:
+    """A linear magnitude (voltage-like ratio) in dB; ``-inf`` for zero."""
+    return 20.0 * math.log10(magnitude) if magnitude > 0 else -math.inf
