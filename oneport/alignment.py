@@ -140,7 +140,7 @@ def align(
 
 
 def _interpolate(x: np.ndarray, values: np.ndarray, at: np.ndarray) -> np.ndarray:
-    """Linear interpolation of a complex trace, real and imaginary parts apart (no extrapolation)."""
+    """Linear interpolation of a complex trace, real and imaginary parts apart; no extrapolation."""
     if x.size == at.size and np.array_equal(x, at):
         return values.copy()
     return np.interp(at, x, values.real) + 1j * np.interp(at, x, values.imag)

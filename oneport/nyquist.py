@@ -23,8 +23,8 @@ import numpy as np
 UNSAFE_PHASE_STEP_RAD = np.deg2rad(120.0)
 #: Above this step (rad) unwrapping still works but the grid is coarse: a warning.
 COARSE_PHASE_STEP_RAD = np.deg2rad(45.0)
-#: The edge closure is founded by settling when L's extrapolated motion to the limit, and its
-#: distance from the real axis, stay below this fraction of |F| at the edge.
+#: The edge closure is founded by settling when L's motion per octave at the edge, and its
+#: distance from the real axis, stay below this fraction of |F| there.
 SETTLED_FRACTION = 0.5
 
 
@@ -35,7 +35,7 @@ class EdgeClosure:
     ``basis`` is ``"dc-sample"`` (the data include 0 Hz), ``"loop-gain-below-unity"``
     (|L| < 1 at the edge), ``"settled"`` (L has stopped moving, far from +1) or
     ``"not-founded"``. ``sign_at_limit`` is the sign of the real F(0) or F(∞) the closure implies
-    (0 when not founded). ``motion`` is the extrapolated movement of L beyond the edge.
+    (0 when not founded). ``motion`` is |ΔL| per octave over the outermost octave.
     """
 
     side: str
@@ -147,41 +147,53 @@ def _reference_angle(sign: np.ndarray, imaginary: np.ndarray) -> np.ndarray:
 def close_edge(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> EdgeClosure:
     """Decide whether the band can be closed towards DC (``"low"``) or infinity (``"high"``).
 
-    L's motion beyond the edge is extrapolated from a least-squares line through the outermost
-    twentieth of the sweep (at least four points, so measurement noise averages out): to DC for
-    the low edge, over one more octave for the high edge.
+    L's motion beyond the edge is estimated from its motion over the outermost octave of the
+    sweep (per octave, from the sample at least an octave in, or the far end of a narrower
+    sweep), with both ends smoothed over a few samples so measurement noise does not pass for
+    motion. Near DC a settled L moves by less over the rest of the way to 0 Hz than over the
+    first octave, so the estimate is conservative there.
     """
     n = frequency_hz.size
-    count = min(n, max(4, n // 20))
-    outer = slice(0, count) if side == "low" else slice(n - count, n)
-    f, values = frequency_hz[outer], loop_gain[outer]
-    edge_frequency = frequency_hz[0] if side == "low" else frequency_hz[-1]
-    slope, fitted_edge = _line_fit(f, values, edge_frequency)
-    edge_value = complex(loop_gain[0] if side == "low" else loop_gain[-1])
-    motion = float(abs(slope) * edge_frequency) if edge_frequency > 0 else 0.0
-    f_edge = 1.0 - fitted_edge
-
+    edge = 0 if side == "low" else n - 1
+    edge_value = complex(loop_gain[edge])
     if side == "low" and frequency_hz[0] == 0.0:
         sign = 1 if (1.0 - edge_value).real > 0 else -1
         return EdgeClosure(side, "dc-sample", sign, edge_value, 0.0, None)
-    if abs(fitted_edge) < 1.0 and abs(edge_value) < 1.0:
+    smoothed_edge = _smoothed(loop_gain, edge)
+    motion = _motion_per_octave(frequency_hz, loop_gain, side)
+    if abs(smoothed_edge) < 1.0 and abs(edge_value) < 1.0:
         return EdgeClosure(side, "loop-gain-below-unity", 1, edge_value, motion, None)
+    f_edge = 1.0 - smoothed_edge
     spread = max(motion, abs(f_edge.imag))
     if spread < SETTLED_FRACTION * abs(f_edge):
         sign = 1 if f_edge.real > 0 else -1
         return EdgeClosure(side, "settled", sign, edge_value, motion, None)
-    return EdgeClosure(
-        side, "not-founded", 0, edge_value, motion, _extend_to(f, values, edge_frequency, side)
-    )
+    count = min(n, max(4, n // 20))
+    outer = slice(0, count) if side == "low" else slice(n - count, n)
+    extend = _extend_to(frequency_hz[outer], loop_gain[outer], frequency_hz[edge], side)
+    return EdgeClosure(side, "not-founded", 0, edge_value, motion, extend)
 
 
-def _line_fit(f: np.ndarray, values: np.ndarray, at: float) -> tuple[complex, complex]:
-    """Slope (per Hz) and value at ``at`` of the least-squares line through complex samples."""
-    centre = f.mean()
-    spread = np.sum((f - centre) ** 2)
-    mean = values.mean()
-    slope = complex(np.sum((f - centre) * (values - mean)) / spread) if spread > 0 else 0j
-    return slope, complex(mean + slope * (at - centre))
+def _smoothed(values: np.ndarray, index: int, half_width: int = 2) -> complex:
+    """Median of real and imaginary parts over a few samples around ``index``."""
+    window = values[max(0, index - half_width) : index + half_width + 1]
+    return complex(np.median(window.real), np.median(window.imag))
+
+
+def _motion_per_octave(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> float:
+    """|ΔL| per octave over the outermost octave of the sweep (or the whole of a narrower one)."""
+    last = frequency_hz.size - 1
+    if side == "low":
+        edge = 0
+        inner = min(int(np.searchsorted(frequency_hz, 2.0 * frequency_hz[0])), last)
+    else:
+        edge = last
+        inner = max(int(np.searchsorted(frequency_hz, 0.5 * frequency_hz[-1], side="right")) - 1, 0)
+    octaves = abs(np.log2(frequency_hz[inner] / frequency_hz[edge]))
+    if octaves == 0:
+        return 0.0
+    change = abs(_smoothed(loop_gain, inner) - _smoothed(loop_gain, edge))
+    return float(change / octaves)
 
 
 def _extend_to(f: np.ndarray, values: np.ndarray, edge_frequency: float, side: str) -> float:
@@ -243,8 +255,8 @@ def find_bands(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> list[Band]:
     magnitude = np.abs(loop_gain)
     above = magnitude >= 1.0
     edges = np.diff(above.astype(int))
-    starts = list(np.flatnonzero(edges == 1) + 1)
-    stops = list(np.flatnonzero(edges == -1))
+    starts = [int(i) for i in np.flatnonzero(edges == 1) + 1]
+    stops = [int(i) for i in np.flatnonzero(edges == -1)]
     if above[0]:
         starts.insert(0, 0)
     if above[-1]:

@@ -79,10 +79,12 @@ def _bands(result: CheckResult) -> list[str]:
         return [title, "  none: |L| < 1 across the analysed band"]
     rows = [title, f"  {'from':>12}  {'to':>12}  {'peak':>9}  {'at':>12}"]
     for band in result.bands:
+        edge = band.starts_at_sweep_edge or band.stops_at_sweep_edge
         rows.append(
             f"  {format_frequency(band.start_hz):>12}  {format_frequency(band.stop_hz):>12}"
-            f"  {to_decibels(band.peak_loop_gain):>6.2f} dB  {format_frequency(band.peak_frequency_hz):>12}"
-            + ("  (runs to the sweep edge)" if band.starts_at_sweep_edge or band.stops_at_sweep_edge else "")
+            f"  {to_decibels(band.peak_loop_gain):>6.2f} dB"
+            f"  {format_frequency(band.peak_frequency_hz):>12}"
+            + ("  (runs to the sweep edge)" if edge else "")
         )
     return rows
 

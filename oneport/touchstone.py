@@ -110,9 +110,7 @@ def read_one_port(path: str | Path) -> OnePort:
     text = _decode(name, raw)
     header, frequency_hz = _validate(name, text)
     gamma = _convert_with_scikit_rf(name, text, header, frequency_hz)
-    comments = tuple(
-        line.split("!", 1)[1].strip() for line in text.splitlines() if "!" in line
-    )
+    comments = tuple(line.split("!", 1)[1].strip() for line in text.splitlines() if "!" in line)
     return OnePort(
         frequency_hz=frequency_hz,
         gamma=gamma,
