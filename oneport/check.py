@@ -81,7 +81,7 @@ def analyse_pair(pair: AlignedPair, device: OnePort, load: OnePort) -> CheckResu
     high = nyquist.close_edge(frequency_hz, loop_gain, "high")
     step = float(nyquist.largest_phase_step(loop_gain))
     crossings = nyquist.find_crossings(frequency_hz, loop_gain, noise)
-    bands = nyquist.find_bands(frequency_hz, loop_gain)
+    bands = nyquist.find_bands(frequency_hz, loop_gain, noise)
     margins = nyquist.find_margins(frequency_hz, loop_gain)
     z0 = pair.reference_impedance_ohm
 

@@ -250,8 +250,12 @@ def net_crossings(crossings: list[Crossing]) -> list[Crossing]:
     return stack
 
 
-def find_bands(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> list[Band]:
-    """Contiguous stretches where |L| ≥ 1, edges interpolated where |L| passes 1 (in dB)."""
+def find_bands(frequency_hz: np.ndarray, loop_gain: np.ndarray, noise: float = 0.0) -> list[Band]:
+    """Contiguous stretches where |L| ≥ 1, edges interpolated where |L| passes 1 (in dB).
+
+    Neighbouring stretches whose gap never falls below 1 − 3·``noise`` are one band: the gap
+    is measurement scatter around |L| = 1, not a real dip.
+    """
     magnitude = np.abs(loop_gain)
     above = magnitude >= 1.0
     edges = np.diff(above.astype(int))
@@ -261,21 +265,28 @@ def find_bands(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> list[Band]:
         starts.insert(0, 0)
     if above[-1]:
         stops.append(above.size - 1)
-    bands = []
+    runs: list[list[int]] = []
     for start, stop in zip(starts, stops, strict=True):
+        if runs and magnitude[runs[-1][1] + 1 : start].min() >= 1.0 - 3.0 * noise:
+            runs[-1][1] = stop
+        else:
+            runs.append([start, stop])
+    last = above.size - 1
+    bands = []
+    for start, stop in runs:
         peak = start + int(np.argmax(magnitude[start : stop + 1]))
         bands.append(
             Band(
-                start_hz=_unity_crossing(frequency_hz, magnitude, start - 1)
-                if start > 0
-                else float(frequency_hz[0]),
-                stop_hz=_unity_crossing(frequency_hz, magnitude, stop)
-                if stop < above.size - 1
-                else float(frequency_hz[-1]),
+                start_hz=float(frequency_hz[0])
+                if start == 0
+                else _unity_crossing(frequency_hz, magnitude, start - 1),
+                stop_hz=float(frequency_hz[-1])
+                if stop == last
+                else _unity_crossing(frequency_hz, magnitude, stop),
                 peak_loop_gain=float(magnitude[peak]),
                 peak_frequency_hz=float(frequency_hz[peak]),
                 starts_at_sweep_edge=start == 0,
-                stops_at_sweep_edge=stop == above.size - 1,
+                stops_at_sweep_edge=stop == last,
             )
         )
     return bands

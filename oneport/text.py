@@ -47,11 +47,11 @@ def render(result: CheckResult) -> str:
             if record.file_reference_impedance_ohm != record.analysed_reference_impedance_ohm
             else ""
         )
+        parts.append(f"  {record.role:<7} {record.source}")
         parts.append(
-            f"  {record.role:<7}{record.source}  ({record.parameter} {record.number_format},"
-            f" Touchstone {record.version}, {record.points} points,"
-            f" {format_frequency(low)}-{format_frequency(high)},"
-            f" R = {record.file_reference_impedance_ohm:g} ohm{renormalised})"
+            f"          {record.parameter} {record.number_format}, Touchstone {record.version},"
+            f" {record.points} points, {format_frequency(low)}-{format_frequency(high)},"
+            f" R = {record.file_reference_impedance_ohm:g} ohm{renormalised}"
         )
     low, high = result.frequency_range_hz
     parts.append(
