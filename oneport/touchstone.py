@@ -68,6 +68,35 @@ class OnePort:
         return int(self.frequency_hz.size)
 
 
+@dataclass(frozen=True)
+class Multiport:
+    """An N-port's scattering matrix on its own grid, frequency on the last axis.
+
+    Attributes
+    ----------
+    frequency_hz : ndarray of float, shape (n,)
+    s : ndarray of complex, shape (p, p, n)
+        S-parameters referred to ``reference_impedance_ohm`` port by port.
+    reference_impedance_ohm : ndarray of float, shape (p,)
+    source, sha256, parameter, number_format, version
+        As for :class:`OnePort`.
+    """
+
+    frequency_hz: np.ndarray
+    s: np.ndarray
+    reference_impedance_ohm: np.ndarray
+    source: str
+    sha256: str | None = None
+    parameter: str = "S"
+    number_format: str = "RI"
+    version: str = "1.x"
+
+    @property
+    def ports(self) -> int:
+        """Number of ports."""
+        return int(self.s.shape[0])
+
+
 @dataclass
 class _Header:
     version: str = "1.x"
@@ -76,6 +105,8 @@ class _Header:
     parameter: str = "s"
     number_format: str = "ma"
     reference: float = 50.0
+    references: list[float] = field(default_factory=list)
+    matrix_format: str = "full"
     declared_frequencies: int | None = None
     option_line: int | None = None
 
@@ -98,6 +129,45 @@ def read_one_port(path: str | Path) -> OnePort:
     FileFormatError
         One line naming the file, the line where possible, the problem and what is accepted.
     """
+    name, raw, text = _read_text(path)
+    header, frequency_hz = _validate(name, text, required_ports=1)
+    s = _convert_with_scikit_rf(name, text, header, frequency_hz)
+    comments = tuple(line.split("!", 1)[1].strip() for line in text.splitlines() if "!" in line)
+    return OnePort(
+        frequency_hz=frequency_hz,
+        gamma=s[0, 0],
+        reference_impedance_ohm=header.reference,
+        source=name,
+        sha256=hashlib.sha256(raw).hexdigest(),
+        parameter=header.parameter.upper(),
+        number_format=header.number_format.upper(),
+        version=header.version,
+        comments=comments,
+    )
+
+
+def read_touchstone(path: str | Path) -> Multiport:
+    """Read a Touchstone file of any port count safely and strictly (S, Z or Y data).
+
+    Used for two-port devices, fixtures and circuit blocks. The same checks as
+    :func:`read_one_port` apply; noise data in two-port files are skipped.
+    """
+    name, raw, text = _read_text(path)
+    header, frequency_hz = _validate(name, text, required_ports=None)
+    s = _convert_with_scikit_rf(name, text, header, frequency_hz)
+    return Multiport(
+        frequency_hz=frequency_hz,
+        s=s,
+        reference_impedance_ohm=np.array(header.references, dtype=float),
+        source=name,
+        sha256=hashlib.sha256(raw).hexdigest(),
+        parameter=header.parameter.upper(),
+        number_format=header.number_format.upper(),
+        version=header.version,
+    )
+
+
+def _read_text(path: str | Path) -> tuple[str, bytes, str]:
     name = str(path)
     try:
         raw = Path(path).read_bytes()
@@ -107,21 +177,7 @@ def read_one_port(path: str | Path) -> OnePort:
         raise FileFormatError(name, "is a folder, not a Touchstone file") from None
     except OSError as error:
         raise FileFormatError(name, f"cannot be read ({error.strerror})") from None
-    text = _decode(name, raw)
-    header, frequency_hz = _validate(name, text)
-    gamma = _convert_with_scikit_rf(name, text, header, frequency_hz)
-    comments = tuple(line.split("!", 1)[1].strip() for line in text.splitlines() if "!" in line)
-    return OnePort(
-        frequency_hz=frequency_hz,
-        gamma=gamma,
-        reference_impedance_ohm=header.reference,
-        source=name,
-        sha256=hashlib.sha256(raw).hexdigest(),
-        parameter=header.parameter.upper(),
-        number_format=header.number_format.upper(),
-        version=header.version,
-        comments=comments,
-    )
+    return name, raw, _decode(name, raw)
 
 
 def one_port_from_network(network: Any, description: str = "network") -> OnePort:
@@ -165,7 +221,7 @@ def _decode(name: str, raw: bytes) -> str:
         ) from None
 
 
-def _validate(name: str, text: str) -> tuple[_Header, np.ndarray]:
+def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header, np.ndarray]:
     """Check the whole file and return its header and frequencies in Hz."""
     header = _Header()
     suffix_ports = _ports_from_suffix(name)
@@ -189,6 +245,8 @@ def _validate(name: str, text: str) -> tuple[_Header, np.ndarray]:
                 raise FileFormatError(
                     name, f"[{keyword}] before [Version]; a 2.x file starts with [Version]", number
                 )
+            if keyword in ("noise data", "end"):
+                break
             awaiting_reference = _keyword(name, number, keyword, rest, header)
             in_information = keyword == "begin information"
             first_content = False
@@ -200,49 +258,107 @@ def _validate(name: str, text: str) -> tuple[_Header, np.ndarray]:
             continue
         values = _numbers(name, number, content)
         if awaiting_reference:
-            header.reference = _positive_reference(name, number, values[0])
-            awaiting_reference = False
+            header.references += [_positive_reference(name, number, v) for v in values]
+            awaiting_reference = len(header.references) < (header.ports or 1)
             continue
+        if _starts_noise_data(header, suffix_ports, rows, values):
+            break
         rows.append((number, values))
 
     ports = header.ports if header.version != "1.x" else suffix_ports
     if ports is None:
         raise FileFormatError(
             name,
-            "cannot tell how many ports it has: a Touchstone 1.x file needs the extension .s1p,"
-            " a 2.x file needs [Version] and [Number of Ports]",
+            "cannot tell how many ports it has: a Touchstone 1.x file needs the extension .s1p"
+            " (.sNp), a 2.x file needs [Version] and [Number of Ports]",
         )
-    if ports != 1:
+    if required_ports is not None and ports != required_ports:
         raise FileFormatError(
             name,
-            f"is a {ports}-port file; a one-port is needed: save the reflection S11 alone as a"
-            " .s1p, or terminate the other port(s) in their real load and measure again",
+            f"is a {ports}-port file; a one-port is needed: terminate the other port(s) with"
+            " --terminate FILE or --terminate-impedance OHMS, or save S11 alone as a .s1p",
         )
     if header.parameter not in _PARAMETERS:
         raise FileFormatError(
             name,
-            f"holds {header.parameter.upper()} parameters; a one-port file holds S, Z or Y",
+            f"holds {header.parameter.upper()} parameters; oneport reads S, Z or Y data",
             header.option_line,
         )
     if not rows:
-        raise FileFormatError(name, "has no data lines; expected lines of: frequency, two values")
-    for number, values in rows:
-        if len(values) != 3:
-            raise FileFormatError(
-                name,
-                f"a one-port data line holds 3 values (frequency and two parts of the parameter),"
-                f" this one has {len(values)}",
-                number,
-            )
-    frequency_hz = np.array([values[0] for _, values in rows]) * _FREQUENCY_UNITS[header.unit]
-    _check_frequencies(name, rows, frequency_hz)
-    if header.declared_frequencies is not None and header.declared_frequencies != len(rows):
+        raise FileFormatError(name, "has no data lines; expected lines of: frequency, values")
+    _complete_references(name, header, ports)
+    records = _records(name, header, rows, ports)
+    frequency_hz = np.array([values[0] for _, values in records]) * _FREQUENCY_UNITS[header.unit]
+    _check_frequencies(name, records, frequency_hz)
+    if header.declared_frequencies is not None and header.declared_frequencies != len(records):
         raise FileFormatError(
             name,
             f"[Number of Frequencies] says {header.declared_frequencies} but the file holds"
-            f" {len(rows)} data lines",
+            f" {len(records)} frequency points",
         )
     return header, frequency_hz
+
+
+def _starts_noise_data(
+    header: _Header, suffix_ports: int | None, rows: list[tuple[int, list[float]]], values: list
+) -> bool:
+    """In a 1.x two-port file, noise data follow with a frequency at or below the last one."""
+    return (
+        header.version == "1.x"
+        and suffix_ports == 2
+        and bool(rows)
+        and len(values) == 5
+        and values[0] <= rows[-1][1][0]
+    )
+
+
+def _complete_references(name: str, header: _Header, ports: int) -> None:
+    if not header.references:
+        header.references = [header.reference] * ports
+    elif len(header.references) != ports:
+        raise FileFormatError(
+            name,
+            f"[Reference] gives {len(header.references)} impedance(s) for {ports} port(s);"
+            " give one per port",
+        )
+    header.reference = header.references[0]
+
+
+def _records(
+    name: str, header: _Header, rows: list[tuple[int, list[float]]], ports: int
+) -> list[tuple[int, list[float]]]:
+    """Group data lines into one record per frequency point (line of its frequency, values)."""
+    if ports == 1:
+        for number, values in rows:
+            if len(values) != 3:
+                raise FileFormatError(
+                    name,
+                    "a one-port data line holds 3 values (frequency and two parts of the"
+                    f" parameter), this one has {len(values)}",
+                    number,
+                )
+        return rows
+    entries = ports * ports if header.matrix_format == "full" else ports * (ports + 1) // 2
+    size = 1 + 2 * entries
+    records: list[tuple[int, list[float]]] = []
+    pending: list[float] = []
+    start = rows[0][0]
+    for number, values in rows:
+        if not pending:
+            start = number
+        pending += values
+        while len(pending) >= size:
+            records.append((start, pending[:size]))
+            pending = pending[size:]
+            start = number
+    if pending:
+        raise FileFormatError(
+            name,
+            f"the last frequency point has {len(pending)} values; each point of a {ports}-port"
+            f" file holds {size} (frequency and {entries} complex values)",
+            start,
+        )
+    return records
 
 
 def _keyword(name: str, number: int, keyword: str, rest: str, header: _Header) -> bool:
@@ -258,10 +374,15 @@ def _keyword(name: str, number: int, keyword: str, rest: str, header: _Header) -
     elif keyword == "number of frequencies":
         header.declared_frequencies = _whole_number(name, number, keyword, rest)
     elif keyword == "reference":
-        if not rest:
-            return True
-        values = _numbers(name, number, rest)
-        header.reference = _positive_reference(name, number, values[0])
+        values = _numbers(name, number, rest) if rest else []
+        header.references = [_positive_reference(name, number, v) for v in values]
+        return len(header.references) < (header.ports or 1)
+    elif keyword == "matrix format":
+        if rest.lower() not in ("full", "lower", "upper"):
+            raise FileFormatError(
+                name, f"[Matrix Format] {rest!r}; accepted: Full, Lower, Upper", number
+            )
+        header.matrix_format = rest.lower()
     return False
 
 
@@ -343,6 +464,7 @@ def _ports_from_suffix(name: str) -> int | None:
 def _check_frequencies(
     name: str, rows: list[tuple[int, list[float]]], frequency_hz: np.ndarray
 ) -> None:
+    """Frequencies must be >= 0 and strictly increasing (``rows``: line and values per point)."""
     if frequency_hz[0] < 0:
         raise FileFormatError(
             name, f"frequency {rows[0][1][0]!r} is negative; frequencies are >= 0", rows[0][0]
@@ -363,22 +485,25 @@ def _check_frequencies(
 def _convert_with_scikit_rf(
     name: str, text: str, header: _Header, frequency_hz: np.ndarray
 ) -> np.ndarray:
-    """Convert the checked text to S11 with scikit-rf's text reader (never its pickle path)."""
+    """Convert the checked text to S, shape (p, p, n), with scikit-rf's text reader.
+
+    The text goes in as a string buffer: scikit-rf's pickle path is never reached.
+    """
     from skrf.io.touchstone import Touchstone
 
     buffer = io.StringIO(text)
     # scikit-rf takes the port count of a 1.x file from the name of the file object.
-    buffer.name = Path(name).name if header.version != "1.x" else "data.s1p"
+    buffer.name = f"data.s{len(header.references)}p" if header.version == "1.x" else "data.ts"
     try:
         parsed = Touchstone(buffer)
         skrf_frequency, s = parsed.get_sparameter_arrays()
     except Exception as error:  # the text passed our checks; say what scikit-rf refused
         raise FileFormatError(name, f"scikit-rf's Touchstone reader refused it: {error}") from None
-    gamma = np.asarray(s, dtype=complex).reshape(-1)
-    if gamma.shape != frequency_hz.shape or not np.allclose(skrf_frequency, frequency_hz):
+    s = np.moveaxis(np.asarray(s, dtype=complex), 0, -1)
+    if s.shape[-1] != frequency_hz.size or not np.allclose(skrf_frequency, frequency_hz):
         raise FileFormatError(name, "scikit-rf read a different frequency list than the file has")
-    _check_arrays(name, frequency_hz, gamma)
-    return gamma
+    _check_arrays(name, frequency_hz, s)
+    return s
 
 
 def _constant_real_reference(description: str, z0: np.ndarray) -> float:
@@ -395,14 +520,15 @@ def _constant_real_reference(description: str, z0: np.ndarray) -> float:
     return reference.real
 
 
-def _check_arrays(description: str, frequency_hz: np.ndarray, gamma: np.ndarray) -> None:
+def _check_arrays(description: str, frequency_hz: np.ndarray, values: np.ndarray) -> None:
     if frequency_hz.size == 0:
         raise FileFormatError(description, "has no frequency points")
-    if not np.all(np.isfinite(gamma)):
-        index = int(np.flatnonzero(~np.isfinite(gamma))[0])
+    finite = np.isfinite(values).reshape(-1, frequency_hz.size).all(axis=0)
+    if not finite.all():
+        index = int(np.flatnonzero(~finite)[0])
         raise FileFormatError(
             description,
-            f"reflection at {frequency_hz[index]:.6g} Hz is not finite (an impedance of exactly"
+            f"S-parameters at {frequency_hz[index]:.6g} Hz are not finite (an impedance of exactly"
             " the reference value in a Y file, or infinite Z, cannot be converted to S)",
         )
     if frequency_hz[0] < 0 or np.any(np.diff(frequency_hz) <= 0):
