@@ -1,0 +1,19 @@
+"""One module per subcommand, each with ``add_parser(subparsers)`` and ``run(arguments, out)``.
+
+``run`` returns an exit code (``oneport.cli.ExitCode``); it may raise ``OneportError`` for bad
+input, which the CLI turns into one line on stderr. Commands import their heavy dependencies
+inside ``run`` so that ``oneport --help`` stays quick.
+"""
+
+from __future__ import annotations
+
+from importlib import import_module
+from types import ModuleType
+
+#: Subcommand modules, in the order ``--help`` lists them.
+COMMAND_MODULES = ("check",)
+
+
+def load_commands() -> list[ModuleType]:
+    """The subcommand modules."""
+    return [import_module(f"{__name__}.{name}") for name in COMMAND_MODULES]
