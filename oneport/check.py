@@ -7,16 +7,19 @@ verdict from the analysis; it never prints, plots or exits.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 
-from . import nyquist
+from . import diagnostics, nyquist
 from .alignment import AlignedPair, align
 from .cautions import CAUTIONS
+from .errors import InputError
 from .nyquist import EdgeClosure
-from .result import CheckResult, Finding, InputRecord
+from .result import CheckResult, Finding, InputRecord, Uncertainty
+from .startup import startup_estimates
 from .touchstone import OnePort, one_port_from_network, read_one_port
 from .units import format_frequency
 
@@ -34,11 +37,49 @@ def load_one_port(source: OneportSource, role: str) -> OnePort:
     raise TypeError(f"{role}: expected a path, a OnePort or a scikit-rf Network, got {source!r}")
 
 
+@dataclass(frozen=True)
+class CheckOptions:
+    """What the user knows beyond the two files (all optional; SI units).
+
+    Attributes
+    ----------
+    measurement_impedance_ohm : float or None
+        The impedance the device was really measured in, if its file was renormalised later.
+    device_dc_resistance_ohm, load_dc_resistance_ohm : float or None
+        The device's small-signal resistance at DC (its I–V slope at the bias point; negative
+        for a negative-resistance device) and the load's (bias network's) resistance at DC.
+        Given together, they fix F(0) and close the contour towards DC.
+    device_uncertainty, load_uncertainty : float
+        Worst-case absolute error of each measured |Γ| (e.g. 0.01).
+    """
+
+    measurement_impedance_ohm: float | None = None
+    device_dc_resistance_ohm: float | None = None
+    load_dc_resistance_ohm: float | None = None
+    device_uncertainty: float = 0.0
+    load_uncertainty: float = 0.0
+
+    def __post_init__(self) -> None:
+        given = (self.device_dc_resistance_ohm is None, self.load_dc_resistance_ohm is None)
+        if given[0] != given[1]:
+            raise InputError(
+                "DC resistances: give both the device's and the load's (they fix F(0)"
+                " together), or neither"
+            )
+        for name in ("device_uncertainty", "load_uncertainty"):
+            value = getattr(self, name)
+            if not (np.isfinite(value) and 0.0 <= value < 1.0):
+                raise InputError(f"{name} {value!r}: an absolute |Γ| error in [0, 1) is needed")
+
+
 def check(
     device: OneportSource,
     load: OneportSource,
     *,
     measurement_impedance_ohm: float | None = None,
+    device_dc_resistance_ohm: float | None = None,
+    load_dc_resistance_ohm: float | None = None,
+    gamma_uncertainty: float | tuple[float, float] | None = None,
 ) -> CheckResult:
     """Will ``device`` oscillate (or latch up) when connected to ``load``? Small-signal check.
 
@@ -50,6 +91,11 @@ def check(
         The impedance the device was really measured in (VNA port impedance), Ω, if its file
         was renormalised afterwards; default: the device file's reference. The load is brought
         to this impedance, never the device to the load's.
+    device_dc_resistance_ohm, load_dc_resistance_ohm : float, optional
+        DC facts that close the contour towards DC: the device's I–V slope at the bias point
+        and the bias network's DC resistance, Ω (give both).
+    gamma_uncertainty : float or (float, float), optional
+        Worst-case absolute error of |Γ|, for both sides or (device, load).
 
     Returns
     -------
@@ -66,24 +112,44 @@ def check(
     >>> result.verdict, result.encirclements
     ('stable', 0)
     """
+    if isinstance(gamma_uncertainty, tuple):
+        device_uncertainty, load_uncertainty = gamma_uncertainty
+    else:
+        device_uncertainty = load_uncertainty = gamma_uncertainty or 0.0
+    options = CheckOptions(
+        measurement_impedance_ohm=measurement_impedance_ohm,
+        device_dc_resistance_ohm=device_dc_resistance_ohm,
+        load_dc_resistance_ohm=load_dc_resistance_ohm,
+        device_uncertainty=float(device_uncertainty),
+        load_uncertainty=float(load_uncertainty),
+    )
     device_port = load_one_port(device, "device")
     load_port = load_one_port(load, "load")
-    pair = align(device_port, load_port, measurement_impedance_ohm)
-    return analyse_pair(pair, device_port, load_port)
+    pair = align(device_port, load_port, options.measurement_impedance_ohm)
+    return analyse_pair(pair, device_port, load_port, options)
 
 
-def analyse_pair(pair: AlignedPair, device: OnePort, load: OnePort) -> CheckResult:
+def analyse_pair(
+    pair: AlignedPair, device: OnePort, load: OnePort, options: CheckOptions | None = None
+) -> CheckResult:
     """Run the Nyquist analysis on an aligned pair and decide the verdict."""
+    options = options or CheckOptions()
     frequency_hz = pair.frequency_hz
     loop_gain = pair.gamma_device * pair.gamma_load
+    z0 = pair.reference_impedance_ohm
     noise = nyquist.estimate_noise(loop_gain)
-    low = nyquist.close_edge(frequency_hz, loop_gain, "low")
+    data_low = nyquist.close_edge(frequency_hz, loop_gain, "low")
+    low = _dc_closure(options, z0, loop_gain) or data_low
     high = nyquist.close_edge(frequency_hz, loop_gain, "high")
     step = float(nyquist.largest_phase_step(loop_gain))
     crossings = nyquist.find_crossings(frequency_hz, loop_gain, noise)
     bands = nyquist.find_bands(frequency_hz, loop_gain, noise)
     margins = nyquist.find_margins(frequency_hz, loop_gain)
-    z0 = pair.reference_impedance_ohm
+    uncertainty = _uncertainty(pair, loop_gain, options)
+    hidden = diagnostics.foster_violations(
+        load.frequency_hz, load.gamma, load.reference_impedance_ohm, load.source
+    )
+    hidden_at_stake = [r for r in hidden if _device_gain_near(pair, r) >= 1.0]
 
     count: int | None = None
     if low.founded and high.founded and step <= nyquist.UNSAFE_PHASE_STEP_RAD:
@@ -93,12 +159,25 @@ def analyse_pair(pair: AlignedPair, device: OnePort, load: OnePort) -> CheckResu
             )
         )
     verdict, reasons, next_steps = _decide(count, low, high, step, frequency_hz, loop_gain)
+    if count is not None and count >= 0:
+        verdict = _doubts(verdict, uncertainty, hidden_at_stake, reasons, next_steps)
     carrying = nyquist.net_crossings(crossings) if count and count > 0 else []
     oscillation = tuple(c.frequency_hz for c in carrying if c.direction == "clockwise")
-    if verdict == "unstable":
-        reasons += _describe_modes(count or 0, oscillation, z0, frequency_hz, loop_gain)
+    if count and count > 0:
+        reasons += _describe_modes(count, oscillation, z0, frequency_hz, loop_gain)
 
     warnings = _findings(pair, step, noise, margins, crossings, frequency_hz, loop_gain)
+    warnings += _diagnostic_findings(hidden, hidden_at_stake)
+    disagree = data_low.founded and data_low.sign_at_limit != low.sign_at_limit
+    if low.basis == "dc-resistances" and disagree:
+        warnings.append(
+            Finding(
+                "dc-facts-disagree-with-data",
+                "The DC resistances give F(0) the opposite sign to what the low edge of the"
+                " data suggests: something below the sweep (a bias-network resonance or"
+                " latch-up) changes the loop; the DC facts were used.",
+            )
+        )
     band = f"{format_frequency(frequency_hz[0])} to {format_frequency(frequency_hz[-1])}"
     premise = (
         f"The count equals the number of right-half-plane natural frequencies only if the device"
@@ -121,12 +200,18 @@ def analyse_pair(pair: AlignedPair, device: OnePort, load: OnePort) -> CheckResu
         closures=(low, high),
         largest_phase_step_rad=step,
         noise_estimate=noise,
+        uncertainty=uncertainty,
+        hidden_resonances=tuple(hidden),
+        grid_resolution=(
+            diagnostics.grid_resolution(device.frequency_hz, device.source),
+            diagnostics.grid_resolution(load.frequency_hz, load.source),
+        ),
+        startup_estimates=tuple(
+            startup_estimates(frequency_hz, pair.gamma_device, pair.gamma_load, z0)
+        ),
         warnings=tuple(warnings),
         cautions=CAUTIONS,
-        inputs=(
-            _record("device", device, z0),
-            _record("load", load, z0),
-        ),
+        inputs=(_record("device", device, z0), _record("load", load, z0)),
         reference_impedance_ohm=z0,
         points_dropped=pair.device_points_dropped_below + pair.device_points_dropped_above,
         frequency_hz=frequency_hz,
@@ -134,6 +219,131 @@ def analyse_pair(pair: AlignedPair, device: OnePort, load: OnePort) -> CheckResu
         gamma_load=pair.gamma_load,
         loop_gain=loop_gain,
     )
+
+
+def _dc_closure(options: CheckOptions, z0: float, loop_gain: np.ndarray) -> EdgeClosure | None:
+    """The low-edge closure from the DC resistances, when both are given."""
+    if options.device_dc_resistance_ohm is None or options.load_dc_resistance_ohm is None:
+        return None
+    gamma_device = _gamma_of_resistance(options.device_dc_resistance_ohm, z0)
+    gamma_load = _gamma_of_resistance(options.load_dc_resistance_ohm, z0)
+    characteristic_at_dc = 1.0 - gamma_device * gamma_load
+    if characteristic_at_dc == 0.0:
+        raise InputError(
+            "DC resistances: device and load resistances sum to zero at DC (a root at s = 0);"
+            " the count is undefined"
+        )
+    sign = 1 if characteristic_at_dc > 0 else -1
+    return EdgeClosure("low", "dc-resistances", sign, complex(loop_gain[0]), 0.0, None)
+
+
+def _gamma_of_resistance(resistance_ohm: float, z0: float) -> float:
+    if resistance_ohm == -z0:
+        return float("inf")
+    return (resistance_ohm - z0) / (resistance_ohm + z0)
+
+
+def _uncertainty(pair: AlignedPair, loop_gain: np.ndarray, options: CheckOptions) -> Uncertainty:
+    """Worst-case |ΔL| from the stated |Γ| errors, and where it reaches the critical point."""
+    device, load = options.device_uncertainty, options.load_uncertainty
+    worst_change = (
+        np.abs(pair.gamma_device) * load + np.abs(pair.gamma_load) * device + device * load
+    )
+    slack = np.abs(1.0 - loop_gain) - worst_change
+    at_stake = slack <= 0.0
+    ranges = []
+    if device or load:
+        edges = np.flatnonzero(np.diff(np.concatenate(([0], at_stake.astype(int), [0]))))
+        frequency_hz = pair.frequency_hz
+        ranges = [
+            (float(frequency_hz[start]), float(frequency_hz[stop - 1]))
+            for start, stop in zip(edges[::2], edges[1::2], strict=True)
+        ]
+    closest = int(np.argmin(slack))
+    return Uncertainty(
+        device=device,
+        load=load,
+        largest_loop_gain_change=float(worst_change.max()),
+        smallest_slack=float(slack[closest]),
+        smallest_slack_frequency_hz=float(pair.frequency_hz[closest]),
+        count_at_stake=bool((device or load) and at_stake.any()),
+        at_stake_ranges_hz=tuple(ranges),
+    )
+
+
+def _device_gain_near(pair: AlignedPair, resonance: diagnostics.HiddenResonance) -> float:
+    """Largest |Γd| in and next to a sample interval of the load (0 outside the analysed band)."""
+    frequency_hz = pair.frequency_hz
+    lower = max(int(np.searchsorted(frequency_hz, resonance.start_hz)) - 1, 0)
+    upper = int(np.searchsorted(frequency_hz, resonance.stop_hz, side="right")) + 1
+    window = np.abs(pair.gamma_device[lower:upper])
+    return float(window.max()) if window.size else 0.0
+
+
+def _doubts(
+    verdict: str,
+    uncertainty: Uncertainty,
+    hidden_at_stake: list[diagnostics.HiddenResonance],
+    reasons: list[str],
+    next_steps: list[str],
+) -> str:
+    """Turn a definite verdict inconclusive when measurement error or sampling puts it at stake."""
+    if uncertainty.count_at_stake:
+        listed = ", ".join(
+            f"{format_frequency(a)}-{format_frequency(b)}" if a != b else format_frequency(a)
+            for a, b in uncertainty.at_stake_ranges_hz
+        )
+        reasons.append(
+            f"With |Γ| errors of {uncertainty.device:g} (device) and {uncertainty.load:g} (load)"
+            f" the loop gain may move by up to {uncertainty.largest_loop_gain_change:.3g}, enough"
+            f" to reach +1 at {listed}: the count could change there."
+        )
+        next_steps.append(
+            "Measure more accurately near those frequencies (calibration, averaging, lower IF"
+            " bandwidth) or add margin to the load."
+        )
+        verdict = "inconclusive"
+    for resonance in hidden_at_stake:
+        reasons.append(
+            f"The load's data hide a {resonance.kind} resonance between"
+            f" {format_frequency(resonance.start_hz)} and {format_frequency(resonance.stop_hz)}"
+            " (Foster's reactance theorem), where the device has |Γd| >= 1: an unseen"
+            " excursion there could encircle +1."
+        )
+        next_steps.append(
+            f"Measure the load again between {format_frequency(resonance.start_hz)} and"
+            f" {format_frequency(resonance.stop_hz)} with a step of"
+            f" {format_frequency(resonance.step_hz / 50)} or finer."
+        )
+        verdict = "inconclusive"
+    return verdict
+
+
+def _diagnostic_findings(
+    hidden: list[diagnostics.HiddenResonance],
+    hidden_at_stake: list[diagnostics.HiddenResonance],
+) -> list[Finding]:
+    findings = []
+    for resonance in hidden:
+        findings.append(
+            Finding(
+                "resonance-between-samples",
+                f"{resonance.source}: a {resonance.kind} resonance lies between"
+                f" {format_frequency(resonance.start_hz)} and"
+                f" {format_frequency(resonance.stop_hz)} (its reactance falls through infinity:"
+                " Foster's theorem); the grid step there is"
+                f" {format_frequency(resonance.step_hz)}. A step of"
+                f" {format_frequency(resonance.step_hz / 50)} would resolve a resonance 50 times"
+                " sharper than this grid can.",
+                {
+                    "start_hz": resonance.start_hz,
+                    "stop_hz": resonance.stop_hz,
+                    "kind": resonance.kind,
+                    "count_at_stake": resonance in hidden_at_stake,
+                },
+            )
+        )
+    return findings
 
 
 def _decide(

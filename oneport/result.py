@@ -12,7 +12,9 @@ from typing import Any
 
 import numpy as np
 
+from .diagnostics import GridResolution, HiddenResonance
 from .nyquist import Band, Crossing, EdgeClosure, Margins
+from .startup import StartupEstimate
 
 CHECK_SCHEMA = "oneport.check/1"
 VERDICTS = ("stable", "unstable", "inconclusive")
@@ -29,6 +31,35 @@ class Finding:
     def to_dict(self) -> dict[str, Any]:
         """JSON form: code, message and the context keys beside them."""
         return {"code": self.code, "message": self.message, **_json(self.context)}
+
+
+@dataclass(frozen=True)
+class Uncertainty:
+    """What stated |Γ| errors do to the verdict.
+
+    The worst-case change of L is |Γd|·δL + |ΓL|·δd + δd·δL; the count is robust only where
+    |1 − L| exceeds it (``smallest_slack`` > 0).
+    """
+
+    device: float
+    load: float
+    largest_loop_gain_change: float
+    smallest_slack: float
+    smallest_slack_frequency_hz: float
+    count_at_stake: bool
+    at_stake_ranges_hz: tuple[tuple[float, float], ...]
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON form."""
+        return {
+            "device_gamma_uncertainty": self.device,
+            "load_gamma_uncertainty": self.load,
+            "largest_loop_gain_change": self.largest_loop_gain_change,
+            "smallest_slack": self.smallest_slack,
+            "smallest_slack_frequency_hz": self.smallest_slack_frequency_hz,
+            "count_at_stake": self.count_at_stake,
+            "at_stake_ranges_hz": [list(r) for r in self.at_stake_ranges_hz],
+        }
 
 
 @dataclass(frozen=True)
@@ -103,6 +134,10 @@ class CheckResult:
     closures: tuple[EdgeClosure, EdgeClosure]
     largest_phase_step_rad: float
     noise_estimate: float
+    uncertainty: Uncertainty
+    hidden_resonances: tuple[HiddenResonance, ...]
+    grid_resolution: tuple[GridResolution, GridResolution]
+    startup_estimates: tuple[StartupEstimate, ...]
     warnings: tuple[Finding, ...]
     cautions: tuple[str, ...]
     inputs: tuple[InputRecord, InputRecord]
@@ -140,7 +175,27 @@ class CheckResult:
                 "loop_gain_noise_estimate": self.noise_estimate,
                 "points_analysed": int(self.frequency_hz.size),
                 "device_points_dropped": self.points_dropped,
+                "finest_resolvable_q": [
+                    {
+                        "path": g.source,
+                        "q": g.finest_resolvable_q,
+                        "at_frequency_hz": g.at_frequency_hz,
+                        "largest_step_hz": g.largest_step_hz,
+                    }
+                    for g in self.grid_resolution
+                ],
+                "hidden_resonances": [
+                    {
+                        "path": r.source,
+                        "kind": r.kind,
+                        "start_hz": r.start_hz,
+                        "stop_hz": r.stop_hz,
+                    }
+                    for r in self.hidden_resonances
+                ],
             },
+            "uncertainty": self.uncertainty.to_dict(),
+            "startup_estimates": [_startup(e, z0) for e in self.startup_estimates],
             "warnings": [w.to_dict() for w in self.warnings],
             "cautions": list(self.cautions),
             "inputs": [record.to_dict() for record in self.inputs],
@@ -204,6 +259,20 @@ def _margins(margins: Margins, z0: float) -> dict[str, Any]:
         "phase_margin_frequency_hz": margins.phase_margin_frequency_hz,
         "min_distance_to_critical_point": margins.modulus_margin,
         "min_distance_frequency_hz": margins.modulus_margin_frequency_hz,
+    }
+
+
+def _startup(estimate: StartupEstimate, z0: float) -> dict[str, Any]:
+    return {
+        "form": estimate.form,
+        "crossing_frequency_hz": estimate.crossing_frequency_hz,
+        "estimated_frequency_hz": estimate.estimated_frequency_hz,
+        "sigma_per_s": estimate.sigma_per_s,
+        "growing": estimate.growing,
+        "total_real_part": estimate.total_real_part,
+        "negative_to_load_resistance_ratio": estimate.resistance_ratio,
+        "external_q": estimate.external_q,
+        "reference_impedance_ohm": z0,
     }
 
 

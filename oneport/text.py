@@ -130,6 +130,7 @@ def _margins(result: CheckResult) -> list[str]:
 def _closure(result: CheckResult) -> list[str]:
     words = {
         "dc-sample": "the data include 0 Hz",
+        "dc-resistances": "from the stated DC resistances",
         "loop-gain-below-unity": "|L| < 1 at the edge",
         "settled": "L has settled, far from +1",
         "not-founded": "NOT FOUNDED",

@@ -241,9 +241,14 @@ def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header
             keyword, _, rest = content.partition("]")
             keyword = keyword[1:].strip().lower()
             rest = rest.strip()
-            if first_content and keyword != "version":
+            if (first_content and keyword != "version") or (
+                not first_content and header.version == "1.x"
+            ):
                 raise FileFormatError(
-                    name, f"[{keyword}] before [Version]; a 2.x file starts with [Version]", number
+                    name,
+                    f"[{keyword.title()}] in a file that does not start with [Version]; a 2.x"
+                    " file starts with [Version], a 1.x file has no keywords",
+                    number,
                 )
             if keyword in ("noise data", "end"):
                 break
@@ -288,7 +293,13 @@ def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header
         raise FileFormatError(name, "has no data lines; expected lines of: frequency, values")
     _complete_references(name, header, ports)
     records = _records(name, header, rows, ports)
-    frequency_hz = np.array([values[0] for _, values in records]) * _FREQUENCY_UNITS[header.unit]
+    with np.errstate(over="ignore"):
+        frequency_hz = np.array([v[0] for _, v in records]) * _FREQUENCY_UNITS[header.unit]
+    if not np.all(np.isfinite(frequency_hz)):
+        index = int(np.flatnonzero(~np.isfinite(frequency_hz))[0])
+        raise FileFormatError(
+            name, f"frequency {records[index][1][0]!r} {header.unit} overflows", records[index][0]
+        )
     _check_frequencies(name, records, frequency_hz)
     if header.declared_frequencies is not None and header.declared_frequencies != len(records):
         raise FileFormatError(
@@ -491,7 +502,7 @@ def _convert_with_scikit_rf(
     """
     from skrf.io.touchstone import Touchstone
 
-    buffer = io.StringIO(text)
+    buffer = io.StringIO(_without_information_block(text))
     # scikit-rf takes the port count of a 1.x file from the name of the file object.
     buffer.name = f"data.s{len(header.references)}p" if header.version == "1.x" else "data.ts"
     try:
@@ -499,11 +510,47 @@ def _convert_with_scikit_rf(
         skrf_frequency, s = parsed.get_sparameter_arrays()
     except Exception as error:  # the text passed our checks; say what scikit-rf refused
         raise FileFormatError(name, f"scikit-rf's Touchstone reader refused it: {error}") from None
-    s = np.moveaxis(np.asarray(s, dtype=complex), 0, -1)
+    s = np.asarray(s, dtype=complex)
+    if header.version == "1.x" and header.parameter == "y":
+        s = _normalised_admittance_to_s(parsed)
+    s = np.moveaxis(s, 0, -1)
     if s.shape[-1] != frequency_hz.size or not np.allclose(skrf_frequency, frequency_hz):
         raise FileFormatError(name, "scikit-rf read a different frequency list than the file has")
     _check_arrays(name, frequency_hz, s)
     return s
+
+
+def _normalised_admittance_to_s(parsed: Any) -> np.ndarray:
+    """S (shape (n, p, p)) of 1.x Y data, from the file's normalised admittances y = Y·R.
+
+    scikit-rf (2.2) scales every 1.x Z, Y, G or H file by R — right for Z, wrong for Y — so the
+    conversion is done here: with one real R for all ports, S = (I + y)⁻¹ (I − y).
+    """
+    y = np.asarray(parsed.s_flat, dtype=complex)
+    ports = round(float(np.sqrt(y.shape[1])))
+    y = y.reshape(-1, ports, ports)
+    if ports == 2:
+        y = np.transpose(y, (0, 2, 1))  # 1.x two-ports list N11 N21 N12 N22
+    identity = np.eye(ports)
+    return np.linalg.solve(identity + y, identity - y)
+
+
+def _without_information_block(text: str) -> str:
+    """The text less any 2.1 ``[Begin Information]`` … ``[End Information]`` block.
+
+    scikit-rf's reader does not know the block; it carries nothing the conversion needs.
+    """
+    kept = []
+    inside = False
+    for line in text.splitlines():
+        keyword = line.split("!", 1)[0].strip().lower()
+        if keyword.startswith("[begin information]"):
+            inside = True
+        elif inside and keyword.startswith("[end information]"):
+            inside = False
+        elif not inside:
+            kept.append(line)
+    return "\n".join(kept) + "\n"
 
 
 def _constant_real_reference(description: str, z0: np.ndarray) -> float:
