@@ -119,7 +119,7 @@ def align(
             f" {MINIMUM_OVERLAP_POINTS} are needed: measure both over a common band"
         )
     frequency_hz = device.frequency_hz[inside]
-    gamma_load = _interpolate(load.frequency_hz, load.gamma, frequency_hz)
+    gamma_load = interpolate(load.frequency_hz, load.gamma, frequency_hz)
     load_renormalised_from = None
     if load.reference_impedance_ohm != reference:
         gamma_load = renormalise(gamma_load, load.reference_impedance_ohm, reference)
@@ -139,7 +139,7 @@ def align(
     )
 
 
-def _interpolate(x: np.ndarray, values: np.ndarray, at: np.ndarray) -> np.ndarray:
+def interpolate(x: np.ndarray, values: np.ndarray, at: np.ndarray) -> np.ndarray:
     """Linear interpolation of a complex trace, real and imaginary parts apart; no extrapolation."""
     if x.size == at.size and np.array_equal(x, at):
         return values.copy()

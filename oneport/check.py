@@ -7,7 +7,7 @@ verdict from the analysis; it never prints, plots or exits.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
@@ -18,16 +18,19 @@ from .alignment import AlignedPair, align
 from .cautions import CAUTIONS
 from .errors import InputError
 from .nyquist import EdgeClosure
+from .preparation import PreparedPort
 from .result import CheckResult, Finding, InputRecord, Uncertainty
 from .startup import startup_estimates
 from .touchstone import OnePort, one_port_from_network, read_one_port
 from .units import format_frequency
 
-OneportSource = str | Path | OnePort | Any
+OneportSource = str | Path | OnePort | PreparedPort | Any
 
 
 def load_one_port(source: OneportSource, role: str) -> OnePort:
-    """A :class:`OnePort` from a path, a ``OnePort`` or a scikit-rf ``Network``."""
+    """A :class:`OnePort` from a path, ``OnePort``, ``PreparedPort`` or scikit-rf ``Network``."""
+    if isinstance(source, PreparedPort):
+        return source.one_port
     if isinstance(source, OnePort):
         return source
     if isinstance(source, str | Path):
@@ -126,7 +129,16 @@ def check(
     device_port = load_one_port(device, "device")
     load_port = load_one_port(load, "load")
     pair = align(device_port, load_port, options.measurement_impedance_ohm)
-    return analyse_pair(pair, device_port, load_port, options)
+    result = analyse_pair(pair, device_port, load_port, options)
+    prepared = [(i, s) for i, s in enumerate((device, load)) if isinstance(s, PreparedPort)]
+    if not prepared:
+        return result
+    inputs = list(result.inputs)
+    findings = list(result.warnings)
+    for index, source in prepared:
+        inputs[index] = replace(inputs[index], preparation=source.steps)
+        findings += source.findings
+    return replace(result, inputs=(inputs[0], inputs[1]), warnings=tuple(findings))
 
 
 def analyse_pair(
@@ -211,7 +223,7 @@ def analyse_pair(
         ),
         warnings=tuple(warnings),
         cautions=CAUTIONS,
-        inputs=(_record("device", device, z0), _record("load", load, z0)),
+        inputs=(input_record("device", device, z0), input_record("load", load, z0)),
         reference_impedance_ohm=z0,
         points_dropped=pair.device_points_dropped_below + pair.device_points_dropped_above,
         frequency_hz=frequency_hz,
@@ -532,7 +544,8 @@ def _findings(
     return findings
 
 
-def _record(role: str, port: OnePort, analysed_ohm: float) -> InputRecord:
+def input_record(role: str, port: OnePort, analysed_ohm: float) -> InputRecord:
+    """What was read for one side, for the result's ``inputs``."""
     return InputRecord(
         role=role,
         source=port.source,

@@ -160,7 +160,7 @@ def close_edge(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> Ed
         sign = 1 if (1.0 - edge_value).real > 0 else -1
         return EdgeClosure(side, "dc-sample", sign, edge_value, 0.0, None)
     smoothed_edge = _smoothed(loop_gain, edge)
-    motion = _motion_per_octave(frequency_hz, loop_gain, side)
+    motion = motion_per_octave(frequency_hz, loop_gain, side)
     if abs(smoothed_edge) < 1.0 and abs(edge_value) < 1.0:
         return EdgeClosure(side, "loop-gain-below-unity", 1, edge_value, motion, None)
     f_edge = 1.0 - smoothed_edge
@@ -180,7 +180,7 @@ def _smoothed(values: np.ndarray, index: int, half_width: int = 2) -> complex:
     return complex(np.median(window.real), np.median(window.imag))
 
 
-def _motion_per_octave(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> float:
+def motion_per_octave(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> float:
     """|ΔL| per octave over the outermost octave of the sweep (or the whole of a narrower one)."""
     last = frequency_hz.size - 1
     if side == "low":

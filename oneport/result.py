@@ -76,10 +76,12 @@ class InputRecord:
     version: str
     file_reference_impedance_ohm: float
     analysed_reference_impedance_ohm: float
+    preparation: tuple[str, ...] = ()
 
     def to_dict(self) -> dict[str, Any]:
         """JSON form of the record."""
         return {
+            "preparation": list(self.preparation),
             "role": self.role,
             "path": self.source,
             "sha256": self.sha256,

@@ -9,6 +9,7 @@ from __future__ import annotations
 import math
 import textwrap
 
+from .bound import BoundResult
 from .result import CheckResult
 from .units import format_frequency, to_decibels
 
@@ -48,6 +49,8 @@ def render(result: CheckResult) -> str:
             else ""
         )
         parts.append(f"  {record.role:<7} {record.source}")
+        if record.preparation:
+            parts.append(f"          {'; '.join(record.preparation)}")
         parts.append(
             f"          {record.parameter} {record.number_format}, Touchstone {record.version},"
             f" {record.points} points, {format_frequency(low)}-{format_frequency(high)},"
@@ -61,6 +64,9 @@ def render(result: CheckResult) -> str:
     )
     parts += ["", *_bands(result), "", *_crossings(result), "", *_margins(result), ""]
     parts += _closure(result)
+    parts += ["", *_diagnostics(result)]
+    if result.startup_estimates:
+        parts += ["", *_startup(result)]
     if result.warnings:
         parts += ["", "Warnings"]
         parts += [_wrap(f"[{w.code}] {w.message}", "  ") for w in result.warnings]
@@ -143,6 +149,90 @@ def _closure(result: CheckResult) -> list[str]:
     step = math.degrees(result.largest_phase_step_rad)
     rows.append(f"  largest phase step of 1 - L between samples: {step:.1f} deg")
     return rows
+
+
+def _diagnostics(result: CheckResult) -> list[str]:
+    rows = ["Sampling and measurement"]
+    for grid in result.grid_resolution:
+        rows.append(
+            f"  finest loaded Q the grid resolves: {grid.finest_resolvable_q:.0f}"
+            f" (step {format_frequency(grid.largest_step_hz)} near"
+            f" {format_frequency(grid.at_frequency_hz)})  {grid.source}"
+        )
+    rows.append(f"  scatter of L between neighbouring points: {result.noise_estimate:.2g}")
+    uncertainty = result.uncertainty
+    if uncertainty.device or uncertainty.load:
+        state = "the count is at stake" if uncertainty.count_at_stake else "the count is robust"
+        rows.append(
+            f"  stated |gamma| errors {uncertainty.device:g} (device), {uncertainty.load:g}"
+            f" (load): L may move by up to {uncertainty.largest_loop_gain_change:.3g}; smallest"
+            f" slack {uncertainty.smallest_slack:.3g} at"
+            f" {format_frequency(uncertainty.smallest_slack_frequency_hz)}: {state}"
+        )
+    return rows
+
+
+def _startup(result: CheckResult) -> list[str]:
+    rows = [
+        "Start-up estimates (Kurokawa, one Newton step; estimates beside the count)",
+        f"  {'form':<11}{'X=0 or B=0':>12}  {'estimate':>12}  {'growth /s':>11}  {'-Rd/RL':>7}"
+        f"  {'Q ext':>7}",
+    ]
+    for estimate in result.startup_estimates:
+        ratio = "" if estimate.resistance_ratio is None else f"{estimate.resistance_ratio:.2f}"
+        q = "" if estimate.external_q is None else f"{estimate.external_q:.1f}"
+        rows.append(
+            f"  {estimate.form:<11}{format_frequency(estimate.crossing_frequency_hz):>12}"
+            f"  {format_frequency(estimate.estimated_frequency_hz):>12}"
+            f"  {estimate.sigma_per_s:>11.3g}  {ratio:>7}  {q:>7}"
+            + ("  grows" if estimate.growing else "")
+        )
+    rows.append(
+        "  common practice for reliable start-up: |negative resistance| about 3 x the load's"
+        " (2 x for a cubic device)"
+    )
+    return rows
+
+
+def render_bound(result: BoundResult) -> str:
+    """The text report of a worst-case-load (return-loss bound) check."""
+    low, high = result.frequency_range_hz
+    headline = {
+        "stable": "GUARANTEED STABLE (small-signal) for the load class",
+        "unstable": "NOT GUARANTEED for the load class",
+        "inconclusive": "INCONCLUSIVE: the data cannot decide",
+    }[result.verdict]
+    parts = [
+        f"{headline}: return loss >= {result.load_return_loss_db:g} dB in"
+        f" {result.reference_impedance_ohm:g} ohm;"
+        f" {format_frequency(low)}-{format_frequency(high)}",
+        "",
+    ]
+    parts += [_wrap(reason, "  ") for reason in result.reasons]
+    parts += [
+        "",
+        f"Required load return loss (Z0 = {result.reference_impedance_ohm:g} ohm)",
+        f"  worst: {result.worst_required_return_loss_db:.2f} dB at"
+        f" {format_frequency(result.worst_frequency_hz)}",
+    ]
+    if result.failing_bands:
+        parts.append("  bands where the stated return loss is not enough:")
+        for band in result.failing_bands:
+            parts.append(
+                f"    {format_frequency(band.start_hz)}-{format_frequency(band.stop_hz)}"
+                f" (worst |gamma_d|*rho {band.peak_loop_gain:.3g} at"
+                f" {format_frequency(band.peak_frequency_hz)})"
+            )
+    if result.warnings:
+        parts += ["", "Warnings"]
+        parts += [_wrap(f"[{w.code}] {w.message}", "  ") for w in result.warnings]
+    if result.next_steps:
+        parts += ["", "What to do next"]
+        parts += [_wrap(step, "  - ") for step in result.next_steps]
+    parts += ["", "Premise", _wrap(result.premise, "  ")]
+    parts += ["", "Cautions"]
+    parts += [_wrap(caution, "  ! ") for caution in result.cautions]
+    return "\n".join(parts) + "\n"
 
 
 def _ohm(result: CheckResult) -> str:

@@ -3,12 +3,24 @@
 from __future__ import annotations
 
 import argparse
+from dataclasses import replace
 from typing import Any, TextIO
 
-from ..units import parse_quantity
+from ..errors import InputError
+from ..units import parse_decibels, parse_quantity
 from .common import add_output_options, write_json
 
 NAME = "check"
+
+_EPILOG = """examples:
+  oneport check diode.s1p --load bias_tee.s1p
+  oneport check diode.s1p --load bias_tee.s1p --json
+  oneport check diode.s1p --load-return-loss 15dB
+  oneport check fet.s2p --terminate-impedance 10ohm --load tank.s1p
+  oneport check diode.s1p --load bias.s1p --device-dc-resistance=-76ohm --load-dc-resistance 150
+  oneport check diode.s1p --load tank.s1p --device-delay=-12ps --gamma-uncertainty 0.01
+
+negative values: write them with '=' (--device-delay=-12ps)."""
 
 
 def add_parser(commands: Any) -> argparse.ArgumentParser:
@@ -17,37 +29,163 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         NAME,
         help="small-signal stability of a device into a load (Nyquist test)",
         description="Small-signal stability of a device one-port into a load one-port: the"
-        " Nyquist count of the loop gain L = gamma_device * gamma_load around +1.",
-        epilog="example: oneport check diode.s1p --load bias_tee.s1p --json",
+        " Nyquist count of the loop gain L = gamma_device * gamma_load around +1, in the"
+        " device's measurement impedance.",
+        epilog=_EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
     )
-    command.add_argument("device", help="the device's Touchstone one-port (.s1p or 2.x .ts)")
-    command.add_argument("--load", required=True, help="the load's Touchstone one-port")
+    command.add_argument("device", help="the device's Touchstone file (one-port, or see below)")
+    loads = command.add_mutually_exclusive_group(required=True)
+    loads.add_argument("--load", metavar="FILE", help="the load's Touchstone one-port")
+    loads.add_argument(
+        "--load-return-loss",
+        metavar="DB",
+        help="instead of a load file: is it stable into every passive load with at least"
+        " this return loss (e.g. 15dB)? small-gain bound",
+    )
     command.add_argument(
         "--measurement-impedance",
         metavar="OHMS",
         help="impedance the device was measured in, if its file was renormalised afterwards"
         " (e.g. 50ohm); default: the device file's reference",
     )
+    facts = command.add_argument_group("DC facts (close the contour towards DC; give both)")
+    facts.add_argument(
+        "--device-dc-resistance",
+        metavar="OHMS",
+        help="the device's small-signal resistance at DC: its I-V slope at the bias point",
+    )
+    facts.add_argument(
+        "--load-dc-resistance", metavar="OHMS", help="the load's (bias network's) DC resistance"
+    )
+    command.add_argument(
+        "--gamma-uncertainty",
+        metavar="X[,Y]",
+        help="worst-case absolute error of |gamma|: one value for both sides, or device,load",
+    )
+    device = command.add_argument_group("device as measured")
+    terminations = device.add_mutually_exclusive_group()
+    terminations.add_argument(
+        "--terminate", metavar="FILE", help="two-port device: terminate one port in this one-port"
+    )
+    terminations.add_argument(
+        "--terminate-impedance",
+        metavar="OHMS",
+        help="two-port device: terminate in this resistance",
+    )
+    terminations.add_argument(
+        "--differential-ports",
+        metavar="P,N[:P,N]",
+        help="balanced device measured single-ended: the port pair(s) of its differential port",
+    )
+    device.add_argument(
+        "--terminated-port", type=int, choices=(1, 2), default=2, help="which port (default 2)"
+    )
+    planes = command.add_argument_group("reference planes")
+    for side in ("device", "load"):
+        planes.add_argument(
+            f"--{side}-delay",
+            metavar="TIME",
+            help=f"add (negative: remove) a lossless line of this one-way delay on the {side}"
+            " side, e.g. 12ps",
+        )
+        planes.add_argument(
+            f"--{side}-fixture",
+            metavar="FILE",
+            help=f"de-embed this two-port fixture (port 1 at the instrument) from the {side}",
+        )
     add_output_options(command)
     return command
 
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the check and print it; return the verdict's exit code."""
-    from ..check import check
+    from ..bound import check_return_loss
+    from ..check import check, input_record
     from ..cli import verdict_exit_code
-    from ..text import render, verdict_line
+    from ..preparation import PortSetup, prepare
+    from ..text import render, render_bound, verdict_line
 
-    impedance = None
-    if arguments.measurement_impedance is not None:
-        impedance = parse_quantity(
-            arguments.measurement_impedance, "resistance", option="--measurement-impedance"
+    device = prepare(arguments.device, _device_setup(arguments), "device")
+    impedance = _resistance(arguments.measurement_impedance, "--measurement-impedance")
+    result: Any
+    if arguments.load_return_loss is not None:
+        if impedance is not None:
+            raise InputError("--measurement-impedance goes with --load, not --load-return-loss")
+        port = device.one_port
+        record = input_record("device", port, port.reference_impedance_ohm)
+        result = check_return_loss(
+            port,
+            parse_decibels(arguments.load_return_loss, option="--load-return-loss"),
+            replace(record, preparation=device.steps),
         )
-    result = check(arguments.device, arguments.load, measurement_impedance_ohm=impedance)
+        result = replace(result, warnings=result.warnings + device.findings)
+        text = render_bound(result)
+        line = text.splitlines()[0]
+    else:
+        load_setup = PortSetup(
+            fixture_path=arguments.load_fixture,
+            delay_s=_time(arguments.load_delay, "--load-delay"),
+        )
+        result = check(
+            device,
+            prepare(arguments.load, load_setup, "load"),
+            measurement_impedance_ohm=impedance,
+            device_dc_resistance_ohm=_resistance(
+                arguments.device_dc_resistance, "--device-dc-resistance"
+            ),
+            load_dc_resistance_ohm=_resistance(
+                arguments.load_dc_resistance, "--load-dc-resistance"
+            ),
+            gamma_uncertainty=_uncertainty(arguments.gamma_uncertainty),
+        )
+        text = render(result)
+        line = verdict_line(result)
     if arguments.json:
         write_json(result.to_dict(include_arrays=arguments.include_arrays), out)
     elif arguments.quiet:
-        print(verdict_line(result), file=out)
+        print(line, file=out)
     else:
-        out.write(render(result))
+        out.write(text)
     return verdict_exit_code(result.verdict)
+
+
+def _device_setup(arguments: argparse.Namespace) -> Any:
+    from ..planes import parse_port_pairs
+    from ..preparation import PortSetup
+
+    pairs: tuple[tuple[int, int], ...] = ()
+    if arguments.differential_ports is not None:
+        pairs = tuple(parse_port_pairs(arguments.differential_ports))
+    return PortSetup(
+        terminate_path=arguments.terminate,
+        terminate_impedance_ohm=_resistance(arguments.terminate_impedance, "--terminate-impedance"),
+        terminated_port=arguments.terminated_port,
+        differential_pairs=pairs,
+        fixture_path=arguments.device_fixture,
+        delay_s=_time(arguments.device_delay, "--device-delay"),
+    )
+
+
+def _resistance(text: str | None, option: str) -> float | None:
+    return None if text is None else parse_quantity(text, "resistance", option=option)
+
+
+def _time(text: str | None, option: str) -> float:
+    return 0.0 if text is None else parse_quantity(text, "time", option=option)
+
+
+def _uncertainty(text: str | None) -> float | tuple[float, float] | None:
+    if text is None:
+        return None
+    fields = text.split(",")
+    try:
+        values = [float(field) for field in fields]
+    except ValueError:
+        values = []
+    if len(values) not in (1, 2) or not all(0.0 <= v < 1.0 for v in values):
+        raise InputError(
+            f"--gamma-uncertainty: cannot read {text!r}; give an absolute |gamma| error in"
+            " [0, 1), e.g. 0.01, or device,load as 0.01,0.02"
+        )
+    return values[0] if len(values) == 1 else (values[0], values[1])
