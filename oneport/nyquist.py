@@ -144,44 +144,90 @@ def _reference_angle(sign: np.ndarray, imaginary: np.ndarray) -> np.ndarray:
     return np.where(np.asarray(sign) < 0, side * np.pi, 0.0)
 
 
-def close_edge(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> EdgeClosure:
-    """Decide whether the band can be closed towards DC (``"low"``) or infinity (``"high"``).
+#: Closure bases by code, as :func:`close_edges` returns them.
+CLOSURE_BASES = ("not-founded", "dc-sample", "loop-gain-below-unity", "settled")
 
-    L's motion beyond the edge is estimated from its motion over the outermost octave of the
-    sweep (per octave, from the sample at least an octave in, or the far end of a narrower
-    sweep), with both ends smoothed over a few samples so measurement noise does not pass for
-    motion. Near DC a settled L moves by less over the rest of the way to 0 Hz than over the
-    first octave, so the estimate is conservative there.
+
+@dataclass(frozen=True)
+class EdgeClosures:
+    """Vectorised closure of one edge for many loop gains (arrays of the leading shape)."""
+
+    basis_code: np.ndarray  # index into CLOSURE_BASES
+    sign_at_limit: np.ndarray  # +1, −1, or 0 when not founded
+    motion: np.ndarray
+
+    @property
+    def founded(self) -> np.ndarray:
+        """True where the closing assumption has a basis in the data."""
+        return self.basis_code != 0
+
+
+def close_edges(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> EdgeClosures:
+    """Decide, for every loop gain at once, whether its band closes towards DC or infinity.
+
+    ``loop_gain`` has shape (..., n); the result arrays have shape (...). The rules:
+
+    - ``dc-sample``: the low edge is 0 Hz; F(0) takes the sign of Re F there.
+    - ``loop-gain-below-unity``: |L| < 1 at the edge sample and in a five-point median there.
+    - ``settled``: L has stopped moving far from +1 — its motion per octave over the outermost
+      octave of the sweep (or the whole of a narrower one), and F's distance from the real
+      axis, are both below ``SETTLED_FRACTION`` of |F| at the edge (medians, so measurement
+      noise does not pass for motion). Near DC a settled L moves by less over the rest of the
+      way to 0 Hz than over its first octave, so the estimate errs on the safe side. F at the
+      limit takes the sign of Re F at the edge.
+    - otherwise ``not-founded``.
     """
-    n = frequency_hz.size
-    edge = 0 if side == "low" else n - 1
-    edge_value = complex(loop_gain[edge])
-    if side == "low" and frequency_hz[0] == 0.0:
-        sign = 1 if (1.0 - edge_value).real > 0 else -1
-        return EdgeClosure(side, "dc-sample", sign, edge_value, 0.0, None)
+    loop_gain = np.asarray(loop_gain, dtype=complex)
+    edge = 0 if side == "low" else frequency_hz.size - 1
+    edge_value = loop_gain[..., edge]
     smoothed_edge = _smoothed(loop_gain, edge)
     motion = motion_per_octave(frequency_hz, loop_gain, side)
-    if abs(smoothed_edge) < 1.0 and abs(edge_value) < 1.0:
-        return EdgeClosure(side, "loop-gain-below-unity", 1, edge_value, motion, None)
     f_edge = 1.0 - smoothed_edge
-    spread = max(motion, abs(f_edge.imag))
-    if spread < SETTLED_FRACTION * abs(f_edge):
-        sign = 1 if f_edge.real > 0 else -1
-        return EdgeClosure(side, "settled", sign, edge_value, motion, None)
-    count = min(n, max(4, n // 20))
-    outer = slice(0, count) if side == "low" else slice(n - count, n)
-    extend = _extend_to(frequency_hz[outer], loop_gain[outer], frequency_hz[edge], side)
-    return EdgeClosure(side, "not-founded", 0, edge_value, motion, extend)
+    below_unity = (np.abs(smoothed_edge) < 1.0) & (np.abs(edge_value) < 1.0)
+    spread = np.maximum(motion, np.abs(f_edge.imag))
+    settled = spread < SETTLED_FRACTION * np.abs(f_edge)
+    sign_of_real = np.where(f_edge.real > 0, 1, -1)
+    code = np.where(below_unity, 2, np.where(settled, 3, 0))
+    sign = np.where(below_unity, 1, np.where(settled, sign_of_real, 0))
+    if side == "low" and frequency_hz[0] == 0.0:
+        code = np.ones_like(code)
+        sign = np.where((1.0 - edge_value).real > 0, 1, -1)
+        motion = np.zeros_like(motion)
+    return EdgeClosures(code, sign, motion)
 
 
-def _smoothed(values: np.ndarray, index: int, half_width: int = 2) -> complex:
-    """Median of real and imaginary parts over a few samples around ``index``."""
-    window = values[max(0, index - half_width) : index + half_width + 1]
-    return complex(np.median(window.real), np.median(window.imag))
+def close_edge(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> EdgeClosure:
+    """The closure of one loop gain's edge (:func:`close_edges` for a single trace)."""
+    closures = close_edges(frequency_hz, loop_gain, side)
+    n = frequency_hz.size
+    edge = 0 if side == "low" else n - 1
+    basis = CLOSURE_BASES[int(closures.basis_code)]
+    extend = None
+    if basis == "not-founded":
+        count = min(n, max(4, n // 20))
+        outer = slice(0, count) if side == "low" else slice(n - count, n)
+        extend = _extend_to(frequency_hz[outer], loop_gain[outer], frequency_hz[edge], side)
+    return EdgeClosure(
+        side,
+        basis,
+        int(closures.sign_at_limit),
+        complex(loop_gain[edge]),
+        float(closures.motion),
+        extend,
+    )
 
 
-def motion_per_octave(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> float:
-    """|ΔL| per octave over the outermost octave of the sweep (or the whole of a narrower one)."""
+def _smoothed(values: np.ndarray, index: int, half_width: int = 2) -> np.ndarray:
+    """Median of real and imaginary parts over a few samples around ``index`` (last axis)."""
+    window = values[..., max(0, index - half_width) : index + half_width + 1]
+    return np.median(window.real, axis=-1) + 1j * np.median(window.imag, axis=-1)
+
+
+def motion_per_octave(frequency_hz: np.ndarray, values: np.ndarray, side: str) -> np.ndarray:
+    """|Δ| per octave over the outermost octave of the sweep (or the whole of a narrower one).
+
+    ``values`` has shape (..., n); the result has shape (...).
+    """
     last = frequency_hz.size - 1
     if side == "low":
         edge = 0
@@ -189,11 +235,14 @@ def motion_per_octave(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str
     else:
         edge = last
         inner = max(int(np.searchsorted(frequency_hz, 0.5 * frequency_hz[-1], side="right")) - 1, 0)
+    values = np.asarray(values)
+    if frequency_hz[edge] == 0 or frequency_hz[inner] == 0:
+        return np.zeros(values.shape[:-1])
     octaves = abs(np.log2(frequency_hz[inner] / frequency_hz[edge]))
     if octaves == 0:
-        return 0.0
-    change = abs(_smoothed(loop_gain, inner) - _smoothed(loop_gain, edge))
-    return float(change / octaves)
+        return np.zeros(values.shape[:-1])
+    change = np.abs(_smoothed(values, inner) - _smoothed(values, edge))
+    return change / octaves
 
 
 def _extend_to(f: np.ndarray, values: np.ndarray, edge_frequency: float, side: str) -> float:
