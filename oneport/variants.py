@@ -1,0 +1,167 @@
+"""The check for many variants at once: every array here has the variants on leading axes.
+
+A sweep or a Monte Carlo run hands over loop gains of shape (..., n) on one grid; this room
+returns per-variant arrays (count, verdict code, margins, oscillation frequency) computed with
+the same rules as the single check (``nyquist.close_edges``, ``nyquist.count_encirclements``,
+the unwrapping limit, and Foster's test on the load), so a variant's row equals what
+:func:`oneport.check` says of it. No Python loop over variants.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from . import nyquist
+from .diagnostics import FOSTER_JUMP_THRESHOLD
+
+#: Verdict codes in the per-variant arrays.
+VERDICT_CODES = ("stable", "unstable", "inconclusive")
+STABLE, UNSTABLE, INCONCLUSIVE = 0, 1, 2
+
+
+@dataclass(frozen=True)
+class VariantAnalysis:
+    """Per-variant results, each an array of the variants' leading shape.
+
+    ``encirclements`` is only meaningful where ``count_known``; ``oscillation_frequency_hz``
+    is the lowest clockwise crossing that carries the count (NaN where there is none), and
+    ``oscillatory_modes`` the number of such crossings.
+    """
+
+    verdict_code: np.ndarray
+    encirclements: np.ndarray
+    count_known: np.ndarray
+    latch_up: np.ndarray
+    oscillation_frequency_hz: np.ndarray
+    oscillatory_modes: np.ndarray
+    min_distance: np.ndarray
+    min_distance_frequency_hz: np.ndarray
+    worst_loop_gain: np.ndarray
+    worst_loop_gain_frequency_hz: np.ndarray
+    largest_phase_step_rad: np.ndarray
+    low_closure_code: np.ndarray
+    high_closure_code: np.ndarray
+    hidden_resonance: np.ndarray
+
+    def verdicts(self) -> np.ndarray:
+        """The verdict words, as an array of str."""
+        return np.asarray(VERDICT_CODES, dtype=object)[self.verdict_code]
+
+
+def analyse_variants(
+    frequency_hz: np.ndarray,
+    gamma_device: np.ndarray,
+    gamma_load: np.ndarray,
+    reference_impedance_ohm: float,
+    dc_sign: int | None = None,
+) -> VariantAnalysis:
+    """The single check's analysis for every variant at once.
+
+    Parameters
+    ----------
+    frequency_hz : ndarray, shape (n,)
+        The common grid, Hz.
+    gamma_device, gamma_load : ndarray of complex, shapes broadcasting to (..., n)
+        Both referred to ``reference_impedance_ohm`` (the device's measurement impedance).
+    dc_sign : {+1, −1}, optional
+        The sign of F(0) from stated DC resistances, overriding the data's low-edge closure.
+    """
+    gamma_device = np.asarray(gamma_device, dtype=complex)
+    gamma_load = np.asarray(gamma_load, dtype=complex)
+    loop_gain = gamma_device * gamma_load
+    low = nyquist.close_edges(frequency_hz, loop_gain, "low")
+    high = nyquist.close_edges(frequency_hz, loop_gain, "high")
+    low_code, low_sign = low.basis_code, low.sign_at_limit
+    if dc_sign is not None:
+        low_code = np.full(low_code.shape, -1)  # the DC facts: founded, outside CLOSURE_BASES
+        low_sign = np.full(low_sign.shape, dc_sign)
+    step = nyquist.largest_phase_step(loop_gain)
+    known = (low_code != 0) & high.founded & (step <= nyquist.UNSAFE_PHASE_STEP_RAD)
+    count = nyquist.count_encirclements(
+        loop_gain,
+        np.where(low_sign == 0, 1, low_sign),
+        np.where(high.sign_at_limit == 0, 1, high.sign_at_limit),
+    )
+    hidden = _hidden_resonance_at_stake(gamma_device, gamma_load, loop_gain.shape)
+    verdict = np.where(
+        ~known | (count < 0),
+        INCONCLUSIVE,
+        np.where(count == 0, STABLE, UNSTABLE),
+    )
+    verdict = np.where(hidden & (verdict != INCONCLUSIVE), INCONCLUSIVE, verdict)
+    frequency, modes = _carrying_crossings(frequency_hz, loop_gain)
+    unstable = known & (count > 0)
+    distance = np.abs(1.0 - loop_gain)
+    closest = np.argmin(distance, axis=-1)
+    magnitude = np.abs(loop_gain)
+    loudest = np.argmax(magnitude, axis=-1)
+    return VariantAnalysis(
+        verdict_code=verdict,
+        encirclements=np.where(known, count, 0),
+        count_known=known,
+        latch_up=known & (count % 2 == 1),
+        oscillation_frequency_hz=np.where(unstable, frequency, np.nan),
+        oscillatory_modes=np.where(unstable, modes, 0),
+        min_distance=np.take_along_axis(distance, closest[..., None], -1)[..., 0],
+        min_distance_frequency_hz=frequency_hz[closest],
+        worst_loop_gain=np.take_along_axis(magnitude, loudest[..., None], -1)[..., 0],
+        worst_loop_gain_frequency_hz=frequency_hz[loudest],
+        largest_phase_step_rad=step,
+        low_closure_code=low_code,
+        high_closure_code=high.basis_code,
+        hidden_resonance=hidden,
+    )
+
+
+def _carrying_crossings(
+    frequency_hz: np.ndarray, loop_gain: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
+    """Lowest clockwise crossing beyond +1 that survives cancellation, and how many survive.
+
+    The same as :func:`oneport.nyquist.net_crossings`, vectorised: with S the running sum of
+    crossing directions (+1 clockwise), a clockwise crossing k survives when S before it is
+    ≥ 0 and S never falls below S_k afterwards.
+    """
+    imaginary = loop_gain.imag
+    a, b = imaginary[..., :-1], imaginary[..., 1:]
+    upward = (a < 0) & (b >= 0)
+    downward = (a >= 0) & (b < 0)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t = np.where(upward | downward, a / (a - b), 0.0)
+    real_at = loop_gain.real[..., :-1] + t * (loop_gain.real[..., 1:] - loop_gain.real[..., :-1])
+    beyond = real_at > 1.0
+    direction = np.where(beyond & downward, 1, 0) - np.where(beyond & upward, 1, 0)
+    running = np.cumsum(direction, axis=-1)
+    before = running - direction
+    later_minimum = np.minimum.accumulate(running[..., ::-1], axis=-1)[..., ::-1]
+    survives = (direction == 1) & (before >= 0) & (later_minimum >= running)
+    frequency = frequency_hz[:-1] + t * np.diff(frequency_hz)
+    first = np.argmax(survives, axis=-1)
+    lowest = np.take_along_axis(frequency, first[..., None], -1)[..., 0]
+    modes = survives.sum(axis=-1)
+    return np.where(modes > 0, lowest, np.nan), modes
+
+
+def _hidden_resonance_at_stake(
+    gamma_device: np.ndarray, gamma_load: np.ndarray, shape: tuple[int, ...]
+) -> np.ndarray:
+    """Foster's test on the load (on the common grid), where the device has |Γd| ≥ 1 nearby."""
+    gamma_load = np.broadcast_to(gamma_load, shape)
+    gamma_device = np.broadcast_to(gamma_device, shape)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        z = (1.0 + gamma_load) / (1.0 - gamma_load)  # normalised to Z0
+        reactance = z.imag
+        susceptance = (1.0 / z).imag
+    jumps = np.zeros((*shape[:-1], shape[-1] - 1), dtype=bool)
+    for values in (reactance, susceptance):
+        jumps |= (values[..., :-1] > FOSTER_JUMP_THRESHOLD) & (
+            values[..., 1:] < -FOSTER_JUMP_THRESHOLD
+        )
+    gain = np.abs(gamma_device) >= 1.0
+    # The single check looks at |Γd| in the interval and one sample either side.
+    near = gain[..., :-1] | gain[..., 1:]
+    near[..., 1:] |= gain[..., :-2]
+    near[..., :-1] |= gain[..., 2:]
+    return np.any(jumps & near, axis=-1)

@@ -1,0 +1,69 @@
+"""The vectorised variant analysis equals the single check, variant by variant."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import oneport
+from oneport.variants import VERDICT_CODES, analyse_variants
+
+Z0 = 50.0
+
+
+def _gamma(impedance: np.ndarray) -> np.ndarray:
+    return (impedance - Z0) / (impedance + Z0)
+
+
+def _device(s: np.ndarray) -> np.ndarray:
+    """A tunnel-diode-like one-port Rs + sLs + (−Rd ∥ Cj), stable in 50 ohm."""
+    return 4.0 + s * 0.6e-9 + 1.0 / (-1.0 / 80.0 + s * 2e-12)
+
+
+@pytest.fixture(scope="module")
+def family() -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Series R-L-C loads spanning stable, oscillating and latch-up cases (invented values)."""
+    rng = np.random.default_rng(7)
+    frequency_hz = np.linspace(1e6, 8e9, 1601)
+    s = 2j * np.pi * frequency_hz
+    count = 60
+    resistance = rng.uniform(0.0, 200.0, count)[:, None]
+    inductance = rng.uniform(0.2e-9, 12e-9, count)[:, None]
+    # Some loads have a 10 pF DC block in series; the others none (elastance 0).
+    elastance = np.where(rng.random(count) < 0.3, 1 / 10e-12, 0.0)[:, None]
+    loads = resistance + s * inductance + elastance / s
+    return frequency_hz, _gamma(_device(s)), _gamma(loads)
+
+
+def test_every_variant_matches_a_single_check(family):
+    frequency_hz, gamma_device, gamma_load = family
+    analysis = analyse_variants(frequency_hz, gamma_device, gamma_load, Z0)
+    device = oneport.OnePort(frequency_hz, gamma_device, Z0, "device")
+    seen = set()
+    for index in range(gamma_load.shape[0]):
+        load = oneport.OnePort(frequency_hz, gamma_load[index], Z0, f"load {index}")
+        single = oneport.check(device, load)
+        assert VERDICT_CODES[analysis.verdict_code[index]] == single.verdict
+        seen.add(single.verdict)
+        if single.encirclements is not None:
+            assert analysis.count_known[index]
+            assert analysis.encirclements[index] == single.encirclements
+            assert analysis.latch_up[index] == single.latch_up
+        if single.oscillation_frequencies_hz:
+            assert analysis.oscillation_frequency_hz[index] == pytest.approx(
+                single.oscillation_frequencies_hz[0], rel=1e-12
+            )
+            assert analysis.oscillatory_modes[index] == len(single.oscillation_frequencies_hz)
+        else:
+            assert np.isnan(analysis.oscillation_frequency_hz[index])
+        assert analysis.min_distance[index] == pytest.approx(single.margins.modulus_margin)
+    assert {"stable", "unstable"} <= seen  # the family exercises both outcomes
+
+
+def test_leading_axes_broadcast(family):
+    frequency_hz, gamma_device, gamma_load = family
+    flat = analyse_variants(frequency_hz, gamma_device, gamma_load, Z0)
+    grid = analyse_variants(frequency_hz, gamma_device, gamma_load.reshape(6, 10, -1), Z0)
+    assert grid.verdict_code.shape == (6, 10)
+    np.testing.assert_array_equal(grid.verdict_code.reshape(-1), flat.verdict_code)
+    np.testing.assert_array_equal(grid.encirclements.reshape(-1), flat.encirclements)
