@@ -68,6 +68,17 @@ def build_parser() -> tuple[argparse.ArgumentParser, dict[str, ModuleType]]:
     return parser, modules
 
 
+def _silence_stdout() -> None:
+    """Point stdout at /dev/null so the interpreter's final flush cannot fail again."""
+    import os
+
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError):
+        pass
+
+
 def main(
     argv: Sequence[str] | None = None, stdout: TextIO | None = None, stderr: TextIO | None = None
 ) -> int:
@@ -98,3 +109,7 @@ def main(
     except KeyboardInterrupt:
         print("oneport: interrupted", file=err)
         return ExitCode.INTERRUPTED
+    except BrokenPipeError:
+        # The reader of our output went away (``oneport ... | head``): nothing left to say.
+        _silence_stdout()
+        return ExitCode.HOLDS

@@ -30,6 +30,9 @@ _FREQUENCY_UNITS = {"hz": 1.0, "khz": 1e3, "mhz": 1e6, "ghz": 1e9}
 _PARAMETERS = ("s", "y", "z")
 _FORMATS = ("ri", "ma", "db")
 _PORTS_FROM_SUFFIX = re.compile(r"^\.s(\d+)p$", re.IGNORECASE)
+_ASCII_NUMBER = re.compile(r"^[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$")
+#: Levels beyond this in a DB file are not measurements (10^(400/20) = 1e20).
+_LARGEST_DECIBELS = 400.0
 
 
 @dataclass(frozen=True)
@@ -109,6 +112,8 @@ class _Header:
     matrix_format: str = "full"
     declared_frequencies: int | None = None
     option_line: int | None = None
+    ports_line: int | None = None
+    frequencies_line: int | None = None
 
 
 def read_one_port(path: str | Path) -> OnePort:
@@ -282,6 +287,7 @@ def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header
             name,
             f"is a {ports}-port file; a one-port is needed: terminate the other port(s) with"
             " --terminate FILE or --terminate-impedance OHMS, or save S11 alone as a .s1p",
+            header.ports_line,
         )
     if header.parameter not in _PARAMETERS:
         raise FileFormatError(
@@ -306,7 +312,17 @@ def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header
             name,
             f"[Number of Frequencies] says {header.declared_frequencies} but the file holds"
             f" {len(records)} frequency points",
+            header.frequencies_line,
         )
+    if header.number_format == "db":
+        for number, values in records:
+            if max(abs(v) for v in values[1::2]) > _LARGEST_DECIBELS:
+                raise FileFormatError(
+                    name,
+                    f"a level beyond {_LARGEST_DECIBELS:g} dB is not a measurement; DB data hold"
+                    " 20*log10|value| and an angle in degrees",
+                    number,
+                )
     return header, frequency_hz
 
 
@@ -382,8 +398,10 @@ def _keyword(name: str, number: int, keyword: str, rest: str, header: _Header) -
         header.version = rest
     elif keyword == "number of ports":
         header.ports = _whole_number(name, number, keyword, rest)
+        header.ports_line = number
     elif keyword == "number of frequencies":
         header.declared_frequencies = _whole_number(name, number, keyword, rest)
+        header.frequencies_line = number
     elif keyword == "reference":
         values = _numbers(name, number, rest) if rest else []
         header.references = [_positive_reference(name, number, v) for v in values]
@@ -433,12 +451,19 @@ def _option_line(name: str, number: int, content: str, header: _Header) -> None:
 def _numbers(name: str, number: int, content: str) -> list[float]:
     values = []
     for token in content.split():
-        try:
-            value = float(token)
-        except ValueError:
+        if not _ASCII_NUMBER.match(token):
+            if token.lower().lstrip("+-") in ("nan", "inf", "infinity"):
+                raise FileFormatError(
+                    name,
+                    f"value {token!r} is not finite; NaN and infinity are not accepted",
+                    number,
+                )
             raise FileFormatError(
-                name, f"{token!r} is not a number; data lines hold numbers only", number
-            ) from None
+                name,
+                f"{token!r} is not a number; data lines hold plain numbers (e.g. 1.5, -2e-3)",
+                number,
+            )
+        value = float(token)
         if not math.isfinite(value):
             raise FileFormatError(
                 name, f"value {token!r} is not finite; NaN and infinity are not accepted", number
@@ -502,7 +527,7 @@ def _convert_with_scikit_rf(
     """
     from skrf.io.touchstone import Touchstone
 
-    buffer = io.StringIO(_without_information_block(text))
+    buffer = io.StringIO(_canonical_option_line(_without_information_block(text), header))
     # scikit-rf takes the port count of a 1.x file from the name of the file object.
     buffer.name = f"data.s{len(header.references)}p" if header.version == "1.x" else "data.ts"
     try:
@@ -533,6 +558,28 @@ def _normalised_admittance_to_s(parsed: Any) -> np.ndarray:
         y = np.transpose(y, (0, 2, 1))  # 1.x two-ports list N11 N21 N12 N22
     identity = np.eye(ports)
     return np.linalg.solve(identity + y, identity - y)
+
+
+def _canonical_option_line(text: str, header: _Header) -> str:
+    """The text with its first option line written in the usual order, the others dropped.
+
+    The specification lets the option line's entries come in any order; scikit-rf's reader
+    expects the usual one. Entries were validated and stored in ``header`` already.
+    """
+    option = (
+        f"# {header.unit.upper()} {header.parameter.upper()} {header.number_format.upper()}"
+        f" R {header.reference!r}"
+    )
+    lines = []
+    seen = False
+    for line in text.splitlines():
+        if line.split("!", 1)[0].strip().startswith("#"):
+            if not seen:
+                lines.append(option)
+            seen = True
+        else:
+            lines.append(line)
+    return "\n".join(lines) + "\n"
 
 
 def _without_information_block(text: str) -> str:
