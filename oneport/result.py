@@ -155,6 +155,26 @@ class CheckResult:
         """The analysed band, Hz."""
         return float(self.frequency_hz[0]), float(self.frequency_hz[-1])
 
+    def plot(self, kind: str = "nyquist", ax: Any = None, **options: Any) -> Any:
+        """Draw the result: ``kind`` is ``"nyquist"``, ``"loop-gain"`` or ``"smith"``.
+
+        Returns the matplotlib figure; ``ax`` draws into existing axes. Options go to
+        :func:`oneport.plots.plot_nyquist` (``compress_radius``), ``plot_loop_gain``
+        (``log_frequency``) or ``plot_smith`` (``max_radius``).
+        """
+        from . import plots
+
+        drawers = {
+            "nyquist": plots.plot_nyquist,
+            "loop-gain": plots.plot_loop_gain,
+            "smith": plots.plot_smith,
+        }
+        if kind not in drawers:
+            from .errors import InputError
+
+            raise InputError(f"plot kind {kind!r}: accepted: {', '.join(drawers)}")
+        return drawers[kind](self, ax=ax, **options)
+
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
         """The ``oneport.check/1`` JSON object (plain Python types only)."""
         z0 = self.reference_impedance_ohm

@@ -94,6 +94,13 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
             metavar="FILE",
             help=f"de-embed this two-port fixture (port 1 at the instrument) from the {side}",
         )
+    pictures = command.add_argument_group("pictures")
+    pictures.add_argument(
+        "--plot", metavar="FILE", help="also write the quick-look plot (.png or .svg)"
+    )
+    pictures.add_argument(
+        "--report", metavar="FILE", help="also write a self-contained HTML report"
+    )
     add_output_options(command)
     return command
 
@@ -110,8 +117,11 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     impedance = _resistance(arguments.measurement_impedance, "--measurement-impedance")
     result: Any
     if arguments.load_return_loss is not None:
-        if impedance is not None:
-            raise InputError("--measurement-impedance goes with --load, not --load-return-loss")
+        if impedance is not None or arguments.plot or arguments.report:
+            raise InputError(
+                "--measurement-impedance, --plot and --report go with --load, not with"
+                " --load-return-loss"
+            )
         port = device.one_port
         record = input_record("device", port, port.reference_impedance_ohm)
         result = check_return_loss(
@@ -141,6 +151,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         )
         text = render(result)
         line = verdict_line(result)
+        _pictures(result, arguments)
     if arguments.json:
         write_json(result.to_dict(include_arrays=arguments.include_arrays), out)
     elif arguments.quiet:
@@ -148,6 +159,17 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     else:
         out.write(text)
     return verdict_exit_code(result.verdict)
+
+
+def _pictures(result: Any, arguments: argparse.Namespace) -> None:
+    if arguments.plot:
+        from ..plots import save_plots
+
+        save_plots(result, arguments.plot)
+    if arguments.report:
+        from ..report import write_report
+
+        write_report(result, arguments.report)
 
 
 def _device_setup(arguments: argparse.Namespace) -> Any:

@@ -1,0 +1,115 @@
+"""``oneport watch``: check each device file dropped into a folder against one load."""
+
+from __future__ import annotations
+
+import argparse
+import time
+from collections.abc import Callable
+from pathlib import Path
+from typing import Any, TextIO
+
+from ..units import parse_quantity
+
+NAME = "watch"
+
+
+def add_parser(commands: Any) -> argparse.ArgumentParser:
+    """Register ``watch`` and its options."""
+    command: argparse.ArgumentParser = commands.add_parser(
+        NAME,
+        help="check every new or changed device file in a folder against one load",
+        description="Watch FOLDER and check each new or changed Touchstone file (.s1p, .ts)"
+        " against the load, once its size and time stamp have stayed the same for one polling"
+        " interval. Prints one verdict line per file; stop with Ctrl-C (exit code 130).",
+        epilog="example: oneport watch bench/ --load bias_tee.s1p --report-dir reports/",
+    )
+    command.add_argument("folder", help="the folder the device files arrive in")
+    command.add_argument("--load", required=True, help="the load's Touchstone one-port")
+    command.add_argument(
+        "--report-dir",
+        metavar="DIR",
+        help="write an HTML report per file into DIR (made if missing), named <file>.html",
+    )
+    command.add_argument(
+        "--interval",
+        metavar="SECONDS",
+        default="1s",
+        help="polling interval, and how long a file must stay unchanged (default 1s)",
+    )
+    command.add_argument(
+        "--traceback", action="store_true", help="show Python tracebacks for errors (debugging)"
+    )
+    return command
+
+
+def run(arguments: argparse.Namespace, out: TextIO) -> int:
+    """Watch until interrupted; Ctrl-C reaches the CLI, which exits with 130."""
+    interval_s = parse_quantity(arguments.interval, "time", option="--interval")
+    return watch_folder(arguments.folder, arguments.load, arguments.report_dir, interval_s, out)
+
+
+def watch_folder(
+    folder: str | Path,
+    load: str | Path,
+    report_dir: str | Path | None,
+    interval_s: float,
+    out: TextIO,
+    *,
+    clock: Callable[[], float] = time.monotonic,
+    sleep: Callable[[float], None] = time.sleep,
+    max_polls: int | None = None,
+) -> int:
+    """Watch ``folder``, print a line per checked file; return 0 when ``max_polls`` ran out.
+
+    The load is read once first, so a bad load stops the command at once (exit 2); after that,
+    a file that cannot be checked prints ``oneport: <error>`` and the watch goes on.
+    """
+    from ..touchstone import read_one_port
+    from ..watch import FolderWatcher, run_watch
+
+    read_one_port(load)
+    reports = _report_folder(report_dir)
+    watcher = FolderWatcher(folder, interval_s, ignore=(load,))
+    print(
+        f"watching {watcher.folder} every {interval_s:g} s against {load} (Ctrl-C stops)",
+        file=out,
+        flush=True,
+    )
+
+    def handle(path: Path) -> None:
+        _check_and_print(path, load, reports, out)
+
+    run_watch(watcher, handle, clock=clock, sleep=sleep, max_polls=max_polls)
+    return 0
+
+
+def _report_folder(report_dir: str | Path | None) -> Path | None:
+    from ..errors import InputError
+
+    if report_dir is None:
+        return None
+    folder = Path(report_dir)
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as error:
+        raise InputError(f"--report-dir: {folder} cannot be made ({error.strerror})") from None
+    return folder
+
+
+def _check_and_print(path: Path, load: str | Path, reports: Path | None, out: TextIO) -> None:
+    from ..errors import OneportError
+    from ..text import verdict_line
+    from ..watch import check_file
+
+    outcome = check_file(path, load)
+    if outcome.result is None:
+        print(f"oneport: {outcome.error}", file=out, flush=True)
+        return
+    print(f"{path.name}: {verdict_line(outcome.result)}", file=out, flush=True)
+    if reports is not None:
+        from ..report import write_report
+
+        try:
+            write_report(outcome.result, reports / f"{path.name}.html")
+        except OneportError as error:
+            print(f"oneport: {error}", file=out, flush=True)
