@@ -261,6 +261,20 @@ def save_plots(result: CheckResult, path: str | Path) -> Path:
     InputError
         For another suffix, or when the file cannot be written.
     """
+    target, image_format = _image_target(path)
+    write_atomically(target, figure_bytes(quick_look_figure(result), image_format))
+    return target
+
+
+def save_figure(figure: Figure, path: str | Path) -> Path:
+    """Write any figure of the package to ``path`` (``.png`` or ``.svg``), whole or not at all."""
+    target, image_format = _image_target(path)
+    write_atomically(target, figure_bytes(figure, image_format))
+    return target
+
+
+def _image_target(path: str | Path) -> tuple[Path, str]:
+    """The target path and image format, checked before anything is drawn."""
     target = Path(path)
     image_format = _SAVE_FORMATS.get(target.suffix.lower())
     if image_format is None:
@@ -269,9 +283,7 @@ def save_plots(result: CheckResult, path: str | Path) -> Path:
             " give a file name ending in .png or .svg"
         )
     require_folder(target)
-    figure = quick_look_figure(result)
-    write_atomically(target, figure_bytes(figure, image_format))
-    return target
+    return target, image_format
 
 
 def quick_look_figure(result: CheckResult) -> Figure:

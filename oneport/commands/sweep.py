@@ -1,0 +1,337 @@
+"""``oneport sweep``: the check over a grid of netlist parameters, a Monte Carlo run over
+tolerances, or a list of measured devices — vectorised, chunked, optionally on Dask."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from typing import Any, TextIO
+
+import numpy as np
+
+from ..errors import InputError
+from ..units import parse_quantity
+from .common import write_json
+
+NAME = "sweep"
+
+_EPILOG = """examples:
+  oneport sweep diode.s1p --load tank.cir --vary Lbias=10nH:100nH:31 --vary Rb=20:200:31
+  oneport sweep diode.s1p --load tank.cir --tolerance Ct=5% --tolerance Lt=10% --samples 10000
+  oneport sweep bias_a.s1p bias_b.s1p bias_c.s1p --load tank.s1p
+  oneport sweep diode.s1p --load tank.cir --vary Lt=1n:5n:101 --workers 2 -o table.parquet"""
+
+
+def add_parser(commands: Any) -> argparse.ArgumentParser:
+    """Register ``sweep`` and its options."""
+    command: argparse.ArgumentParser = commands.add_parser(
+        NAME,
+        help="the check over parameter grids, tolerances or several devices",
+        description="Run the stability check for many variants at once: a grid over netlist"
+        " parameters (--vary), a Monte Carlo run over tolerances (--tolerance), or a list of"
+        " measured device files. One row per variant goes to a Parquet (or CSV) table.",
+        epilog=_EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    command.add_argument("devices", nargs="+", help="device Touchstone file(s) or one .cir netlist")
+    command.add_argument(
+        "--load", required=True, help="the load: a Touchstone file or a .cir netlist"
+    )
+    command.add_argument(
+        "--vary",
+        action="append",
+        default=[],
+        metavar="NAME=START:STOP:COUNT",
+        help="sweep a netlist parameter (repeatable; all combinations are run)",
+    )
+    command.add_argument(
+        "--log", action="append", default=[], metavar="NAME", help="sweep NAME geometrically"
+    )
+    command.add_argument(
+        "--tolerance",
+        action="append",
+        default=[],
+        metavar="NAME=PERCENT%",
+        help="Monte Carlo: vary NAME within ±PERCENT of its netlist value (repeatable)",
+    )
+    command.add_argument(
+        "--distribution",
+        choices=("uniform", "normal"),
+        default="uniform",
+        help="uniform within ±tol (default), or normal with sigma = tol/3 truncated at ±tol",
+    )
+    command.add_argument(
+        "--samples", type=int, default=1000, help="Monte Carlo variants (default 1000)"
+    )
+    command.add_argument("--seed", type=int, default=1, help="random seed (default 1): runs repeat")
+    grid = command.add_argument_group("frequency grid when both sides are netlists")
+    grid.add_argument("--start", help="e.g. 1MHz")
+    grid.add_argument("--stop", help="e.g. 6GHz")
+    grid.add_argument("--points", type=int, default=2001)
+    grid.add_argument("--spacing", choices=("linear", "log"), default="linear")
+    facts = command.add_argument_group("DC facts (give both)")
+    facts.add_argument("--device-dc-resistance", metavar="OHMS")
+    facts.add_argument("--load-dc-resistance", metavar="OHMS")
+    command.add_argument(
+        "--reference-impedance",
+        metavar="OHMS",
+        help="Z0 when both sides are netlists (default 50ohm)",
+    )
+    out = command.add_argument_group("output")
+    out.add_argument(
+        "-o", "--output", metavar="FILE", help="the per-variant table (.parquet or .csv)"
+    )
+    out.add_argument(
+        "--plot", metavar="FILE", help="stability map or margin histogram (.png, .svg)"
+    )
+    out.add_argument("--json", action="store_true", help="print the summary as one JSON object")
+    out.add_argument("--quiet", "-q", action="store_true", help="print the verdict line only")
+    run_group = command.add_argument_group("where it runs")
+    run_group.add_argument(
+        "--scheduler", metavar="tcp://HOST:PORT", help="a running Dask scheduler"
+    )
+    run_group.add_argument("--workers", type=int, help="start a local Dask cluster with N workers")
+    run_group.add_argument(
+        "--chunk-size", type=int, help="variants per chunk (default: about 2e6 samples)"
+    )
+    command.add_argument("--traceback", action="store_true", help="show tracebacks (debugging)")
+    return command
+
+
+def run(arguments: argparse.Namespace, out: TextIO) -> int:
+    """Plan, run, write the table and print the summary; exit code per the conventions."""
+    from ..cli import ExitCode
+    from ..sweep.runner import run_sweep
+    from ..sweep.summary import summarise, summary_dict
+    from ..sweep.table import write_table
+
+    setup = _setup(arguments)
+    plan = _plan(arguments, setup)
+    progress, close = _progress(plan.variants)
+    try:
+        result = run_sweep(
+            plan,
+            setup["source"],
+            setup["frequency_hz"],
+            setup["z0"],
+            dc_sign=setup["dc_sign"],
+            chunk_size=arguments.chunk_size,
+            scheduler=arguments.scheduler,
+            workers=arguments.workers,
+            progress=progress,
+        )
+    finally:
+        close()
+    summary = summarise(result)
+    table_path = None
+    if arguments.output and result.completed:
+        table_path = str(write_table(result.table, arguments.output))
+    if arguments.plot and result.completed:
+        from ..plots import save_figure
+        from ..sweep.plots import plot_sweep
+
+        save_figure(plot_sweep(result), arguments.plot)
+    if arguments.json:
+        write_json(summary_dict(result, summary, setup["inputs"], table_path), out)
+    else:
+        out.write(_render(result, summary, table_path, arguments.quiet))
+    if result.interrupted:
+        return ExitCode.INTERRUPTED
+    return {"stable": ExitCode.HOLDS, "unstable": ExitCode.FAILS}.get(
+        summary.verdict, ExitCode.INCONCLUSIVE
+    )
+
+
+def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
+    from ..alignment import align, renormalise
+    from ..circuit import is_circuit_path, read_circuit
+    from ..sweep.sources import LoopSource, Side
+    from ..touchstone import read_one_port
+
+    device_paths = arguments.devices
+    device_circuit = None
+    if len(device_paths) == 1 and is_circuit_path(device_paths[0]):
+        device_circuit = read_circuit(device_paths[0])
+    elif any(is_circuit_path(path) for path in device_paths):
+        raise InputError("sweep: give one device netlist, or one or more Touchstone files")
+    load_circuit = read_circuit(arguments.load) if is_circuit_path(arguments.load) else None
+    inputs = [{"role": "device", "path": p} for p in device_paths] + [
+        {"role": "load", "path": arguments.load}
+    ]
+
+    if device_circuit is None:
+        devices = [read_one_port(path) for path in device_paths]
+        first = devices[0]
+        frequency_hz, z0 = first.frequency_hz, first.reference_impedance_ohm
+        gammas = []
+        for device in devices:
+            if device.reference_impedance_ohm != z0:
+                raise InputError(
+                    f"{device.source}: referred to {device.reference_impedance_ohm:g} ohm, the"
+                    f" first device to {z0:g} ohm; give device files of one reference impedance"
+                )
+            pair = align(first, device)
+            if pair.frequency_hz.size != frequency_hz.size:
+                raise InputError(
+                    f"{device.source}: does not cover {first.source}'s band; device files must"
+                    " cover the same frequencies"
+                )
+            gammas.append(pair.gamma_load)
+        device_side = Side(gamma=np.stack(gammas) if len(gammas) > 1 else first.gamma)
+    else:
+        if load_circuit is None:
+            load = read_one_port(arguments.load)
+            frequency_hz = load.frequency_hz
+            z0 = _resistance(arguments.reference_impedance) or 50.0
+        else:
+            frequency_hz = _grid(arguments)
+            z0 = _resistance(arguments.reference_impedance) or 50.0
+        device_side = Side(circuit=device_circuit, parameters=tuple(device_circuit.parameters))
+
+    if load_circuit is not None:
+        load_side = Side(circuit=load_circuit, parameters=tuple(load_circuit.parameters))
+    else:
+        load = read_one_port(arguments.load)
+        if device_circuit is None:
+            pair = align(devices[0], load)
+            if pair.frequency_hz.size != frequency_hz.size:
+                frequency_hz = pair.frequency_hz
+                inside = np.isin(devices[0].frequency_hz, frequency_hz)
+                device_side = Side(
+                    gamma=device_side.gamma[..., inside] if device_side.gamma is not None else None
+                )
+            load_side = Side(gamma=pair.gamma_load)
+        else:
+            load_side = Side(gamma=renormalise(load.gamma, load.reference_impedance_ohm, z0))
+    dc_sign = _dc_sign(arguments, z0)
+    source = LoopSource(frequency_hz, z0, device_side, load_side)
+    return {
+        "source": source,
+        "frequency_hz": frequency_hz,
+        "z0": z0,
+        "dc_sign": dc_sign,
+        "devices": len(device_paths) if device_circuit is None else 1,
+        "inputs": inputs,
+        "parameters": {
+            **(device_circuit.parameters if device_circuit is not None else {}),
+            **(load_circuit.parameters if load_circuit is not None else {}),
+        },
+    }
+
+
+def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
+    from ..sweep.plan import grid_plan, monte_carlo_plan, parse_tolerance, parse_vary
+    from ..sweep.sources import DEVICE_INDEX
+
+    known = {name.lower(): name for name in setup["parameters"]}
+    if arguments.vary and arguments.tolerance:
+        raise InputError("sweep: give --vary (a grid) or --tolerance (Monte Carlo), not both")
+    specifications = [parse_vary(text) for text in arguments.vary]
+    tolerances = [parse_tolerance(text) for text in arguments.tolerance]
+    for name in [s[0] for s in specifications] + [t[0] for t in tolerances]:
+        if name.lower() not in known:
+            listed = ", ".join(setup["parameters"]) or "none (no netlist parameters)"
+            raise InputError(f"sweep: no netlist parameter {name!r} (known: {listed})")
+    specifications = [(known[s[0].lower()], *s[1:]) for s in specifications]
+    tolerances = [(known[t[0].lower()], t[1]) for t in tolerances]
+    if setup["devices"] > 1:
+        specifications.insert(0, (DEVICE_INDEX, 0.0, setup["devices"] - 1.0, setup["devices"]))
+        if tolerances:
+            raise InputError("sweep: Monte Carlo over a list of device files is not supported")
+    if tolerances:
+        return monte_carlo_plan(
+            tolerances,
+            setup["parameters"],
+            arguments.samples,
+            arguments.seed,
+            arguments.distribution,
+        )
+    if not specifications:
+        raise InputError(
+            "sweep: nothing to vary: give --vary, --tolerance, or several device files"
+        )
+    return grid_plan(specifications, [known.get(n.lower(), n) for n in arguments.log])
+
+
+def _grid(arguments: argparse.Namespace) -> np.ndarray:
+    if arguments.start is None or arguments.stop is None:
+        raise InputError(
+            "sweep: with netlists on both sides give --start and --stop (e.g. 1MHz, 6GHz)"
+        )
+    start = parse_quantity(arguments.start, "frequency", option="--start")
+    stop = parse_quantity(arguments.stop, "frequency", option="--stop")
+    if not 0 <= start < stop or arguments.points < 5:
+        raise InputError("sweep: need 0 <= --start < --stop and --points >= 5")
+    if arguments.spacing == "log":
+        if start <= 0:
+            raise InputError("--spacing log needs --start above 0 Hz")
+        return np.geomspace(start, stop, arguments.points)
+    return np.linspace(start, stop, arguments.points)
+
+
+def _resistance(text: str | None) -> float | None:
+    return None if text is None else parse_quantity(text, "resistance", option="resistance")
+
+
+def _dc_sign(arguments: argparse.Namespace, z0: float) -> int | None:
+    device = _resistance(arguments.device_dc_resistance)
+    load = _resistance(arguments.load_dc_resistance)
+    if (device is None) != (load is None):
+        raise InputError(
+            "DC resistances: give both --device-dc-resistance and --load-dc-resistance"
+        )
+    if device is None or load is None:
+        return None
+    gamma_device = (device - z0) / (device + z0)
+    gamma_load = (load - z0) / (load + z0)
+    return 1 if 1.0 - gamma_device * gamma_load > 0 else -1
+
+
+def _progress(total: int) -> tuple[Any, Any]:
+    if not sys.stderr.isatty():
+        return None, lambda: None
+    from tqdm import tqdm
+
+    bar = tqdm(total=total, unit="variant", file=sys.stderr)
+    return bar.update, bar.close
+
+
+def _render(result: Any, summary: Any, table_path: str | None, quiet: bool) -> str:
+    from ..units import format_frequency
+
+    headline = {
+        "stable": "ALL STABLE (small-signal)",
+        "unstable": "SOME VARIANTS UNSTABLE",
+        "inconclusive": "INCONCLUSIVE for some variants",
+    }[summary.verdict]
+    line = (
+        f"{headline}: {summary.stable_fraction:.1%} stable, {summary.unstable_fraction:.1%}"
+        f" unstable, {summary.inconclusive_fraction:.1%} inconclusive of {summary.completed}"
+        f" variants; Z0 = {result.reference_impedance_ohm:g} ohm"
+    )
+    if quiet:
+        return line + "\n"
+    rows = [line, ""]
+    if summary.interrupted:
+        rows.append(f"  interrupted: {summary.completed} of {summary.variants} variants finished")
+    rows.append(
+        f"  band {format_frequency(result.frequency_hz[0])}-"
+        f"{format_frequency(result.frequency_hz[-1])}, {result.frequency_hz.size} points"
+    )
+    for name, text in result.plan.description.items():
+        rows.append(f"  {name}: {text}")
+    if summary.stable_bounds:
+        rows.append("  stable variants span (not necessarily one connected region):")
+        for name, (low, high) in summary.stable_bounds.items():
+            rows.append(f"    {name}: {low:.4g} to {high:.4g}")
+    if summary.worst_row is not None:
+        values = ", ".join(
+            f"{name}={result.table[name][summary.worst_row]:.4g}" for name in result.plan.values
+        )
+        rows.append(f"  worst variant (row {summary.worst_row}; {values}): {summary.worst_reason}")
+    if table_path:
+        rows.append(f"  table: {table_path}")
+    from ..cautions import CAUTIONS
+
+    rows += ["", "Cautions", *[f"  ! {c}" for c in CAUTIONS]]
+    return "\n".join(rows) + "\n"
