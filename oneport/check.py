@@ -14,7 +14,7 @@ from typing import Any
 import numpy as np
 
 from . import diagnostics, nyquist
-from .alignment import AlignedPair, align
+from .alignment import AlignedPair, align, renormalise
 from .cautions import CAUTIONS
 from .errors import InputError
 from .nyquist import EdgeClosure
@@ -158,8 +158,13 @@ def analyse_pair(
     bands = nyquist.find_bands(frequency_hz, loop_gain, noise)
     margins = nyquist.find_margins(frequency_hz, loop_gain)
     uncertainty = _uncertainty(pair, loop_gain, options)
+    # Foster's test on the load's own grid, normalised to the analysis impedance so that the
+    # answer does not depend on the reference the load's file happens to use.
     hidden = diagnostics.foster_violations(
-        load.frequency_hz, load.gamma, load.reference_impedance_ohm, load.source
+        load.frequency_hz,
+        renormalise(load.gamma, load.reference_impedance_ohm, z0),
+        z0,
+        load.source,
     )
     hidden_at_stake = [r for r in hidden if _device_gain_near(pair, r) >= 1.0]
 

@@ -55,6 +55,20 @@ def impedance(gamma: np.ndarray, reference_impedance_ohm: float) -> np.ndarray:
         return reference_impedance_ohm * (1.0 + gamma) / (1.0 - gamma)
 
 
+def normalised_reactances(gamma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Im Z/Z0 = 2 Im Γ / |1 − Γ|² and Im Y·Z0 = −2 Im Γ / |1 + Γ|² (any leading axes).
+
+    Real arithmetic only: the same figures as from Z = Z0 (1 + Γ)/(1 − Γ), without the
+    complex divisions, so a sweep can run the test on every variant cheaply.
+    """
+    gamma = np.asarray(gamma, dtype=complex)
+    twice_imaginary = 2.0 * gamma.imag
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        reactance = twice_imaginary / ((1.0 - gamma.real) ** 2 + gamma.imag**2)
+        susceptance = -twice_imaginary / ((1.0 + gamma.real) ** 2 + gamma.imag**2)
+    return reactance, susceptance
+
+
 def foster_violations(
     frequency_hz: np.ndarray, gamma: np.ndarray, reference_impedance_ohm: float, source: str
 ) -> list[HiddenResonance]:
@@ -79,10 +93,7 @@ def foster_violations(
     >>> [(r.kind, r.start_hz, r.stop_hz) for r in foster_violations(f, gamma, 50.0, "tank")]
     [('parallel', 5000000000.0, 6000000000.0)]
     """
-    z = impedance(gamma, reference_impedance_ohm)
-    normalised_reactance = z.imag / reference_impedance_ohm
-    with np.errstate(divide="ignore", invalid="ignore"):
-        normalised_susceptance = (1.0 / z).imag * reference_impedance_ohm
+    normalised_reactance, normalised_susceptance = normalised_reactances(gamma)
     found = []
     for kind, values in (("parallel", normalised_reactance), ("series", normalised_susceptance)):
         jumps = (values[:-1] > FOSTER_JUMP_THRESHOLD) & (values[1:] < -FOSTER_JUMP_THRESHOLD)

@@ -95,18 +95,36 @@ def characteristic(loop_gain: np.ndarray) -> np.ndarray:
     return 1.0 - np.asarray(loop_gain, dtype=complex)
 
 
+def phase_steps(loop_gain: np.ndarray) -> np.ndarray:
+    """Change of arg F between neighbouring samples, each taken in (−π, π] (last axis), rad.
+
+    These are the steps ``numpy.unwrap`` takes (the same rule, ties at ±π included); their sum
+    is the in-band phase change and their largest magnitude the sampling check, so neither
+    needs the unwrapped phase itself.
+    """
+    angle = np.angle(characteristic(loop_gain))
+    raw = np.diff(angle, axis=-1)
+    # Differences of principal angles lie in (−2π, 2π); beyond ±π the short way round is the
+    # other one. Exactly ±π stays, as numpy.unwrap leaves it.
+    return np.where(raw > np.pi, raw - 2.0 * np.pi, np.where(raw < -np.pi, raw + 2.0 * np.pi, raw))
+
+
 def unwrapped_phase(loop_gain: np.ndarray) -> np.ndarray:
     """Continuous phase of F = 1 − L along the last axis, rad."""
     return np.unwrap(np.angle(characteristic(loop_gain)), axis=-1)
 
 
-def largest_phase_step(loop_gain: np.ndarray) -> np.ndarray:
+def largest_phase_step(loop_gain: np.ndarray, steps: np.ndarray | None = None) -> np.ndarray:
     """Largest |Δ arg F| between neighbouring samples along the last axis, rad."""
-    return np.max(np.abs(np.diff(unwrapped_phase(loop_gain), axis=-1)), axis=-1)
+    steps = phase_steps(loop_gain) if steps is None else steps
+    return np.max(np.abs(steps), axis=-1)
 
 
 def count_encirclements(
-    loop_gain: np.ndarray, sign_low: np.ndarray, sign_high: np.ndarray
+    loop_gain: np.ndarray,
+    sign_low: np.ndarray,
+    sign_high: np.ndarray,
+    steps: np.ndarray | None = None,
 ) -> np.ndarray:
     """N_cw over the whole frequency axis, given the signs of F(0) and F(∞).
 
@@ -116,6 +134,8 @@ def count_encirclements(
         L on the sampled band.
     sign_low, sign_high : ndarray of int, shape (...)
         +1 or −1: the sign of the real F(0) and F(∞) the closure implies.
+    steps : ndarray, optional
+        :func:`phase_steps` of ``loop_gain``, when already computed.
 
     Returns
     -------
@@ -131,8 +151,8 @@ def count_encirclements(
     0
     """
     f = characteristic(loop_gain)
-    phase = np.unwrap(np.angle(f), axis=-1)
-    in_band = phase[..., -1] - phase[..., 0]
+    steps = phase_steps(loop_gain) if steps is None else steps
+    in_band = np.sum(steps, axis=-1)
     low = np.angle(f[..., 0]) - _reference_angle(sign_low, f[..., 0].imag)
     high = _reference_angle(sign_high, f[..., -1].imag) - np.angle(f[..., -1])
     return np.rint(-(in_band + low + high) / np.pi).astype(int)

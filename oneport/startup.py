@@ -50,7 +50,7 @@ def startup_estimates(
 ) -> list[StartupEstimate]:
     """Newton estimates at every X_T = 0 (impedance form) and B_T = 0 (admittance form)."""
     z0 = reference_impedance_ohm
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         z_device = z0 * (1 + gamma_device) / (1 - gamma_device)
         z_load = z0 * (1 + gamma_load) / (1 - gamma_load)
         forms = (
@@ -60,7 +60,8 @@ def startup_estimates(
     omega = 2 * np.pi * frequency_hz
     estimates = []
     for form, device, load in forms:
-        total = device + load
+        with np.errstate(over="ignore", invalid="ignore"):
+            total = device + load
         if not np.all(np.isfinite(total)):
             continue
         estimates += _estimates_for_form(form, omega, device, load, total)

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import nyquist
-from .diagnostics import FOSTER_JUMP_THRESHOLD
+from .diagnostics import FOSTER_JUMP_THRESHOLD, normalised_reactances
 
 #: Verdict codes in the per-variant arrays.
 VERDICT_CODES = ("stable", "unstable", "inconclusive")
@@ -120,40 +120,49 @@ def _carrying_crossings(
 ) -> tuple[np.ndarray, np.ndarray]:
     """Lowest clockwise crossing beyond +1 that survives cancellation, and how many survive.
 
-    The same as :func:`oneport.nyquist.net_crossings`, vectorised: with S the running sum of
-    crossing directions (+1 clockwise), a clockwise crossing k survives when S before it is
-    ≥ 0 and S never falls below S_k afterwards.
+    The same as :func:`oneport.nyquist.net_crossings`, vectorised over the (sparse) crossings:
+    with S the running sum of a variant's crossing directions (+1 clockwise), a clockwise
+    crossing k survives when S before it is ≥ 0 and S never falls below S_k afterwards.
     """
-    imaginary = loop_gain.imag
-    a, b = imaginary[..., :-1], imaginary[..., 1:]
-    upward = (a < 0) & (b >= 0)
-    downward = (a >= 0) & (b < 0)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        t = np.where(upward | downward, a / (a - b), 0.0)
-    real_at = loop_gain.real[..., :-1] + t * (loop_gain.real[..., 1:] - loop_gain.real[..., :-1])
-    beyond = real_at > 1.0
-    direction = np.where(beyond & downward, 1, 0) - np.where(beyond & upward, 1, 0)
-    running = np.cumsum(direction, axis=-1)
-    before = running - direction
-    later_minimum = np.minimum.accumulate(running[..., ::-1], axis=-1)[..., ::-1]
-    survives = (direction == 1) & (before >= 0) & (later_minimum >= running)
-    frequency = frequency_hz[:-1] + t * np.diff(frequency_hz)
-    first = np.argmax(survives, axis=-1)
-    lowest = np.take_along_axis(frequency, first[..., None], -1)[..., 0]
-    modes = survives.sum(axis=-1)
-    return np.where(modes > 0, lowest, np.nan), modes
+    leading = loop_gain.shape[:-1]
+    flat = loop_gain.reshape(-1, loop_gain.shape[-1])
+    imaginary = flat.imag
+    negative = imaginary < 0
+    rows, columns = np.nonzero(negative[:, :-1] != negative[:, 1:])
+    a, b = imaginary[rows, columns], imaginary[rows, columns + 1]
+    t = a / (a - b)
+    real = flat.real
+    real_at = real[rows, columns] + t * (real[rows, columns + 1] - real[rows, columns])
+    keep = real_at > 1.0
+    rows, columns, t = rows[keep], columns[keep], t[keep]
+    direction = np.where(negative[rows, columns], -1, 1)  # up across the axis: counterclockwise
+    variants = flat.shape[0]
+    frequency = np.full(variants, np.nan)
+    modes = np.zeros(variants, dtype=int)
+    if rows.size:
+        running = np.cumsum(direction)
+        starts = np.flatnonzero(np.r_[True, rows[1:] != rows[:-1]])
+        lengths = np.diff(np.r_[starts, rows.size])
+        running = running - np.repeat(running[starts] - direction[starts], lengths)
+        before = running - direction
+        # A suffix minimum within each variant: offsets keep later variants from leaking in.
+        offset = rows * (2 * (rows.size + 1))
+        later = np.minimum.accumulate((running + offset)[::-1])[::-1] - offset
+        survives = (direction == 1) & (before >= 0) & (later >= running)
+        surviving_rows = rows[survives]
+        crossing = frequency_hz[columns] + t * (frequency_hz[columns + 1] - frequency_hz[columns])
+        unique_rows, first = np.unique(surviving_rows, return_index=True)
+        frequency[unique_rows] = crossing[survives][first]
+        modes = np.bincount(surviving_rows, minlength=variants)
+    return frequency.reshape(leading), modes.reshape(leading)
 
 
 def _hidden_resonance_at_stake(
     gamma_device: np.ndarray, gamma_load: np.ndarray, shape: tuple[int, ...]
 ) -> np.ndarray:
     """Foster's test on the load (on the common grid), where the device has |Γd| ≥ 1 nearby."""
-    gamma_load = np.broadcast_to(gamma_load, shape)
+    reactance, susceptance = normalised_reactances(np.broadcast_to(gamma_load, shape))
     gamma_device = np.broadcast_to(gamma_device, shape)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        z = (1.0 + gamma_load) / (1.0 - gamma_load)  # normalised to Z0
-        reactance = z.imag
-        susceptance = (1.0 / z).imag
     jumps = np.zeros((*shape[:-1], shape[-1] - 1), dtype=bool)
     for values in (reactance, susceptance):
         jumps |= (values[..., :-1] > FOSTER_JUMP_THRESHOLD) & (
