@@ -22,6 +22,9 @@ import numpy as np
 #: |Im Z| / Z0 (and |Im Y| · Z0) on both sides of the jump for it to count as a hidden pole:
 #: well away from the chart centre, so noise on a matched load cannot trigger it.
 FOSTER_JUMP_THRESHOLD = 1.0
+#: ... and at both samples the reactance must be this many times the resistance (the samples
+#: lie outside the resonance's half-power band, so the resonance is narrower than the step).
+FOSTER_REACTIVE_RATIO = 3.0
 
 
 @dataclass(frozen=True)
@@ -55,18 +58,35 @@ def impedance(gamma: np.ndarray, reference_impedance_ohm: float) -> np.ndarray:
         return reference_impedance_ohm * (1.0 + gamma) / (1.0 - gamma)
 
 
-def normalised_reactances(gamma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Im Z/Z0 = 2 Im Γ / |1 − Γ|² and Im Y·Z0 = −2 Im Γ / |1 + Γ|² (any leading axes).
+def foster_jumps(gamma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Sample intervals where Foster's theorem says a resonance lies between the samples.
 
-    Real arithmetic only: the same figures as from Z = Z0 (1 + Γ)/(1 − Γ), without the
-    complex divisions, so a sweep can run the test on every variant cheaply.
+    Returns two boolean arrays of shape (..., n − 1): ``parallel`` (Im Z/Z0 falls from above
+    +``FOSTER_JUMP_THRESHOLD`` to below −threshold: a pole of Z) and ``series`` (the same on
+    Im Y·Z0: a zero of Z). Both samples must also look reactive (|X| ≥
+    ``FOSTER_REACTIVE_RATIO``·R, or |B| ≥ ratio·G): a lossy resonance resolved by the grid
+    lets the reactance fall through zero within a step, which is no sign of a hidden one.
+    Real arithmetic only (Z/Z0 = (1 + Γ)/(1 − Γ) written out), so sweeps can test every variant.
     """
     gamma = np.asarray(gamma, dtype=complex)
-    twice_imaginary = 2.0 * gamma.imag
+    magnitude = gamma.real**2 + gamma.imag**2
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        reactance = twice_imaginary / ((1.0 - gamma.real) ** 2 + gamma.imag**2)
-        susceptance = -twice_imaginary / ((1.0 + gamma.real) ** 2 + gamma.imag**2)
-    return reactance, susceptance
+        open_distance = (1.0 - gamma.real) ** 2 + gamma.imag**2
+        short_distance = (1.0 + gamma.real) ** 2 + gamma.imag**2
+        reactance = 2.0 * gamma.imag / open_distance
+        resistance = (1.0 - magnitude) / open_distance
+        susceptance = -2.0 * gamma.imag / short_distance
+        conductance = (1.0 - magnitude) / short_distance
+        found = []
+        for imaginary, real in ((reactance, resistance), (susceptance, conductance)):
+            reactive = np.abs(imaginary) >= FOSTER_REACTIVE_RATIO * np.abs(real)
+            found.append(
+                (imaginary[..., :-1] > FOSTER_JUMP_THRESHOLD)
+                & (imaginary[..., 1:] < -FOSTER_JUMP_THRESHOLD)
+                & reactive[..., :-1]
+                & reactive[..., 1:]
+            )
+    return found[0], found[1]
 
 
 def foster_violations(
@@ -93,10 +113,8 @@ def foster_violations(
     >>> [(r.kind, r.start_hz, r.stop_hz) for r in foster_violations(f, gamma, 50.0, "tank")]
     [('parallel', 5000000000.0, 6000000000.0)]
     """
-    normalised_reactance, normalised_susceptance = normalised_reactances(gamma)
     found = []
-    for kind, values in (("parallel", normalised_reactance), ("series", normalised_susceptance)):
-        jumps = (values[:-1] > FOSTER_JUMP_THRESHOLD) & (values[1:] < -FOSTER_JUMP_THRESHOLD)
+    for kind, jumps in zip(("parallel", "series"), foster_jumps(gamma), strict=True):
         for index in np.flatnonzero(jumps):
             found.append(
                 HiddenResonance(

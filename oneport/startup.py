@@ -80,8 +80,9 @@ def _estimates_for_form(
         real_slope = _slope(omega[window], total.real[window])
         imaginary_slope = _slope(omega[window], imaginary[window])
         real_total = float(np.interp(omega0, omega[window], total.real[window]))
-        denominator = real_slope**2 + imaginary_slope**2
-        if denominator == 0:
+        with np.errstate(over="ignore", invalid="ignore"):
+            denominator = np.float64(real_slope) ** 2 + np.float64(imaginary_slope) ** 2
+        if not (np.isfinite(denominator) and denominator > 0):
             continue
         sigma = -real_total * imaginary_slope / denominator
         delta_omega = -real_total * real_slope / denominator

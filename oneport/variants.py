@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import nyquist
-from .diagnostics import FOSTER_JUMP_THRESHOLD, normalised_reactances
+from .diagnostics import foster_jumps
 
 #: Verdict codes in the per-variant arrays.
 VERDICT_CODES = ("stable", "unstable", "inconclusive")
@@ -161,13 +161,9 @@ def _hidden_resonance_at_stake(
     gamma_device: np.ndarray, gamma_load: np.ndarray, shape: tuple[int, ...]
 ) -> np.ndarray:
     """Foster's test on the load (on the common grid), where the device has |Γd| ≥ 1 nearby."""
-    reactance, susceptance = normalised_reactances(np.broadcast_to(gamma_load, shape))
+    parallel, series = foster_jumps(np.broadcast_to(gamma_load, shape))
+    jumps = parallel | series
     gamma_device = np.broadcast_to(gamma_device, shape)
-    jumps = np.zeros((*shape[:-1], shape[-1] - 1), dtype=bool)
-    for values in (reactance, susceptance):
-        jumps |= (values[..., :-1] > FOSTER_JUMP_THRESHOLD) & (
-            values[..., 1:] < -FOSTER_JUMP_THRESHOLD
-        )
     gain = np.abs(gamma_device) >= 1.0
     # The single check looks at |Γd| in the interval and one sample either side.
     near = gain[..., :-1] | gain[..., 1:]

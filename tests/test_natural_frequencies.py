@@ -1,0 +1,302 @@
+"""The Nyquist count against the natural frequencies of lumped negative-resistance loops.
+
+Truth for every check here: numpy.roots of the characteristic polynomial n_d·d_L + n_L·d_d of
+the closed loop, where Zd = n_d/d_d and ZL = n_L/d_L (METHODS §1: the zeros of F = 1 − Γd·ΓL
+are the natural frequencies of the circuit). Random circuits come from a handful of families;
+only those meeting the premise (the device alone into Z0 has no right-half-plane root, checked
+with numpy.roots as well) are used, and only those whose natural frequencies and Γ poles sit far
+enough from the jω axis for a finite grid to resolve them.
+
+One allowance: where L tends to +1 at an edge (both sides inductive at infinity, or both
+capacitive at DC), F has a zero there and METHODS §2 calls the closure not founded when
+|L| ≥ 1 at that edge; the tool may then withhold the count, and the test checks that this is
+the only reason it does.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from hypothesis import assume, event, given, settings
+from hypothesis import strategies as st
+
+import oneport
+from oneport import OnePort, nyquist
+
+Z0 = 50.0
+POINTS = 3000
+#: A root with |Re s| below this fraction of |s| is too sharp for the grid to be trusted with.
+AXIS_FRACTION = 0.02
+#: Largest ratio of root magnitudes accepted, so the log grid keeps enough points per decade.
+MAX_SPREAD = 1e5
+#: numpy.roots works on s in units of this (rad/s), so component values in SI stay well scaled.
+S_UNIT = 1e9
+
+Impedance = tuple[np.poly1d, np.poly1d]
+
+
+# --- lumped impedances as (numerator, denominator) polynomials in s (SI units) -----------------
+
+
+def resistor(r: float) -> Impedance:
+    return np.poly1d([float(r)]), np.poly1d([1.0])
+
+
+def inductor(inductance: float) -> Impedance:
+    return np.poly1d([float(inductance), 0.0]), np.poly1d([1.0])
+
+
+def capacitor(capacitance: float) -> Impedance:
+    return np.poly1d([1.0]), np.poly1d([float(capacitance), 0.0])
+
+
+def series(*parts: Impedance) -> Impedance:
+    num, den = parts[0]
+    for n, d in parts[1:]:
+        num, den = num * d + n * den, den * d
+    return num, den
+
+
+def parallel(a: Impedance, b: Impedance) -> Impedance:
+    (na, da), (nb, db) = a, b
+    return na * nb, na * db + nb * da
+
+
+def roots(poly: np.poly1d) -> np.ndarray:
+    """numpy.roots of ``poly`` in s (rad/s), computed on s / S_UNIT for scaling."""
+    coefficients = poly.coeffs * S_UNIT ** np.arange(poly.order, -1, -1)
+    return np.roots(coefficients) * S_UNIT
+
+
+def gamma(z: Impedance, frequency_hz: np.ndarray, z0: float = Z0) -> np.ndarray:
+    """Γ = (n − Z0·d)/(n + Z0·d) evaluated at s = j2πf."""
+    s = 2j * np.pi * frequency_hz
+    n, d = z[0](s), z[1](s)
+    return (n - z0 * d) / (n + z0 * d)
+
+
+def characteristic_polynomial(device: Impedance, load: Impedance) -> np.poly1d:
+    (n_d, d_d), (n_l, d_l) = device, load
+    return n_d * d_l + n_l * d_d
+
+
+def limit_of_gamma(z: Impedance, side: str, z0: float = Z0) -> complex:
+    """Exact Γ at s → 0 (``"low"``) or s → ∞ (``"high"``) from the polynomials."""
+    n, d = np.trim_zeros(z[0].coeffs, "f"), np.trim_zeros(z[1].coeffs, "f")
+    if side == "high":
+        order_n, order_d = n.size, d.size
+        a, b = n[0], d[0]
+    else:
+        order_n = -(n.size - np.flatnonzero(n)[-1])  # minus the order of the lowest term
+        order_d = -(d.size - np.flatnonzero(d)[-1])
+        a, b = n[np.flatnonzero(n)[-1]], d[np.flatnonzero(d)[-1]]
+    if order_n > order_d:
+        return 1.0 + 0j
+    if order_n < order_d:
+        return -1.0 + 0j
+    return complex((a - z0 * b) / (a + z0 * b))
+
+
+def check_against_roots(device: Impedance, load: Impedance, require=assume) -> str:
+    """The shared body of every property: premise, resolvability, then the assertions.
+
+    ``require`` filters (``hypothesis.assume``) or insists (an assertion, for explicit cases).
+    Returns a short label of the outcome, for ``hypothesis.event`` statistics.
+    """
+    natural = roots(characteristic_polynomial(device, load))
+    # Premise (METHODS §1–2): the device alone into Z0 has no RHP root — truth: numpy.roots.
+    device_in_z0 = roots(characteristic_polynomial(device, resistor(Z0)))
+    load_in_z0 = roots(characteristic_polynomial(load, resistor(Z0)))
+    require(bool(np.all(device_in_z0.real < 0)))
+    # The poles of F (each side into Z0) and its zeros (the natural frequencies) must be
+    # resolvable on a finite grid: none on or too near the jω axis.
+    critical = np.concatenate([natural, device_in_z0, load_in_z0])
+    require(bool(np.all(np.abs(critical) > 0)))
+    require(bool(np.all(np.abs(critical.real) >= AXIS_FRACTION * np.abs(critical))))
+    # The grid spans every pole and zero of Γd and ΓL as well, so L has settled at both edges.
+    scales = np.abs(
+        np.concatenate([critical, roots(device[0] - Z0 * device[1]), roots(load[0] - Z0 * load[1])])
+    )
+    scales = scales[scales > 0]
+    require(bool(scales.max() / scales.min() < MAX_SPREAD))
+    frequency_hz = np.geomspace(1e-3 * scales.min(), 1e3 * scales.max(), POINTS) / (2 * np.pi)
+
+    result = oneport.check(
+        OnePort(frequency_hz, gamma(device, frequency_hz), Z0, "device"),
+        OnePort(frequency_hz, gamma(load, frequency_hz), Z0, "load"),
+    )
+    rhp = int(np.sum(natural.real > 0))
+    context = (natural, result.reasons, [w.code for w in result.warnings])
+    if result.encirclements is None:
+        # Allowed only where METHODS §2 says the closure is not founded: |L| ≥ 1 at an edge and
+        # L still moving — which on this grid happens only when L tends to +1 itself (F has a
+        # zero at DC or at infinity, e.g. inductive on both sides), so its sign is undefined.
+        assert result.largest_phase_step_rad <= nyquist.UNSAFE_PHASE_STEP_RAD, context
+        unfounded = [c for c in result.closures if not c.founded]
+        assert unfounded, context
+        for closure in unfounded:
+            limit = limit_of_gamma(device, closure.side) * limit_of_gamma(load, closure.side)
+            assert abs(limit - 1.0) < 1e-9, (closure, *context)
+            assert abs(closure.loop_gain_at_edge) >= 1.0, (closure, *context)
+        assert result.verdict == "inconclusive", context
+        return "inconclusive: L -> +1 at an edge"
+    # truth: numpy.roots of the characteristic polynomial, METHODS §1
+    assert result.encirclements == rhp, context
+    # truth: numpy.roots — an odd RHP count means a real RHP root (METHODS §2)
+    assert result.latch_up == bool(rhp % 2), context
+    # truth: numpy.roots of the characteristic polynomial, METHODS §1
+    assert result.verdict == ("stable" if rhp == 0 else "unstable"), context
+    return f"count {rhp}"
+
+
+def insist(condition: bool) -> None:
+    assert condition
+
+
+# --- strategies --------------------------------------------------------------------------------
+
+
+def log_uniform(low: float, high: float) -> st.SearchStrategy[float]:
+    return st.floats(np.log10(low), np.log10(high)).map(lambda e: float(10.0**e))
+
+
+def tunnel_diode() -> st.SearchStrategy[Impedance]:
+    """Rs + s·Ls + (−Rd ∥ Cj), the tunnel-diode equivalent circuit (METHODS §7)."""
+    return st.builds(
+        lambda rs, ls, rd, cj: series(
+            resistor(rs), inductor(ls), parallel(resistor(-rd), capacitor(cj))
+        ),
+        log_uniform(0.5, 10.0),
+        log_uniform(0.05e-9, 3e-9),
+        log_uniform(60.0, 400.0),
+        log_uniform(0.2e-12, 10e-12),
+    )
+
+
+def series_rl_load() -> st.SearchStrategy[Impedance]:
+    return st.builds(
+        lambda r, inductance: series(resistor(r), inductor(inductance)),
+        st.floats(0.0, 300.0),
+        log_uniform(0.1e-9, 20e-9),
+    )
+
+
+# --- families ----------------------------------------------------------------------------------
+
+FAMILY = settings(max_examples=150, deadline=None)
+
+
+@FAMILY
+@given(
+    r=log_uniform(1.0, 100.0),
+    inductance=log_uniform(0.1e-9, 10e-9),
+    capacitance=log_uniform(0.2e-12, 20e-12),
+    load=st.one_of(
+        series_rl_load(),
+        st.builds(
+            lambda r, c: parallel(resistor(r), capacitor(c)),
+            log_uniform(1.0, 500.0),
+            log_uniform(0.1e-12, 20e-12),
+        ),
+        st.builds(resistor, log_uniform(1.0, 500.0)),
+    ),
+)
+def test_series_negative_rlc_device(
+    r: float, inductance: float, capacitance: float, load: Impedance
+) -> None:
+    """Series −R + L + C device (stable into 50 Ω only when R < 50 Ω) into R+L, R∥C or R loads."""
+    device = series(resistor(-r), inductor(inductance), capacitor(capacitance))
+    event(check_against_roots(device, load))
+
+
+@FAMILY
+@given(device=tunnel_diode(), load=series_rl_load())
+def test_tunnel_diode_into_series_rl(device: Impedance, load: Impedance) -> None:
+    """Counts 0, 1 (R_T > Rd: latch-up) and 2 (R_T too small for L_T: oscillation)."""
+    event(check_against_roots(device, load))
+
+
+@FAMILY
+@given(
+    device=tunnel_diode(),
+    rf_resistance=log_uniform(5.0, 200.0),
+    block=log_uniform(1e-12, 1e-9),
+    bias_resistance=st.floats(0.0, 300.0),
+    choke=log_uniform(1e-9, 1e-6),
+)
+def test_tunnel_diode_into_bias_tee(
+    device: Impedance, rf_resistance: float, block: float, bias_resistance: float, choke: float
+) -> None:
+    """RF path through a DC block, in parallel with a bias path through a choke."""
+    load = parallel(
+        series(resistor(rf_resistance), capacitor(block)),
+        series(resistor(bias_resistance), inductor(choke)),
+    )
+    event(check_against_roots(device, load))
+
+
+@FAMILY
+@given(
+    device=tunnel_diode(),
+    r=log_uniform(1.0, 300.0),
+    inductance=log_uniform(0.1e-9, 20e-9),
+    block=log_uniform(1e-12, 1e-9),
+)
+def test_tunnel_diode_into_dc_blocked_load(
+    device: Impedance, r: float, inductance: float, block: float
+) -> None:
+    """A series R + L load behind a DC block: no DC path, so F(0) is set by the block."""
+    load = series(resistor(r), inductor(inductance), capacitor(block))
+    event(check_against_roots(device, load))
+
+
+@FAMILY
+@given(
+    r=log_uniform(5.0, 300.0),
+    load=st.one_of(
+        st.builds(
+            lambda r, inductance, c: series(resistor(r), inductor(inductance), capacitor(c)),
+            log_uniform(1.0, 300.0),
+            log_uniform(0.5e-9, 50e-9),
+            log_uniform(0.5e-12, 50e-12),
+        ),
+        st.builds(
+            lambda r, c: parallel(resistor(r), capacitor(c)),
+            log_uniform(1.0, 1000.0),
+            log_uniform(0.1e-12, 20e-12),
+        ),
+        st.builds(
+            lambda r, inductance, c: parallel(
+                parallel(resistor(r), inductor(inductance)), capacitor(c)
+            ),
+            log_uniform(1.0, 1000.0),
+            log_uniform(0.5e-9, 50e-9),
+            log_uniform(0.5e-12, 50e-12),
+        ),
+    ),
+)
+def test_bare_negative_resistance(r: float, load: Impedance) -> None:
+    """A bare −R (no dynamics, so trivially stable in Z0) into series RLC, R∥C or R∥L∥C.
+
+    With R > Z0 into a series RLC both F(0) and F(∞) are negative (Γd > 1, ΓL → 1 at both ends):
+    a complex pair with an even count and no crossing, the class of METHODS §7's series loop.
+    Into R∥C the root is real (count 1, latch-up) when the load resistance exceeds R.
+    """
+    assume(abs(r - Z0) > 1.0)  # Γd = (R + Z0)/(R − Z0) is finite and not extreme
+    event(check_against_roots(resistor(-r), load))
+
+
+def test_families_cover_odd_and_both_negative_ends() -> None:
+    """The families above do reach the cases the brief names, checked on explicit members.
+
+    truth: numpy.roots of the characteristic polynomial, METHODS §1 (and METHODS §7 for the
+    series loop, whose F(0) and F(∞) are both negative).
+    """
+    diode = series(resistor(4.0), inductor(0.6e-9), parallel(resistor(-80.0), capacitor(2e-12)))
+    latch = series(resistor(150.0), inductor(1e-9))  # R_T = 154 Ω > Rd = 80 Ω: one real root
+    assert int(np.sum(roots(characteristic_polynomial(diode, latch)).real > 0)) == 1
+    check_against_roots(diode, latch, require=insist)
+    loop = series(resistor(50.0), inductor(10e-9), capacitor(2.533e-12))
+    natural = roots(characteristic_polynomial(resistor(-60.0), loop))
+    assert int(np.sum(natural.real > 0)) == 2
+    assert np.all(np.abs(natural.imag) > 0)
+    check_against_roots(resistor(-60.0), loop, require=insist)
