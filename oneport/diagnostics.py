@@ -20,8 +20,8 @@ from dataclasses import dataclass
 import numpy as np
 
 #: |Im Z| / Z0 (and |Im Y| · Z0) on both sides of the jump for it to count as a hidden pole:
-#: well away from the chart centre, so noise on a matched load cannot trigger it.
-FOSTER_JUMP_THRESHOLD = 1.0
+#: clear of the chart's real axis, so noise on a matched or shorted load cannot trigger it.
+FOSTER_JUMP_THRESHOLD = 0.1
 #: ... and at both samples the reactance must be this many times the resistance (the samples
 #: lie outside the resonance's half-power band, so the resonance is narrower than the step).
 FOSTER_REACTIVE_RATIO = 3.0

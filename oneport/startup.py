@@ -73,7 +73,9 @@ def _estimates_for_form(
 ) -> list[StartupEstimate]:
     imaginary = total.imag
     found = []
-    for index in np.flatnonzero(np.sign(imaginary[:-1]) * np.sign(imaginary[1:]) < 0):
+    negative = imaginary < 0
+    # A zero exactly on a sample belongs to the interval that ends on it (counted once).
+    for index in np.flatnonzero(negative[:-1] != negative[1:]):
         t = imaginary[index] / (imaginary[index] - imaginary[index + 1])
         omega0 = omega[index] + t * (omega[index + 1] - omega[index])
         window = slice(max(0, index - SLOPE_HALF_WIDTH + 1), index + SLOPE_HALF_WIDTH + 1)

@@ -1,0 +1,67 @@
+"""``oneport oscillator``: large-signal operating points of a device into a load (Kurokawa)."""
+
+from __future__ import annotations
+
+import argparse
+from typing import Any, TextIO
+
+from ..units import parse_decibels
+from .common import add_output_options, write_json
+
+NAME = "oscillator"
+
+
+def add_parser(commands: Any) -> argparse.ArgumentParser:
+    """Register ``oscillator`` and its options."""
+    command: argparse.ArgumentParser = commands.add_parser(
+        NAME,
+        help="where an oscillator settles: operating points and Kurokawa stability",
+        description="Large-signal operating points of a negative-resistance device into a load:"
+        " every solution of gamma_device(A, f) * gamma_load(f) = 1 in the data, its frequency,"
+        " amplitude and power, Kurokawa's stability, start-up from noise and a verdict."
+        " DEVICE is a TOML manifest: drive-level Touchstone files or an I-V description"
+        " (docs/oscillator.md).",
+        epilog="example: oneport oscillator touchstone_examples/oscillator/drive_levels.toml"
+        " --load touchstone_examples/oscillator/load.s1p --plot operating_points.png",
+    )
+    command.add_argument("device", help="the device manifest (TOML): drive levels or I-V curve")
+    command.add_argument("--load", required=True, help="the load's Touchstone one-port")
+    command.add_argument(
+        "--form",
+        choices=("auto", "admittance", "impedance"),
+        default=None,
+        help="Kurokawa's form: admittance (G_T, B_T, port voltage) or impedance (R_T, X_T, port"
+        " current); default: the manifest's form, else chosen to suit the device",
+    )
+    command.add_argument(
+        "--injection-below",
+        metavar="DB",
+        default="20dB",
+        help="how far the injected power lies below the oscillator's, for the stated"
+        " injection-locking range (default 20dB, i.e. P_inj/P_osc = -20 dB)",
+    )
+    command.add_argument("--plot", metavar="FILE", help="write the device-line/load-locus plot")
+    add_output_options(command)
+    return command
+
+
+def run(arguments: argparse.Namespace, out: TextIO) -> int:
+    """Run the analysis and print it; return the verdict's exit code."""
+    from ..oscillator import analyse_oscillator
+    from ..oscillator.text import render, verdict_line
+
+    below = parse_decibels(arguments.injection_below, option="--injection-below")
+    result = analyse_oscillator(
+        arguments.device, arguments.load, form=arguments.form, injection_ratio_db=-below
+    )
+    if arguments.plot:
+        from ..oscillator.plot import plot_oscillator
+
+        plot_oscillator(result, arguments.plot)
+    if arguments.json:
+        write_json(result.to_dict(include_arrays=arguments.include_arrays), out)
+    elif arguments.quiet:
+        print(verdict_line(result), file=out)
+    else:
+        out.write(render(result))
+    return result.exit_code

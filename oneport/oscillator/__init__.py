@@ -1,0 +1,51 @@
+"""Large-signal oscillator analysis: where a negative-resistance one-port settles in a load.
+
+From a device measured at several drive levels (Touchstone one-ports listed in a TOML
+manifest) or a quasi-static I–V description with lumped parasitics, and a load one-port,
+:func:`analyse_oscillator` finds every operating point Γd(A, f)·ΓL(f) = 1 inside the data, its
+frequency, amplitude and power, Kurokawa's stability index and decay rate, whether the circuit
+starts from noise, and a verdict word (docs/oscillator.md).
+
+Rooms: ``manifest`` (reading), ``describing`` (describing functions and I–V curves), ``lines``
+(smooth device and load lines), ``solve`` (roots and Kurokawa's figures), ``verdict``,
+``analysis`` (the flow), ``result`` (frozen results, JSON), ``text`` and ``plot`` (rendering).
+"""
+
+from .analysis import analyse_oscillator, choose_form
+from .describing import (
+    TunnelDiodeModel,
+    describing_conductance,
+    polynomial_current,
+    table_current,
+)
+from .manifest import (
+    DriveLevelDevice,
+    IVDevice,
+    Parasitics,
+    read_device_description,
+)
+from .result import (
+    OSCILLATOR_SCHEMA,
+    VERDICT_EXIT_CODES,
+    VERDICTS,
+    OperatingPoint,
+    OscillatorResult,
+)
+
+__all__ = [
+    "OSCILLATOR_SCHEMA",
+    "VERDICTS",
+    "VERDICT_EXIT_CODES",
+    "DriveLevelDevice",
+    "IVDevice",
+    "OperatingPoint",
+    "OscillatorResult",
+    "Parasitics",
+    "TunnelDiodeModel",
+    "analyse_oscillator",
+    "choose_form",
+    "describing_conductance",
+    "polynomial_current",
+    "read_device_description",
+    "table_current",
+]

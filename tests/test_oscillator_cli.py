@@ -1,0 +1,239 @@
+"""``oneport oscillator``: manifests, their one-line errors, the CLI contract and the examples."""
+
+from __future__ import annotations
+
+import io
+import json
+import shutil
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from oneport.cli import main
+from oneport.errors import InputError
+from oneport.oscillator import OSCILLATOR_SCHEMA, VERDICT_EXIT_CODES, read_device_description
+
+EXAMPLES = Path(__file__).resolve().parent.parent / "touchstone_examples" / "oscillator"
+
+
+def run(*argv: str) -> tuple[int, str, str]:
+    out, err = io.StringIO(), io.StringIO()
+    code = main(list(argv), stdout=out, stderr=err)
+    return code, out.getvalue(), err.getvalue()
+
+
+def write_level(path: Path, points: int = 11, reference: float = 50.0, value: float = 0.3) -> None:
+    rows = [f"# GHz S RI R {reference:g}"]
+    rows += [f"{f:.4f} {value} 0.1" for f in np.linspace(1.0, 2.0, points)]
+    path.write_text("\n".join(rows) + "\n")
+
+
+def manifest(folder: Path, body: str) -> Path:
+    path = folder / "device.toml"
+    path.write_text(body)
+    return path
+
+
+def levels(*entries: str) -> str:
+    return 'kind = "drive-levels"\n' + "".join(f"[[level]]\n{entry}\n" for entry in entries)
+
+
+@pytest.fixture
+def two_files(tmp_path: Path) -> Path:
+    write_level(tmp_path / "a.s1p")
+    write_level(tmp_path / "b.s1p", value=0.25)
+    return tmp_path
+
+
+@pytest.mark.parametrize(
+    ("body", "key", "words"),
+    [
+        (levels('incident_power_dbm = -20\nfile = "a.s1p"'), "level", "only one drive level"),
+        (
+            levels(
+                'incident_power_dbm = -20\nfile = "a.s1p"',
+                'incident_power_dbm = -20\nfile = "b.s1p"',
+            ),
+            "level[1].incident_power_dbm",
+            "repeats",
+        ),
+        (
+            levels(
+                'incident_power_dbm = -10\nfile = "a.s1p"',
+                'incident_power_dbm = -20\nfile = "b.s1p"',
+            ),
+            "level[1].incident_power_dbm",
+            "increasing order",
+        ),
+        (
+            levels(
+                'incident_power_dbm = -20\nfile = "a.s1p"',
+                'incident_power_dbm = -10\nfile = "c.s1p"',
+            ),
+            "level[1].file",
+            "no such file 'c.s1p'",
+        ),
+        (
+            levels(
+                'incident_power_dbm = -20\nfile = "a.s1p"', 'peak_voltage_v = 0.1\nfile = "b.s1p"'
+            ),
+            "level[1].peak_voltage_v",
+            "same amplitude quantity",
+        ),
+        (
+            levels('peak_voltage_v = -0.1\nfile = "a.s1p"', 'peak_voltage_v = 0.1\nfile = "b.s1p"'),
+            "level[0].peak_voltage_v",
+            "must be positive",
+        ),
+        (
+            levels(
+                'incident_power_dbm = -20\nfile = "a.s1p"',
+                'incident_power_dbm = -10\nfiles = "b.s1p"',
+            ),
+            "level[1].files",
+            "unknown key",
+        ),
+        ('kind = "drive-level"\n', "kind", "is not one of"),
+        ('kind = "iv-curve"\nbias_voltage_v = 0.1\namplitude_max_v = 0.1\n', "iv", "missing"),
+        (
+            'kind = "iv-curve"\nbias_voltage_v = 0.1\n'
+            "[iv]\npolynomial_coefficients = [0, -0.01, 0, 1]\n",
+            "amplitude_max_v",
+            "missing",
+        ),
+        (
+            'kind = "iv-curve"\nbias_voltage_v = 0.1\namplitude_max_v = 0.1\n'
+            '[iv]\nmodel = "gunn"\n',
+            "iv.model",
+            "not a known model",
+        ),
+        (
+            'kind = "iv-curve"\nbias_voltage_v = 0.1\namplitude_max_v = 0.1\n'
+            "[iv]\npolynomial_coefficients = [0, -0.01]\n"
+            "[parasitics]\nseries_resistance_ohm = -1\n",
+            "parasitics.series_resistance_ohm",
+            "negative",
+        ),
+    ],
+)
+def test_manifest_errors_name_the_manifest_and_the_key(
+    two_files: Path, body: str, key: str, words: str
+) -> None:
+    path = manifest(two_files, body)
+    with pytest.raises(InputError) as caught:
+        read_device_description(path)
+    message = str(caught.value)
+    assert message.startswith(f"{path}: {key}: ") and words in message
+    assert "\n" not in message
+
+
+def test_mismatched_grids_and_references_are_refused(two_files: Path) -> None:
+    write_level(two_files / "short.s1p", points=7)
+    write_level(two_files / "other.s1p", reference=75.0)
+    for name, words in (("short.s1p", "frequency grid"), ("other.s1p", "reference 75 ohm")):
+        path = manifest(
+            two_files,
+            levels(
+                'incident_power_dbm = -20\nfile = "a.s1p"',
+                f'incident_power_dbm = -10\nfile = "{name}"',
+            ),
+        )
+        with pytest.raises(InputError, match=rf"level\[1\]\.file: .*{words}"):
+            read_device_description(path)
+
+
+def test_iv_table_is_read_with_its_header_and_checked(tmp_path: Path) -> None:
+    voltage = np.linspace(0.0, 0.4, 41)
+    rows = ["# a comment", "voltage_v,current_a", *(f"{v},{-0.01 * v + v**3}" for v in voltage)]
+    (tmp_path / "iv.csv").write_text("\n".join(rows) + "\n")
+    body = 'kind = "iv-curve"\nbias_voltage_v = 0.1\n[iv]\ntable = "iv.csv"\n'
+    description = read_device_description(manifest(tmp_path, body))
+    # The largest swing that stays in the table at this bias: min(0.1 - 0, 0.4 - 0.1).
+    assert description.amplitude_max_v == pytest.approx(0.1)
+    too_wide = manifest(tmp_path, body.replace("[iv]", "amplitude_max_v = 0.2\n[iv]"))
+    with pytest.raises(InputError, match=r"amplitude_max_v: 0\.2 V takes the swing outside"):
+        read_device_description(too_wide)
+    (tmp_path / "iv.csv").write_text("voltage_v,current_a\n0,0\n0.2,1\n0.1,2\n0.3,3\n")
+    with pytest.raises(InputError, match=r"iv.csv:4: voltage 0.1 does not increase"):
+        read_device_description(manifest(tmp_path, body))
+
+
+def test_bad_input_is_one_line_and_exit_2(two_files: Path) -> None:
+    path = manifest(two_files, "kind = [unclosed\n")
+    code, out, err = run("oscillator", str(path), "--load", str(two_files / "a.s1p"))
+    assert code == 2 and out == ""
+    assert err.count("\n") == 1 and "is not valid TOML" in err and str(path) in err
+
+
+def test_json_contract_and_plot(tmp_path: Path) -> None:
+    plot = tmp_path / "points.png"
+    code, out, _ = run(
+        "oscillator",
+        str(EXAMPLES / "hard_excitation.toml"),
+        "--load",
+        str(EXAMPLES / "load.s1p"),
+        "--json",
+        "--plot",
+        str(plot),
+    )
+    data = json.loads(out)
+    assert code == VERDICT_EXIT_CODES[data["verdict"]] == 3
+    assert data["schema"] == OSCILLATOR_SCHEMA == "oneport.oscillator/1"
+    assert data["verdict"] == "hard-excitation" and data["starts_from_noise"] is False
+    for key in ("warnings", "cautions", "limits", "inputs", "form", "reasons"):
+        assert key in data
+    keys = {
+        "frequency_hz",
+        "amplitude",
+        "amplitude_quantity",
+        "load_power_w",
+        "kurokawa_stable",
+        "stability_index",
+        "decay_rate_per_s",
+    }
+    points = data["operating_points"]
+    assert len(points) == 2 and all(keys <= set(point) for point in points)
+    assert [p["kurokawa_stable"] for p in points] == [False, True]
+    assert points[0]["amplitude_quantity"] == "peak_voltage_v"
+    assert points[0]["reflection"]["reference_impedance_ohm"] == 50.0
+    assert plot.stat().st_size > 10_000 and plot.read_bytes()[:4] == b"\x89PNG"
+
+
+def test_unwritable_plot_is_a_usage_error(tmp_path: Path) -> None:
+    code, _, err = run(
+        "oscillator",
+        str(EXAMPLES / "tunnel_diode.toml"),
+        "--load",
+        str(EXAMPLES / "load.s1p"),
+        "--quiet",
+        "--plot",
+        str(tmp_path / "missing" / "plot.png"),
+    )
+    assert code == 2 and "--plot: cannot write" in err
+
+
+@pytest.mark.parametrize("name", ["tunnel_diode", "iv_table", "drive_levels"])
+def test_examples_settle_at_the_same_point(name: str) -> None:
+    # The three descriptions of the invented diode D2 are one device (generate.py): the drive
+    # levels were computed from the same I-V curve, so they must agree.
+    code, out, _ = run(
+        "oscillator", str(EXAMPLES / f"{name}.toml"), "--load", str(EXAMPLES / "load.s1p"), "--json"
+    )
+    data = json.loads(out)
+    assert code == 0 and data["verdict"] == "settles"
+    (point,) = data["operating_points"]
+    assert point["frequency_hz"] == pytest.approx(2.1105e9, rel=2e-4)
+    assert point["amplitude"] == pytest.approx(0.09712, rel=1e-3)
+    assert point["load_power_w"] == pytest.approx(2.620e-5, rel=2e-3)
+
+
+def test_text_report_puts_the_verdict_first_and_cautions_last(tmp_path: Path) -> None:
+    shutil.copy(EXAMPLES / "load.s1p", tmp_path / "load.s1p")
+    code, out, _ = run(
+        "oscillator", str(EXAMPLES / "tunnel_diode.toml"), "--load", str(tmp_path / "load.s1p")
+    )
+    assert code == 0
+    assert out.startswith("SETTLES at one stable operating point")
+    assert out.index("Limits of the method") < out.index("Cautions")
+    assert "stiff DC bias" in out
