@@ -20,6 +20,7 @@ from typing import Any
 import numpy as np
 
 from . import nyquist
+from .alignment import MINIMUM_OVERLAP_POINTS
 from .cautions import CAUTIONS
 from .errors import InputError
 from .result import CHECK_SCHEMA, Finding, InputRecord, _band
@@ -122,6 +123,11 @@ def check_return_loss(device: OnePort, return_loss_db: float, record: InputRecor
     if not (np.isfinite(return_loss_db) and return_loss_db >= 0):
         raise InputError(
             f"--load-return-loss {return_loss_db!r} dB: a return loss of 0 dB or more is needed"
+        )
+    if device.points < MINIMUM_OVERLAP_POINTS:
+        raise InputError(
+            f"{device.source}: {device.points} frequency point(s); a bound over frequency needs"
+            f" at least {MINIMUM_OVERLAP_POINTS}"
         )
     rho = 10 ** (-return_loss_db / 20)
     frequency_hz, gamma = device.frequency_hz, device.gamma

@@ -376,7 +376,9 @@ def find_margins(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> Margins:
 
     imaginary = loop_gain.imag
     gain_margin = gain_frequency = None
-    for index in np.flatnonzero(np.sign(imaginary[:-1]) * np.sign(imaginary[1:]) < 0):
+    negative = imaginary < 0
+    # Half-open classes: a sample exactly on the real axis ends the interval it closes.
+    for index in np.flatnonzero(negative[:-1] != negative[1:]):
         a, b = imaginary[index], imaginary[index + 1]
         t = a / (a - b)
         real = float((loop_gain[index] + t * (loop_gain[index + 1] - loop_gain[index])).real)

@@ -30,6 +30,9 @@ _FREQUENCY_UNITS = {"hz": 1.0, "khz": 1e3, "mhz": 1e6, "ghz": 1e9}
 _PARAMETERS = ("s", "y", "z")
 _FORMATS = ("ri", "ma", "db")
 _PORTS_FROM_SUFFIX = re.compile(r"^\.s(\d+)p$", re.IGNORECASE)
+#: Deletes every character a plain number or white space may hold (see ``_parse_numbers``).
+_OPTION_LINE = re.compile(r"^[ \t]*#[^\n]*", re.MULTILINE)
+_NUMBER_CHARACTERS = str.maketrans("", "", "0123456789+-.eE \t")
 _ASCII_NUMBER = re.compile(r"^[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$")
 #: Levels beyond this in a DB file are not measurements (10^(400/20) = 1e20).
 _LARGEST_DECIBELS = 400.0
@@ -230,7 +233,9 @@ def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header
     """Check the whole file and return its header and frequencies in Hz."""
     header = _Header()
     suffix_ports = _ports_from_suffix(name)
-    rows: list[tuple[int, list[float]]] = []
+    # 1.x two-port files may end with noise data (a frequency at or below the last one).
+    noise_possible = suffix_ports == 2
+    rows: list[tuple[int, str]] = []
     in_information = False
     awaiting_reference = False
     first_content = True
@@ -257,6 +262,7 @@ def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header
                 )
             if keyword in ("noise data", "end"):
                 break
+            noise_possible = False
             awaiting_reference = _keyword(name, number, keyword, rest, header)
             in_information = keyword == "begin information"
             first_content = False
@@ -266,14 +272,14 @@ def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header
             if header.option_line is None:
                 _option_line(name, number, content, header)
             continue
-        values = _numbers(name, number, content)
         if awaiting_reference:
+            values = _numbers(name, number, content)
             header.references += [_positive_reference(name, number, v) for v in values]
             awaiting_reference = len(header.references) < (header.ports or 1)
             continue
-        if _starts_noise_data(header, suffix_ports, rows, values):
+        if noise_possible and _starts_noise_data(name, number, content, rows):
             break
-        rows.append((number, values))
+        rows.append((number, content))
 
     ports = header.ports if header.version != "1.x" else suffix_ports
     if ports is None:
@@ -298,45 +304,45 @@ def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header
     if not rows:
         raise FileFormatError(name, "has no data lines; expected lines of: frequency, values")
     _complete_references(name, header, ports)
-    records = _records(name, header, rows, ports)
+    lines, table = _records(name, header, rows, ports)
     with np.errstate(over="ignore"):
-        frequency_hz = np.array([v[0] for _, v in records]) * _FREQUENCY_UNITS[header.unit]
+        frequency_hz = table[:, 0] * _FREQUENCY_UNITS[header.unit]
     if not np.all(np.isfinite(frequency_hz)):
         index = int(np.flatnonzero(~np.isfinite(frequency_hz))[0])
         raise FileFormatError(
-            name, f"frequency {records[index][1][0]!r} {header.unit} overflows", records[index][0]
+            name, f"frequency {table[index, 0]!r} {header.unit} overflows", int(lines[index])
         )
-    _check_frequencies(name, records, frequency_hz)
-    if header.declared_frequencies is not None and header.declared_frequencies != len(records):
+    _check_frequencies(name, lines, table[:, 0], frequency_hz)
+    if header.declared_frequencies is not None and header.declared_frequencies != len(lines):
         raise FileFormatError(
             name,
             f"[Number of Frequencies] says {header.declared_frequencies} but the file holds"
-            f" {len(records)} frequency points",
+            f" {len(lines)} frequency points",
             header.frequencies_line,
         )
     if header.number_format == "db":
-        for number, values in records:
-            if max(abs(v) for v in values[1::2]) > _LARGEST_DECIBELS:
-                raise FileFormatError(
-                    name,
-                    f"a level beyond {_LARGEST_DECIBELS:g} dB is not a measurement; DB data hold"
-                    " 20*log10|value| and an angle in degrees",
-                    number,
-                )
+        loud = np.flatnonzero(np.abs(table[:, 1::2]).max(axis=1) > _LARGEST_DECIBELS)
+        if loud.size:
+            raise FileFormatError(
+                name,
+                f"a level beyond {_LARGEST_DECIBELS:g} dB is not a measurement; DB data hold"
+                " 20*log10|value| and an angle in degrees",
+                int(lines[loud[0]]),
+            )
     return header, frequency_hz
 
 
-def _starts_noise_data(
-    header: _Header, suffix_ports: int | None, rows: list[tuple[int, list[float]]], values: list
-) -> bool:
+def _starts_noise_data(name: str, number: int, content: str, rows: list[tuple[int, str]]) -> bool:
     """In a 1.x two-port file, noise data follow with a frequency at or below the last one."""
-    return (
-        header.version == "1.x"
-        and suffix_ports == 2
-        and bool(rows)
-        and len(values) == 5
-        and values[0] <= rows[-1][1][0]
-    )
+    values = _numbers(name, number, content)
+    if not rows or len(values) != 5:
+        return False
+    # The last network-data record starts on the last line with 9 values (or earlier ones).
+    for _, previous in reversed(rows):
+        previous_values = previous.split()
+        if len(previous_values) == 9:
+            return values[0] <= float(previous_values[0])
+    return False
 
 
 def _complete_references(name: str, header: _Header, ports: int) -> None:
@@ -352,40 +358,56 @@ def _complete_references(name: str, header: _Header, ports: int) -> None:
 
 
 def _records(
-    name: str, header: _Header, rows: list[tuple[int, list[float]]], ports: int
-) -> list[tuple[int, list[float]]]:
-    """Group data lines into one record per frequency point (line of its frequency, values)."""
+    name: str, header: _Header, rows: list[tuple[int, str]], ports: int
+) -> tuple[np.ndarray, np.ndarray]:
+    """Parse the data lines: the line of each frequency point and its values, shape (n, size)."""
+    counts = np.fromiter((len(content.split()) for _, content in rows), dtype=int, count=len(rows))
+    numbers = np.fromiter((number for number, _ in rows), dtype=int, count=len(rows))
+    flat = _parse_numbers(name, rows)
     if ports == 1:
-        for number, values in rows:
-            if len(values) != 3:
-                raise FileFormatError(
-                    name,
-                    "a one-port data line holds 3 values (frequency and two parts of the"
-                    f" parameter), this one has {len(values)}",
-                    number,
-                )
-        return rows
+        wrong = np.flatnonzero(counts != 3)
+        if wrong.size:
+            raise FileFormatError(
+                name,
+                "a one-port data line holds 3 values (frequency and two parts of the"
+                f" parameter), this one has {counts[wrong[0]]}",
+                int(numbers[wrong[0]]),
+            )
+        return numbers, flat.reshape(-1, 3)
     entries = ports * ports if header.matrix_format == "full" else ports * (ports + 1) // 2
     size = 1 + 2 * entries
-    records: list[tuple[int, list[float]]] = []
-    pending: list[float] = []
-    start = rows[0][0]
-    for number, values in rows:
-        if not pending:
-            start = number
-        pending += values
-        while len(pending) >= size:
-            records.append((start, pending[:size]))
-            pending = pending[size:]
-            start = number
-    if pending:
+    ends = np.cumsum(counts)
+    if flat.size % size:
+        start = (flat.size // size) * size
         raise FileFormatError(
             name,
-            f"the last frequency point has {len(pending)} values; each point of a {ports}-port"
-            f" file holds {size} (frequency and {entries} complex values)",
-            start,
+            f"the last frequency point has {flat.size - start} values; each point of a"
+            f" {ports}-port file holds {size} (frequency and {entries} complex values)",
+            int(numbers[np.searchsorted(ends, start, side="right")]),
         )
-    return records
+    starts = np.arange(0, flat.size, size)
+    return numbers[np.searchsorted(ends, starts, side="right")], flat.reshape(-1, size)
+
+
+def _parse_numbers(name: str, rows: list[tuple[int, str]]) -> np.ndarray:
+    """All numbers of the data lines, in order; errors name the line and token.
+
+    The fast path converts the whole block at once; when the block holds a character no plain
+    number has, or a token numpy cannot read, or a value beyond float range, the lines are read
+    one by one to say exactly where.
+    """
+    block = " ".join(content for _, content in rows)
+    if not block.translate(_NUMBER_CHARACTERS):
+        try:
+            with np.errstate(over="ignore"):
+                flat = np.array(block.split(), dtype=float)
+            if np.all(np.isfinite(flat)):
+                return flat
+        except ValueError:
+            pass
+    for number, content in rows:
+        _numbers(name, number, content)
+    raise FileFormatError(name, "holds data that are not plain numbers")  # not reached
 
 
 def _keyword(name: str, number: int, keyword: str, rest: str, header: _Header) -> bool:
@@ -498,12 +520,12 @@ def _ports_from_suffix(name: str) -> int | None:
 
 
 def _check_frequencies(
-    name: str, rows: list[tuple[int, list[float]]], frequency_hz: np.ndarray
+    name: str, lines: np.ndarray, values: np.ndarray, frequency_hz: np.ndarray
 ) -> None:
-    """Frequencies must be >= 0 and strictly increasing (``rows``: line and values per point)."""
+    """Frequencies must be >= 0 and strictly increasing (``values`` as written, per point)."""
     if frequency_hz[0] < 0:
         raise FileFormatError(
-            name, f"frequency {rows[0][1][0]!r} is negative; frequencies are >= 0", rows[0][0]
+            name, f"frequency {values[0]:g} is negative; frequencies are >= 0", int(lines[0])
         )
     steps = np.diff(frequency_hz)
     bad = np.flatnonzero(steps <= 0)
@@ -512,9 +534,9 @@ def _check_frequencies(
         word = "repeats" if steps[bad[0]] == 0 else "is below"
         raise FileFormatError(
             name,
-            f"frequency {rows[index][1][0]!r} {word} the one before (line {rows[index - 1][0]});"
+            f"frequency {values[index]:g} {word} the one before (line {lines[index - 1]});"
             " frequencies must increase strictly",
-            rows[index][0],
+            int(lines[index]),
         )
 
 
@@ -527,7 +549,9 @@ def _convert_with_scikit_rf(
     """
     from skrf.io.touchstone import Touchstone
 
-    buffer = io.StringIO(_canonical_option_line(_without_information_block(text), header))
+    if "[begin information]" in text.lower():
+        text = _without_information_block(text)
+    buffer = io.StringIO(_canonical_option_line(text, header))
     # scikit-rf takes the port count of a 1.x file from the name of the file object.
     buffer.name = f"data.s{len(header.references)}p" if header.version == "1.x" else "data.ts"
     try:
@@ -564,22 +588,31 @@ def _canonical_option_line(text: str, header: _Header) -> str:
     """The text with its first option line written in the usual order, the others dropped.
 
     The specification lets the option line's entries come in any order; scikit-rf's reader
-    expects the usual one. Entries were validated and stored in ``header`` already.
+    expects the usual one. Entries were validated and stored in ``header`` already. Large
+    files usually need no change, and then the text is passed on as it is.
     """
     option = (
         f"# {header.unit.upper()} {header.parameter.upper()} {header.number_format.upper()}"
         f" R {header.reference!r}"
     )
-    lines = []
-    seen = False
-    for line in text.splitlines():
-        if line.split("!", 1)[0].strip().startswith("#"):
-            if not seen:
-                lines.append(option)
-            seen = True
-        else:
-            lines.append(line)
-    return "\n".join(lines) + "\n"
+    spans = [match.span() for match in _OPTION_LINE.finditer(text)]
+    if not spans:
+        return text
+    first_start, first_end = spans[0]
+    if len(spans) == 1 and _same_options(text[first_start:first_end], option):
+        return text
+    pieces = [text[:first_start], option]
+    position = first_end
+    for start, end in spans[1:]:
+        pieces.append(text[position:start])
+        position = end
+    pieces.append(text[position:])
+    return "".join(pieces)
+
+
+def _same_options(line: str, option: str) -> bool:
+    """Whether an option line already reads as ``option`` (case and spacing aside)."""
+    return line.split("!", 1)[0].lower().split() == option.lower().split()
 
 
 def _without_information_block(text: str) -> str:

@@ -145,10 +145,12 @@ def complex_array(values: list[dict]) -> np.ndarray:
 
 
 def crossing_frequencies(data: dict) -> np.ndarray:
+    """The crossing frequencies of a check's JSON, Hz."""
     return np.array([c["frequency_hz"] for c in data["crossings"]])
 
 
 def one_port(frequency_hz: np.ndarray, gamma: np.ndarray, source: str) -> OnePort:
+    """An in-memory one-port referred to 50 Ω."""
     return OnePort(
         frequency_hz=frequency_hz, gamma=gamma, reference_impedance_ohm=Z0, source=source
     )
@@ -235,6 +237,7 @@ def test_terminated_two_port_matches_scikit_rf_connect_and_the_roots(tmp_path):
     assert roots.size == 2 and np.all(roots.imag != 0)
     assert data["verdict"] == "unstable" and code == 3
     assert data["encirclements"] == roots.size
+    # The crossing frequency is a Z0-dependent estimate of the mode (METHODS §1): within 10 %.
     (frequency,) = data["oscillation_frequencies_hz"]
     assert frequency == pytest.approx(abs(roots[0].imag) / (2 * np.pi), rel=0.1)
 
@@ -249,7 +252,7 @@ def test_termination_by_impedance_matches_scikit_rf_connect(tmp_path):
     np.testing.assert_allclose(prepared.one_port.gamma, reference.s[:, 0, 0], atol=1e-12)
 
 
-# --- mixed mode ------------------------------------------------------------------------------------
+# --- mixed mode -----------------------------------------------------------------------------------
 
 MIXED_GRID_HZ = np.linspace(10e6, 20e9, 2000)
 # A balanced device measured on two ports (invented): a floating −200 Ω ∥ 0.4 pF between the
@@ -313,7 +316,7 @@ def test_differential_ports_match_scikit_rf_se2gmm(tmp_path):
     assert (data["verdict"], data["encirclements"], code) == ("unstable", 2, 3)
 
 
-# --- reference planes ---------------------------------------------------------------------------------
+# --- reference planes -----------------------------------------------------------------------------
 
 
 def _media(frequency_hz: np.ndarray) -> skrf.media.DefinedGammaZ0:
@@ -442,7 +445,7 @@ def test_latch_up_below_the_sweep_needs_the_dc_resistances(tmp_path):
     assert result.encirclements == roots.size
 
 
-# --- worst-case load: the return-loss bound ---------------------------------------------------------
+# --- worst-case load: the return-loss bound -------------------------------------------------------
 
 BOUND_GRID_HZ = np.linspace(100e6, 3e9, 30)
 
@@ -470,7 +473,7 @@ def test_return_loss_bound_of_a_pure_negative_resistance(tmp_path, resistance_oh
     assert data["required_return_loss"]["worst_db"] == pytest.approx(required_db, abs=1e-9)
 
 
-# --- |Γ| uncertainty: the count is at stake exactly when the worst |ΔL| reaches the margin ----------
+# --- |Γ| uncertainty: the count is at stake exactly when the worst |ΔL| reaches the margin --------
 
 # Device: a pure −100 Ω in 50 Ω, Γd = 3. Load: a 0.3 mismatch behind 1 ns of matched line,
 # ΓL = 0.3·exp(−j·4πfτ). So L = 0.9·exp(−jθ) and min |1 − L| = 1 − 0.9 = 0.1 where θ = 0 mod 2π,
@@ -542,7 +545,7 @@ def test_without_uncertainty_the_margin_is_the_closed_form(uncertainty_files):
     assert data["margins"]["min_distance_to_critical_point"] == pytest.approx(MARGIN, abs=1e-12)
 
 
-# --- a resonance hidden between samples (Foster's reactance theorem) --------------------------------
+# --- a resonance hidden between samples (Foster's reactance theorem) ------------------------------
 
 COARSE_GRID_HZ = np.arange(10e6, 4e9 + 1.0, 10e6)  # 10 MHz steps: resolves loaded Q ≈ 50 at 1 GHz
 FINE_GRID_HZ = np.arange(10e6, 4e9 + 1.0, 0.1e6)  # 100 times finer
@@ -564,6 +567,7 @@ TANK_DEVICE = series(resistor(3.0), parallel(resistor(-60.0), capacitor(5e-12)))
 
 
 def _check_on(grid_hz: np.ndarray, device: Polynomials, load: Polynomials):
+    """``oneport.check`` of two circuits sampled on one grid (API, no files)."""
     return oneport.check(
         one_port(grid_hz, reflection(device, grid_hz), "device"),
         one_port(grid_hz, reflection(load, grid_hz), "load"),
@@ -600,8 +604,8 @@ def test_resonance_between_samples_is_flagged_and_the_count_left_open():
 
 
 # METHODS §2's example: a plain Q = 1000 tank (Rp = 100 Ω) on a 10 MHz grid; the device
-# 1 Ω + (−80 Ω ∥ 0.1 pF) has |Γd| ≈ 4 there. Im Z of the tank is only ±10 Ω at the samples beside
-# the resonance, below the Foster threshold (|Im Z| > Z0 on both sides), so nothing is flagged.
+# 1 Ω + (−80 Ω ∥ 0.1 pF) has |Γd| ≈ 4 there. Im Z of the tank is only ±10 Ω (0.2·Z0) at the
+# samples beside the resonance, yet the loop gain's hidden excursion encircles +1.
 PLAIN_TANK = tank(100.0, 1000.0, 1.005e9)
 PLAIN_TANK_DEVICE = series(resistor(1.0), parallel(resistor(-80.0), capacitor(0.1e-12)))
 
@@ -616,13 +620,13 @@ def test_plain_high_q_tank_between_samples_is_not_called_stable():
     assert coarse.verdict != "stable", (coarse.encirclements, [w.code for w in coarse.warnings])
 
 
-# --- small-signal start-up estimates (Kurokawa, one Newton step) -------------------------------------
+# --- small-signal start-up estimates (Kurokawa, one Newton step) ----------------------------------
 
 STARTUP_GRID_HZ = np.linspace(0.5e9, 1.5e9, 1001)
 
 
 def _estimates(result, form: str, near_hz: float):
-    """The start-up estimates of one form whose X_T = 0 (B_T = 0) crossing is nearest ``near_hz``."""
+    """The estimate of one form whose X_T = 0 (or B_T = 0) crossing is nearest ``near_hz``."""
     found = [e for e in result.startup_estimates if e.form == form]
     assert found, [e.form for e in result.startup_estimates]
     return min(found, key=lambda e: abs(e.crossing_frequency_hz - near_hz))
@@ -684,13 +688,19 @@ def test_a_reactance_zero_exactly_on_a_sample_is_still_estimated():
     assert {e.form for e in result.startup_estimates} == {"impedance", "admittance"}
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="oneport bug: nyquist.find_margins finds arg L = 0 by the same sign product, so L"
-    " exactly real at a sample gives no gain margin; see the report",
-)
 def test_a_loop_gain_real_exactly_on_a_sample_still_has_its_gain_margin():
     # −300 Ω (Γd = 1.4) against a 100 Ω tank at 1 GHz (Γ = 1/3): L = 0.4667 there, real.
     result = _check_on(STARTUP_GRID_HZ, resistor(-300.0), tank(100.0, 20.0, 1e9))
     # source: hand calculation, gain margin = −20·log10(1.4/3) = 6.62 dB
     assert result.margins.gain_margin_db == pytest.approx(-20 * np.log10(1.4 / 3), rel=1e-6)
+
+
+def test_return_loss_bound_needs_a_sweep(tmp_path):
+    # A bound "over frequency" from one point would claim a guarantee the data cannot give.
+    device = tmp_path / "one_point.s1p"
+    device.write_text("# GHz S RI R 50\n1 3 0\n")
+    out, err = io.StringIO(), io.StringIO()
+    code = main(["check", str(device), "--load-return-loss", "15dB"], stdout=out, stderr=err)
+    assert code == 2
+    assert len(err.getvalue().strip().splitlines()) == 1
+    assert "at least 5" in err.getvalue()
