@@ -11,7 +11,7 @@ from importlib import import_module
 from types import ModuleType
 
 #: Subcommand modules, in the order ``--help`` lists them.
-COMMAND_MODULES = ("check", "watch", "sweep", "oscillator")
+COMMAND_MODULES = ("check", "watch", "sweep", "oscillator", "poles", "amplifier")
 
 
 def load_commands() -> list[ModuleType]:

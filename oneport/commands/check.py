@@ -94,6 +94,11 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
             metavar="FILE",
             help=f"de-embed this two-port fixture (port 1 at the instrument) from the {side}",
         )
+    command.add_argument(
+        "--poles",
+        action="store_true",
+        help="second opinion: fit 1 - L and list its natural frequencies beside the count",
+    )
     pictures = command.add_argument_group("pictures")
     pictures.add_argument(
         "--plot", metavar="FILE", help="also write the quick-look plot (.png or .svg)"
@@ -117,9 +122,9 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     impedance = _resistance(arguments.measurement_impedance, "--measurement-impedance")
     result: Any
     if arguments.load_return_loss is not None:
-        if impedance is not None or arguments.plot or arguments.report:
+        if impedance is not None or arguments.plot or arguments.report or arguments.poles:
             raise InputError(
-                "--measurement-impedance, --plot and --report go with --load, not with"
+                "--measurement-impedance, --poles, --plot and --report go with --load, not with"
                 " --load-return-loss"
             )
         port = device.one_port
@@ -152,13 +157,44 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         text = render(result)
         line = verdict_line(result)
         _pictures(result, arguments)
+    data = result.to_dict(include_arrays=arguments.include_arrays)
+    if arguments.poles and arguments.load is not None:
+        second = _second_opinion(result)
+        data["poles"] = second.to_dict()
+        data["warnings"] += [
+            w.to_dict() for w in second.warnings if w.code == "pole-count-disagrees"
+        ]
+        text = _with_second_opinion(text, second)
     if arguments.json:
-        write_json(result.to_dict(include_arrays=arguments.include_arrays), out)
+        write_json(data, out)
     elif arguments.quiet:
         print(line, file=out)
     else:
         out.write(text)
     return verdict_exit_code(result.verdict)
+
+
+def _second_opinion(result: Any) -> Any:
+    """The pole–zero identification of F = 1 − L, cross-checked with the count."""
+    from ..poles import identify_natural_frequencies, with_count_check
+
+    fitted = identify_natural_frequencies(
+        result.frequency_hz,
+        1.0 - result.loop_gain,
+        reference_impedance_ohm=result.reference_impedance_ohm,
+        inputs=result.inputs,
+    )
+    return with_count_check(fitted, result.encirclements)
+
+
+def _with_second_opinion(text: str, second: Any) -> str:
+    """The check's report with the fit's section inserted before the premise."""
+    from .poles import second_opinion_lines
+
+    section = "\n".join(second_opinion_lines(second)) + "\n\n"
+    marker = "Premise\n"
+    index = text.find(marker)
+    return text[:index] + section + text[index:] if index >= 0 else text + "\n" + section
 
 
 def _pictures(result: Any, arguments: argparse.Namespace) -> None:

@@ -1,0 +1,258 @@
+"""``oneport poles``: the natural frequencies a rational fit of F = 1 − Γd·ΓL implies.
+
+Text rendering of :class:`~oneport.poles.PoleZeroResult` (and, with ``--character``, of
+:class:`~oneport.character.DeviceCharacter`) lives here too; it formats and computes nothing.
+"""
+
+from __future__ import annotations
+
+import argparse
+import textwrap
+from typing import TYPE_CHECKING, Any, TextIO
+
+from ..units import format_frequency, parse_quantity
+from .common import add_output_options, write_json
+
+if TYPE_CHECKING:
+    from ..character import DeviceCharacter
+    from ..poles import NaturalFrequency, PoleZeroResult
+
+NAME = "poles"
+_WIDTH = 92
+_HEADLINE = {
+    "stable": "STABLE (small-signal): no natural frequency in the right half plane",
+    "unstable": "UNSTABLE",
+    "inconclusive": "INCONCLUSIVE: the fit cannot decide",
+}
+
+
+def add_parser(commands: Any) -> argparse.ArgumentParser:
+    """Register ``poles`` and its options."""
+    command: argparse.ArgumentParser = commands.add_parser(
+        NAME,
+        help="natural frequencies from a rational fit of 1 - gamma_device * gamma_load",
+        description="Fit a rational model to F = 1 - gamma_device * gamma_load over the"
+        " measured band and list the natural frequencies its zeros imply (frequency, growth"
+        " rate, half plane), each with the trust rules it passed.",
+        epilog="example: oneport poles diode.s1p --load bias_tee.s1p --character --json",
+    )
+    command.add_argument("device", help="the device's Touchstone one-port (.s1p or 2.x .ts)")
+    command.add_argument("--load", required=True, help="the load's Touchstone one-port")
+    command.add_argument(
+        "--measurement-impedance",
+        metavar="OHMS",
+        help="impedance the device was measured in, if its file was renormalised afterwards"
+        " (e.g. 50ohm); default: the device file's reference",
+    )
+    command.add_argument(
+        "--character",
+        action="store_true",
+        help="add the device's character: stable open-circuited, short-circuited, in Z0, and"
+        " the Nyquist count in the reflection, impedance and admittance forms",
+    )
+    command.add_argument(
+        "--max-order",
+        type=_positive_int,
+        default=None,
+        metavar="N",
+        help="highest model order (number of poles) tried; default 24",
+    )
+    add_output_options(command)
+    return command
+
+
+def _positive_int(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        value = 0
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of 1 or more")
+    return value
+
+
+def run(arguments: argparse.Namespace, out: TextIO) -> int:
+    """Fit, cross-check with the Nyquist count, print; return the verdict's exit code."""
+    from ..alignment import align
+    from ..check import analyse_pair, load_one_port
+    from ..cli import verdict_exit_code
+    from ..poles import DEFAULT_MAX_ORDER, identify_natural_frequencies, with_count_check
+
+    impedance = None
+    if arguments.measurement_impedance is not None:
+        impedance = parse_quantity(
+            arguments.measurement_impedance, "resistance", option="--measurement-impedance"
+        )
+    device = load_one_port(arguments.device, "device")
+    load = load_one_port(arguments.load, "load")
+    pair = align(device, load, impedance)
+    nyquist = analyse_pair(pair, device, load)
+    result = identify_natural_frequencies(
+        pair.frequency_hz,
+        1.0 - pair.gamma_device * pair.gamma_load,
+        reference_impedance_ohm=pair.reference_impedance_ohm,
+        max_order=arguments.max_order or DEFAULT_MAX_ORDER,
+        inputs=nyquist.inputs,
+    )
+    result = with_count_check(result, nyquist.encirclements)
+    character = None
+    if arguments.character:
+        from ..character import characterise_device
+
+        character = characterise_device(
+            pair.frequency_hz,
+            pair.gamma_device,
+            pair.reference_impedance_ohm,
+            load_gamma=pair.gamma_load,
+        )
+    if arguments.json:
+        data = result.to_dict(include_arrays=arguments.include_arrays)
+        if character is not None:
+            data["device_character"] = character.to_dict()
+        write_json(data, out)
+    elif arguments.quiet:
+        print(verdict_line(result), file=out)
+    else:
+        out.write(render(result, character))
+    return verdict_exit_code(result.verdict)
+
+
+def verdict_line(result: PoleZeroResult) -> str:
+    """One line: verdict, trusted RHP modes, band and Z0."""
+    low, high = result.frequency_range_hz
+    band = f"{format_frequency(low)}-{format_frequency(high)}"
+    rhp = [m for m in result.natural_frequencies if m.rhp and m.trusted and not m.extrapolated]
+    extra = ""
+    if rhp:
+        extra = ": " + ", ".join(_short(m) for m in rhp)
+    z0 = result.reference_impedance_ohm
+    ohm = "" if z0 is None else f", Z0 = {z0:g} ohm"
+    return f"{_HEADLINE[result.verdict]}{extra}; {band}{ohm}"
+
+
+def render(result: PoleZeroResult, character: DeviceCharacter | None = None) -> str:
+    """The full text report: verdict first, the modes, the fit, cautions last."""
+    parts = [verdict_line(result), ""]
+    parts += [_wrap(reason, "  ") for reason in result.reasons]
+    parts += [
+        "",
+        "Natural frequencies (zeros of the fitted F)",
+        *_table(result.natural_frequencies),
+    ]
+    parts += ["", "Poles of the fitted F (each side terminated in Z0)"]
+    parts += _table(result.characteristic_poles)
+    parts += ["", *_fit(result)]
+    if character is not None:
+        parts += ["", *render_character(character)]
+    if result.warnings:
+        parts += ["", "Warnings"]
+        parts += [_wrap(f"[{w.code}] {w.message}", "  ") for w in result.warnings]
+    parts += ["", "Premise", _wrap(result.premise, "  ")]
+    parts += ["", "Cautions"]
+    parts += [_wrap(caution, "  ! ") for caution in result.cautions]
+    return "\n".join(parts) + "\n"
+
+
+def second_opinion_lines(result: PoleZeroResult) -> list[str]:
+    """The fit's section in ``oneport check --poles``: verdict, modes, fit, disagreements."""
+    rows = ["Second opinion: pole-zero fit of 1 - L", "  " + verdict_line(result)]
+    rows += _table(result.natural_frequencies)
+    rows += _fit(result)
+    rows += [
+        _wrap(f"[{w.code}] {w.message}", "  ")
+        for w in result.warnings
+        if w.code == "pole-count-disagrees"
+    ]
+    return rows
+
+
+def render_character(character: DeviceCharacter) -> list[str]:
+    """The device-character section."""
+    z0 = character.reference_impedance_ohm
+    rows = [f"Device character ({character.kind}; fitted in Z0 = {z0:g} ohm)"]
+    rows += [_wrap(sentence, "  ") for sentence in character.summary]
+    words = {True: "stable", False: "UNSTABLE", None: "not confirmed"}
+    for termination in character.terminations:
+        rows.append(f"  {termination.description}: {words[termination.stable]}")
+        rows += ["  " + row for row in _table(termination.natural_frequencies)[1:]]
+    if character.negative_resistance_bands_hz:
+        listed = ", ".join(
+            f"{format_frequency(a)}-{format_frequency(b)}"
+            for a, b in character.negative_resistance_bands_hz
+        )
+        rows.append(f"  negative resistance (|gamma_device| > 1): {listed}")
+    if character.forms:
+        rows += ["", "Nyquist count in three forms (with the load)"]
+        rows.append(f"  {'form':<11} {'function':<30} {'N':>4} {'P':>4} {'N + P':>6}")
+        for form in character.forms:
+            rows.append(
+                f"  {form.form:<11} {form.function:<30} {_number(form.encirclements):>4}"
+                f" {_number(form.premise_poles):>4} {_number(form.implied_rhp_roots):>6}"
+            )
+        rows += [_wrap(sentence, "  ") for sentence in character.agreement]
+    return rows
+
+
+def _table(modes: tuple[NaturalFrequency, ...]) -> list[str]:
+    if not modes:
+        return ["  none"]
+    rows = [f"  {'frequency':>12}  {'sigma (1/s)':>12}  {'half plane':<10}  {'trusted':<7}  notes"]
+    for mode in modes:
+        frequency = "real root" if mode.real else format_frequency(mode.frequency_hz)
+        notes = _notes(mode)
+        rows.append(
+            f"  {frequency:>12}  {mode.sigma_per_s:>+12.4g}  {'right' if mode.rhp else 'left':<10}"
+            f"  {'yes' if mode.trusted else 'no':<7}  {notes}"
+        )
+    return rows
+
+
+def _notes(mode: NaturalFrequency) -> str:
+    notes = []
+    if mode.extrapolated:
+        notes.append("far outside the band")
+    if not mode.persists_across_order:
+        notes.append("moves with model order")
+    if not mode.persists_across_band:
+        notes.append("not confirmed on trimmed band")
+    if mode.near_cancellation:
+        notes.append("near pole-zero cancellation")
+    if mode.within_noise_of_axis:
+        notes.append("within noise of the axis")
+    if mode.rhp and mode.real and mode.trusted:
+        notes.append("latch-up")
+    return "; ".join(notes)
+
+
+def _fit(result: PoleZeroResult) -> list[str]:
+    quality = "adequate" if result.fit_adequate else "TOO POOR to judge"
+    rows = [
+        "Fit",
+        f"  model order {result.model_order}, RMS error {result.fit_rms_error:.3g}"
+        f" (data noise about {result.noise_estimate:.3g}): {quality}",
+    ]
+    for name, _order, error in result.variants:
+        rows.append(f"  variant {name}: RMS error {error:.3g}")
+    count = result.nyquist_encirclements
+    if count is not None:
+        rows.append(
+            f"  Nyquist count N = {count}; trusted right-half-plane zeros:"
+            f" {result.trusted_rhp_count}"
+        )
+    return rows
+
+
+def _short(mode: NaturalFrequency) -> str:
+    if mode.real:
+        return f"latch-up (real root, sigma = {mode.sigma_per_s:.3g} /s)"
+    return f"{format_frequency(mode.frequency_hz)} (sigma = {mode.sigma_per_s:+.3g} /s)"
+
+
+def _number(value: int | None) -> str:
+    return "?" if value is None else str(value)
+
+
+def _wrap(text: str, indent: str) -> str:
+    return textwrap.fill(
+        text, width=_WIDTH, initial_indent=indent, subsequent_indent=" " * len(indent)
+    )

@@ -1,0 +1,192 @@
+"""Reflection-amplifier screening: gain, bandwidth, ripple bounds, the port match needed."""
+
+from __future__ import annotations
+
+import io
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+import oneport
+from oneport.amplifier import analyse_amplifier, plot_amplifier, screen_amplifier
+from oneport.cli import main
+from oneport.errors import InputError
+
+Z0 = 50.0
+
+
+def parallel_device(f: np.ndarray, resistance: float = 75.0, capacitance: float = 1e-12):
+    """Gamma of -R || C in Z0."""
+    admittance = -1 / resistance + 2j * np.pi * f * capacitance
+    return (1 - Z0 * admittance) / (1 + Z0 * admittance)
+
+
+def frequency_for_gain(gain: float, resistance: float = 75.0, capacitance: float = 1e-12):
+    """Where |gamma|^2 of -R || C equals ``gain`` (worked by hand from the closed form).
+
+    gamma = (a - jx)/(b + jx) with a = 1 + Z0/R, b = 1 - Z0/R, x = w Z0 C, so
+    |gamma|^2 = (a^2 + x^2)/(b^2 + x^2) and x^2 = (a^2 - gain b^2)/(gain - 1).
+    """
+    a, b = 1 + Z0 / resistance, 1 - Z0 / resistance
+    x = np.sqrt((a**2 - gain * b**2) / (gain - 1))
+    return x / (Z0 * capacitance) / (2 * np.pi)
+
+
+def circulator_port(f: np.ndarray) -> np.ndarray:
+    """A well-matched port: 55 ohm + 0.2 nH (about 20 dB return loss up to 5 GHz)."""
+    impedance = 55.0 + 2j * np.pi * f * 0.2e-9
+    return (impedance - Z0) / (impedance + Z0)
+
+
+def one_port(f: np.ndarray, gamma: np.ndarray, name: str) -> oneport.OnePort:
+    return oneport.OnePort(frequency_hz=f, gamma=gamma, reference_impedance_ohm=Z0, source=name)
+
+
+@pytest.mark.parametrize("resistance", [75.0, 100.0, 150.0])
+def test_pure_negative_resistance_gain(resistance):
+    f = np.linspace(0.0, 1e9, 11)
+    gamma = np.full(f.size, (-resistance - Z0) / (-resistance + Z0), dtype=complex)
+    result = analyse_amplifier(f, gamma, Z0)
+    # METHODS section 6: gain ((R + Z0)/(R - Z0))^2 for a pure -R.
+    expected = 10 * np.log10(((resistance + Z0) / (resistance - Z0)) ** 2)
+    assert result.gain_db == pytest.approx(np.full(f.size, expected))
+    assert result.worst_required_return_loss_db == pytest.approx(expected)
+
+
+F_FINE = np.linspace(0.0, 5e9, 2001)
+
+
+def test_parallel_device_gain_and_bandwidth():
+    result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, gain_threshold_db=10.0)
+    # -75 ohm || 1 pF in 50 ohm: low-frequency gain ((75 + 50)/(75 - 50))^2 = 25, 13.98 dB.
+    assert result.peak_gain_db == pytest.approx(13.979, abs=1e-3)
+    assert result.peak_frequency_hz == 0.0
+    upper = frequency_for_gain(25 * 10 ** (-0.3))  # exactly 3 dB below the peak
+    assert result.bandwidth.start_hz == 0.0 and result.bandwidth.starts_at_sweep_edge
+    assert result.bandwidth.stop_hz == pytest.approx(upper, rel=1e-3)
+    (band,) = result.bands
+    assert band.stop_hz == pytest.approx(frequency_for_gain(10.0), rel=1e-3)
+
+
+def test_ripple_bounds_for_a_stated_return_loss():
+    result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=20.0)
+    magnitude = np.abs(parallel_device(F_FINE))
+    port = 10 ** (-20 / 20)
+    # METHODS section 6: voltage gain between |Gd|/(1 +- |Gd GL|), power gain their squares.
+    lower, upper = result.gain_bounds_db
+    assert lower == pytest.approx(20 * np.log10(magnitude / (1 + magnitude * port)))
+    assert upper == pytest.approx(20 * np.log10(magnitude / (1 - magnitude * port)))
+    assert result.ripple_at_peak_db == pytest.approx((20 * np.log10(5 / 1.5), 20.0))
+    assert result.port_margin_db == pytest.approx(20 - 13.979, abs=1e-3)
+    assert result.verdict == "stable" and result.guaranteed
+
+
+def test_required_return_loss_is_the_gain_where_there_is_gain():
+    result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0)
+    # Small-gain bound |GL| < 1/|Gd| (METHODS section 6): 20 log10 |Gd| dB wherever |Gd| > 1.
+    expected = np.maximum(20 * np.log10(np.abs(parallel_device(F_FINE))), 0.0)
+    assert result.required_return_loss_db == pytest.approx(expected)
+    assert result.worst_frequency_hz == 0.0
+    assert result.verdict == "inconclusive" and result.basis == "none"
+
+
+@pytest.mark.parametrize(("return_loss", "verdict"), [(20.0, "stable"), (10.0, "not-guaranteed")])
+def test_verdict_for_a_stated_match(return_loss, verdict):
+    result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=return_loss)
+    assert result.verdict == verdict and result.basis == "small-gain"
+
+
+def test_gain_still_rising_at_the_low_edge_is_inconclusive():
+    f = np.linspace(1e9, 5e9, 401)  # misses the low-frequency gain peak
+    result = analyse_amplifier(f, parallel_device(f), Z0, port_return_loss_db=14.5)
+    assert result.port_margin_db > 0
+    assert result.verdict == "inconclusive"
+    assert not result.edges[0].founded and result.edges[1].founded
+
+
+def test_passive_device_is_stable_with_any_passive_port():
+    f = np.linspace(1e6, 1e9, 51)
+    result = analyse_amplifier(f, np.full(f.size, 0.5 + 0j), Z0)
+    assert result.verdict == "stable" and result.port_source == "any-passive-port"
+
+
+def test_nyquist_with_the_load_decides():
+    device = one_port(F_FINE, parallel_device(F_FINE), "device")
+    port = circulator_port(F_FINE)
+    result = screen_amplifier(device, load=one_port(F_FINE, port, "circulator"))
+    assert result.verdict == "stable" and result.basis == "nyquist"
+    assert result.nyquist is not None and result.nyquist.encirclements == 0
+    # Multiple reflections between device and port: Gd/(1 - Gd GL) (common practice).
+    gamma_device = parallel_device(F_FINE)
+    expected = 20 * np.log10(np.abs(gamma_device / (1 - gamma_device * port)))
+    assert result.gain_with_load_db == pytest.approx(expected)
+    # 100 ohm: Yd + YL = -1/75 + 1/100 + sC = 0 at s > 0 (by hand): a latch-up.
+    resistive = one_port(F_FINE, np.full(F_FINE.size, (100 - Z0) / (100 + Z0) + 0j), "100 ohm")
+    result = screen_amplifier(device, load=resistive)
+    assert result.verdict == "unstable" and result.nyquist.encirclements == 1
+
+
+def test_json_form():
+    result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=10.0)
+    data = json.loads(json.dumps(result.to_dict(include_arrays=True), allow_nan=False))
+    assert data["schema"] == "oneport.amplifier/1"
+    assert data["verdict"] == "not-guaranteed"
+    assert data["gain"]["reference_impedance_ohm"] == Z0
+    assert data["gain"]["bandwidth_3db"]["bandwidth_hz"] == pytest.approx(
+        frequency_for_gain(25 * 10 ** (-0.3)), rel=1e-3
+    )
+    assert data["port"]["ripple_at_peak"]["gain_upper_db"] is None  # |Gd GL| > 1 there
+    assert None in data["arrays"]["gain_upper_db"]
+
+
+def test_bad_input():
+    device = one_port(F_FINE, parallel_device(F_FINE), "device")
+    with pytest.raises(InputError, match="not both"):
+        screen_amplifier(device, load=device, port_return_loss_db=20.0)
+    with pytest.raises(InputError, match="0 or more"):
+        analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=-3.0)
+
+
+def test_plot_draws_gain_and_requirement():
+    from matplotlib.figure import Figure
+
+    result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=20.0)
+    axes = plot_amplifier(result, Figure().subplots())
+    labels = [line.get_label() for line in axes.get_lines()]
+    assert "gain |Γd|²" in labels and "return loss needed (small gain)" in labels
+    gain_line = axes.get_lines()[0]
+    assert gain_line.get_ydata() == pytest.approx(result.gain_db)
+
+
+def write_s1p(path: Path, f: np.ndarray, gamma: np.ndarray) -> Path:
+    """Touchstone 1.x, Hz, S, RI, R 50 (Touchstone specification layout)."""
+    lines = ["# Hz S RI R 50"]
+    lines += [f"{x:.10g} {g.real:.12e} {g.imag:.12e}" for x, g in zip(f, gamma, strict=True)]
+    path.write_text("\n".join(lines) + "\n", encoding="ascii")
+    return path
+
+
+def run_cli(*arguments: str) -> tuple[int, str, str]:
+    out, err = io.StringIO(), io.StringIO()
+    code = main(list(arguments), stdout=out, stderr=err)
+    return code, out.getvalue(), err.getvalue()
+
+
+def test_command(tmp_path):
+    f = np.linspace(0.0, 5e9, 401)
+    device = str(write_s1p(tmp_path / "device.s1p", f, parallel_device(f)))
+    circulator = write_s1p(tmp_path / "circulator.s1p", f, circulator_port(f))
+    resistor = write_s1p(tmp_path / "r100.s1p", f, np.full(f.size, 1 / 3 + 0j))
+    plot = tmp_path / "gain.png"
+    code, out, err = run_cli("amplifier", device, "--port-return-loss", "20dB", "--plot", str(plot))
+    assert (code, err) == (0, "") and out.startswith("STABLE")
+    assert plot.stat().st_size > 0
+    assert run_cli("amplifier", device, "--port-return-loss", "10dB", "--quiet")[0] == 3
+    assert run_cli("amplifier", device, "--quiet")[0] == 4
+    code, out, _ = run_cli("amplifier", device, "--load", str(circulator), "--json")
+    assert code == 0 and json.loads(out)["nyquist"]["encirclements"] == 0
+    assert run_cli("amplifier", device, "--load", str(resistor), "--quiet")[0] == 3
+    code, _, err = run_cli("amplifier", device, "--port-return-loss=-3dB")
+    assert code == 2 and "0 or more" in err
