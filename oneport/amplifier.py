@@ -22,7 +22,6 @@ import numpy as np
 from .cautions import CAUTIONS
 from .errors import InputError
 from .result import CheckResult, Finding, InputRecord
-from .touchstone import OnePort
 from .units import format_frequency
 
 AMPLIFIER_SCHEMA = "oneport.amplifier/1"
@@ -276,7 +275,7 @@ def screen_amplifier(
             z0,
             gain_threshold_db=gain_threshold_db,
             port_return_loss_db=port_return_loss_db,
-            inputs=(_record("device", device_port, z0),),
+            inputs=(InputRecord.of("device", device_port, z0),),
         )
     load_port = load_one_port(load, "load")
     pair = align(device_port, load_port, measurement_impedance_ohm)
@@ -658,21 +657,6 @@ def _nyquist_dict(nyquist: CheckResult | None) -> dict[str, Any] | None:
     summary["oscillation_frequencies_hz"] = data["oscillation_frequencies_hz"]
     summary["margins"] = data["margins"]
     return summary
-
-
-def _record(role: str, port: OnePort, analysed_ohm: float) -> InputRecord:
-    return InputRecord(
-        role=role,
-        source=port.source,
-        sha256=port.sha256,
-        points=port.points,
-        frequency_range_hz=(float(port.frequency_hz[0]), float(port.frequency_hz[-1])),
-        parameter=port.parameter,
-        number_format=port.number_format,
-        version=port.version,
-        file_reference_impedance_ohm=port.reference_impedance_ohm,
-        analysed_reference_impedance_ohm=analysed_ohm,
-    )
 
 
 def _finite_or_none(value: float) -> float | None:

@@ -228,7 +228,7 @@ def analyse_pair(
         ),
         warnings=tuple(warnings),
         cautions=CAUTIONS,
-        inputs=(input_record("device", device, z0), input_record("load", load, z0)),
+        inputs=(InputRecord.of("device", device, z0), InputRecord.of("load", load, z0)),
         reference_impedance_ohm=z0,
         points_dropped=pair.device_points_dropped_below + pair.device_points_dropped_above,
         frequency_hz=frequency_hz,
@@ -547,19 +547,3 @@ def _findings(
             )
         )
     return findings
-
-
-def input_record(role: str, port: OnePort, analysed_ohm: float) -> InputRecord:
-    """What was read for one side, for the result's ``inputs``."""
-    return InputRecord(
-        role=role,
-        source=port.source,
-        sha256=port.sha256,
-        points=port.points,
-        frequency_range_hz=(float(port.frequency_hz[0]), float(port.frequency_hz[-1])),
-        parameter=port.parameter,
-        number_format=port.number_format,
-        version=port.version,
-        file_reference_impedance_ohm=port.reference_impedance_ohm,
-        analysed_reference_impedance_ohm=analysed_ohm,
-    )

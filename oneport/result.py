@@ -78,6 +78,22 @@ class InputRecord:
     analysed_reference_impedance_ohm: float
     preparation: tuple[str, ...] = ()
 
+    @classmethod
+    def of(cls, role: str, port: Any, analysed_ohm: float) -> InputRecord:
+        """The record of a :class:`~oneport.touchstone.OnePort` analysed in ``analysed_ohm``."""
+        return cls(
+            role=role,
+            source=port.source,
+            sha256=port.sha256,
+            points=port.points,
+            frequency_range_hz=(float(port.frequency_hz[0]), float(port.frequency_hz[-1])),
+            parameter=port.parameter,
+            number_format=port.number_format,
+            version=port.version,
+            file_reference_impedance_ohm=port.reference_impedance_ohm,
+            analysed_reference_impedance_ohm=analysed_ohm,
+        )
+
     def to_dict(self) -> dict[str, Any]:
         """JSON form of the record."""
         return {

@@ -8,9 +8,10 @@ from __future__ import annotations
 
 import math
 import textwrap
+from collections.abc import Sequence
 
 from .bound import BoundResult
-from .result import CheckResult
+from .result import CheckResult, Finding
 from .units import format_frequency, to_decibels
 
 _HEADLINE = {
@@ -38,7 +39,7 @@ def verdict_line(result: CheckResult) -> str:
 def render(result: CheckResult) -> str:
     """The full text report."""
     parts = [verdict_line(result), ""]
-    parts += [_wrap(reason, "  ") for reason in result.reasons]
+    parts += [wrap(reason, "  ") for reason in result.reasons]
     parts += ["", "Inputs"]
     for record in result.inputs:
         low, high = record.frequency_range_hz
@@ -67,15 +68,7 @@ def render(result: CheckResult) -> str:
     parts += ["", *_diagnostics(result)]
     if result.startup_estimates:
         parts += ["", *_startup(result)]
-    if result.warnings:
-        parts += ["", "Warnings"]
-        parts += [_wrap(f"[{w.code}] {w.message}", "  ") for w in result.warnings]
-    if result.next_steps:
-        parts += ["", "What to do next"]
-        parts += [_wrap(step, "  - ") for step in result.next_steps]
-    parts += ["", "Premise", _wrap(result.premise, "  ")]
-    parts += ["", "Cautions"]
-    parts += [_wrap(caution, "  ! ") for caution in result.cautions]
+    parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
     return "\n".join(parts) + "\n"
 
 
@@ -208,7 +201,7 @@ def render_bound(result: BoundResult) -> str:
         f" {format_frequency(low)}-{format_frequency(high)}",
         "",
     ]
-    parts += [_wrap(reason, "  ") for reason in result.reasons]
+    parts += [wrap(reason, "  ") for reason in result.reasons]
     parts += [
         "",
         f"Required load return loss (Z0 = {result.reference_impedance_ohm:g} ohm)",
@@ -223,23 +216,37 @@ def render_bound(result: BoundResult) -> str:
                 f" (worst |gamma_d|*rho {band.peak_loop_gain:.3g} at"
                 f" {format_frequency(band.peak_frequency_hz)})"
             )
-    if result.warnings:
-        parts += ["", "Warnings"]
-        parts += [_wrap(f"[{w.code}] {w.message}", "  ") for w in result.warnings]
-    if result.next_steps:
-        parts += ["", "What to do next"]
-        parts += [_wrap(step, "  - ") for step in result.next_steps]
-    parts += ["", "Premise", _wrap(result.premise, "  ")]
-    parts += ["", "Cautions"]
-    parts += [_wrap(caution, "  ! ") for caution in result.cautions]
+    parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
     return "\n".join(parts) + "\n"
+
+
+def closing_sections(
+    warnings: Sequence[Finding],
+    next_steps: Sequence[str] = (),
+    premise: str | None = None,
+    cautions: Sequence[str] = (),
+    limits: Sequence[str] = (),
+) -> list[str]:
+    """The sections every report ends with: warnings, next steps, premise, limits, cautions."""
+    parts: list[str] = []
+    if warnings:
+        parts += ["", "Warnings", *[wrap(f"[{w.code}] {w.message}", "  ") for w in warnings]]
+    if next_steps:
+        parts += ["", "What to do next", *[wrap(step, "  - ") for step in next_steps]]
+    if premise:
+        parts += ["", "Premise", wrap(premise, "  ")]
+    if limits:
+        parts += ["", "Limits of the method", *[wrap(limit, "  - ") for limit in limits]]
+    parts += ["", "Cautions", *[wrap(caution, "  ! ") for caution in cautions]]
+    return parts
 
 
 def _ohm(result: CheckResult) -> str:
     return f"{result.reference_impedance_ohm:g} ohm"
 
 
-def _wrap(text: str, indent: str) -> str:
+def wrap(text: str, indent: str) -> str:
+    """``text`` wrapped to the report width, every line indented."""
     return textwrap.fill(
         text, width=_WIDTH, initial_indent=indent, subsequent_indent=" " * len(indent)
     )

@@ -7,9 +7,9 @@ computes nothing.
 from __future__ import annotations
 
 import argparse
-import textwrap
 from typing import TYPE_CHECKING, Any, TextIO
 
+from ..text import closing_sections, wrap
 from ..units import format_frequency, parse_decibels, parse_quantity
 from .common import add_output_options, write_json
 
@@ -17,7 +17,6 @@ if TYPE_CHECKING:
     from ..amplifier import AmplifierResult, GainBand
 
 NAME = "amplifier"
-_WIDTH = 92
 _HEADLINE = {
     "stable": "STABLE",
     "not-guaranteed": "NOT GUARANTEED",
@@ -123,21 +122,13 @@ def verdict_line(result: AmplifierResult) -> str:
 def render(result: AmplifierResult) -> str:
     """The full text report."""
     parts = [verdict_line(result), ""]
-    parts += [_wrap(reason, "  ") for reason in result.reasons]
+    parts += [wrap(reason, "  ") for reason in result.reasons]
     parts += ["", *_gain(result), "", *_requirement(result)]
     if result.nyquist is not None:
         nyquist = result.nyquist
         count = "?" if nyquist.encirclements is None else str(nyquist.encirclements)
         parts += ["", "Nyquist check with the load", f"  {nyquist.verdict}, N = {count}"]
-    if result.warnings:
-        parts += ["", "Warnings"]
-        parts += [_wrap(f"[{w.code}] {w.message}", "  ") for w in result.warnings]
-    if result.next_steps:
-        parts += ["", "What to do next"]
-        parts += [_wrap(step, "  - ") for step in result.next_steps]
-    parts += ["", "Premise", _wrap(result.premise, "  ")]
-    parts += ["", "Cautions"]
-    parts += [_wrap(caution, "  ! ") for caution in result.cautions]
+    parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
     return "\n".join(parts) + "\n"
 
 
@@ -177,7 +168,7 @@ def _requirement(result: AmplifierResult) -> list[str]:
             f" {result.port_margin_db:+.2f} dB at"
             f" {format_frequency(result.port_margin_frequency_hz)}"
         )
-        rows += [_wrap(edge.note, "  ") for edge in result.edges]
+        rows += [wrap(edge.note, "  ") for edge in result.edges]
     ripple = result.ripple_at_peak_db
     if ripple is not None:
         lower, upper = ripple
@@ -190,9 +181,3 @@ def _span(band: GainBand) -> str:
     low = format_frequency(band.start_hz) + (" (sweep edge)" if band.starts_at_sweep_edge else "")
     high = format_frequency(band.stop_hz) + (" (sweep edge)" if band.stops_at_sweep_edge else "")
     return f"{low} to {high}"
-
-
-def _wrap(text: str, indent: str) -> str:
-    return textwrap.fill(
-        text, width=_WIDTH, initial_indent=indent, subsequent_indent=" " * len(indent)
-    )

@@ -113,9 +113,10 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the check and print it; return the verdict's exit code."""
     from ..bound import check_return_loss
-    from ..check import check, input_record
+    from ..check import check
     from ..cli import verdict_exit_code
     from ..preparation import PortSetup, prepare
+    from ..result import InputRecord
     from ..text import render, render_bound, verdict_line
 
     device = prepare(arguments.device, _device_setup(arguments), "device")
@@ -128,7 +129,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
                 " --load-return-loss"
             )
         port = device.one_port
-        record = input_record("device", port, port.reference_impedance_ohm)
+        record = InputRecord.of("device", port, port.reference_impedance_ohm)
         result = check_return_loss(
             port,
             parse_decibels(arguments.load_return_loss, option="--load-return-loss"),

@@ -7,9 +7,9 @@ Text rendering of :class:`~oneport.poles.PoleZeroResult` (and, with ``--characte
 from __future__ import annotations
 
 import argparse
-import textwrap
 from typing import TYPE_CHECKING, Any, TextIO
 
+from ..text import closing_sections, wrap
 from ..units import format_frequency, parse_quantity
 from .common import add_output_options, write_json
 
@@ -18,7 +18,6 @@ if TYPE_CHECKING:
     from ..poles import NaturalFrequency, PoleZeroResult
 
 NAME = "poles"
-_WIDTH = 92
 _HEADLINE = {
     "stable": "STABLE (small-signal): no natural frequency in the right half plane",
     "unstable": "UNSTABLE",
@@ -133,7 +132,7 @@ def verdict_line(result: PoleZeroResult) -> str:
 def render(result: PoleZeroResult, character: DeviceCharacter | None = None) -> str:
     """The full text report: verdict first, the modes, the fit, cautions last."""
     parts = [verdict_line(result), ""]
-    parts += [_wrap(reason, "  ") for reason in result.reasons]
+    parts += [wrap(reason, "  ") for reason in result.reasons]
     parts += [
         "",
         "Natural frequencies (zeros of the fitted F)",
@@ -144,12 +143,7 @@ def render(result: PoleZeroResult, character: DeviceCharacter | None = None) -> 
     parts += ["", *_fit(result)]
     if character is not None:
         parts += ["", *render_character(character)]
-    if result.warnings:
-        parts += ["", "Warnings"]
-        parts += [_wrap(f"[{w.code}] {w.message}", "  ") for w in result.warnings]
-    parts += ["", "Premise", _wrap(result.premise, "  ")]
-    parts += ["", "Cautions"]
-    parts += [_wrap(caution, "  ! ") for caution in result.cautions]
+    parts += closing_sections(result.warnings, (), result.premise, result.cautions)
     return "\n".join(parts) + "\n"
 
 
@@ -159,7 +153,7 @@ def second_opinion_lines(result: PoleZeroResult) -> list[str]:
     rows += _table(result.natural_frequencies)
     rows += _fit(result)
     rows += [
-        _wrap(f"[{w.code}] {w.message}", "  ")
+        wrap(f"[{w.code}] {w.message}", "  ")
         for w in result.warnings
         if w.code == "pole-count-disagrees"
     ]
@@ -170,7 +164,7 @@ def render_character(character: DeviceCharacter) -> list[str]:
     """The device-character section."""
     z0 = character.reference_impedance_ohm
     rows = [f"Device character ({character.kind}; fitted in Z0 = {z0:g} ohm)"]
-    rows += [_wrap(sentence, "  ") for sentence in character.summary]
+    rows += [wrap(sentence, "  ") for sentence in character.summary]
     words = {True: "stable", False: "UNSTABLE", None: "not confirmed"}
     for termination in character.terminations:
         rows.append(f"  {termination.description}: {words[termination.stable]}")
@@ -189,7 +183,7 @@ def render_character(character: DeviceCharacter) -> list[str]:
                 f"  {form.form:<11} {form.function:<30} {_number(form.encirclements):>4}"
                 f" {_number(form.premise_poles):>4} {_number(form.implied_rhp_roots):>6}"
             )
-        rows += [_wrap(sentence, "  ") for sentence in character.agreement]
+        rows += [wrap(sentence, "  ") for sentence in character.agreement]
     return rows
 
 
@@ -250,9 +244,3 @@ def _short(mode: NaturalFrequency) -> str:
 
 def _number(value: int | None) -> str:
     return "?" if value is None else str(value)
-
-
-def _wrap(text: str, indent: str) -> str:
-    return textwrap.fill(
-        text, width=_WIDTH, initial_indent=indent, subsequent_indent=" " * len(indent)
-    )

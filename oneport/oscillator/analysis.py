@@ -103,7 +103,7 @@ def analyse_oscillator(
         frequency_range_hz=(float(pair.frequency_hz[0]), float(pair.frequency_hz[-1])),
         reference_impedance_ohm=pair.reference_impedance_ohm,
         device_input=device_input,
-        load_input=_load_record(load_port, pair.reference_impedance_ohm),
+        load_input=InputRecord.of("load", load_port, pair.reference_impedance_ohm),
         warnings=tuple(findings(loop, points, at_top, description, pair)),
         limits=limits(loop, description),
         cautions=CAUTIONS,
@@ -345,18 +345,3 @@ def _traces(
             )
         )
     return tuple(traces)
-
-
-def _load_record(load: OnePort, analysed_ohm: float) -> InputRecord:
-    return InputRecord(
-        role="load",
-        source=load.source,
-        sha256=load.sha256,
-        points=load.points,
-        frequency_range_hz=(float(load.frequency_hz[0]), float(load.frequency_hz[-1])),
-        parameter=load.parameter,
-        number_format=load.number_format,
-        version=load.version,
-        file_reference_impedance_ohm=load.reference_impedance_ohm,
-        analysed_reference_impedance_ohm=analysed_ohm,
-    )

@@ -5,8 +5,7 @@ Rendering only: it formats what the result holds and computes nothing beyond uni
 
 from __future__ import annotations
 
-import textwrap
-
+from ..text import closing_sections, wrap
 from ..units import format_frequency
 from .formatting import format_amplitude, format_power
 from .result import OperatingPoint, OscillatorResult, StartUpEstimate
@@ -19,7 +18,6 @@ _HEADLINE = {
     "no-oscillation": "NO OSCILLATION in the data",
     "inconclusive": "INCONCLUSIVE: the data cannot decide",
 }
-_WIDTH = 92
 
 
 def verdict_line(result: OscillatorResult) -> str:
@@ -35,20 +33,13 @@ def verdict_line(result: OscillatorResult) -> str:
 def render(result: OscillatorResult) -> str:
     """The full text report."""
     parts = [verdict_line(result), ""]
-    parts += [_wrap(reason, "  ") for reason in result.reasons]
-    parts += ["", _wrap(f"Form: {result.form} ({result.form_reason}).", "")]
+    parts += [wrap(reason, "  ") for reason in result.reasons]
+    parts += ["", wrap(f"Form: {result.form} ({result.form_reason}).", "")]
     parts += ["", *_points(result), "", *_start(result)]
     parts += ["", "Inputs", *_inputs(result)]
-    if result.warnings:
-        parts += ["", "Warnings"]
-        parts += [_wrap(f"[{w.code}] {w.message}", "  ") for w in result.warnings]
-    if result.next_steps:
-        parts += ["", "What to do next"]
-        parts += [_wrap(step, "  - ") for step in result.next_steps]
-    parts += ["", "Limits of the method"]
-    parts += [_wrap(limit, "  - ") for limit in result.limits]
-    parts += ["", "Cautions"]
-    parts += [_wrap(caution, "  ! ") for caution in result.cautions]
+    parts += closing_sections(
+        result.warnings, result.next_steps, None, result.cautions, result.limits
+    )
     return "\n".join(parts) + "\n"
 
 
@@ -115,9 +106,3 @@ def _inputs(result: OscillatorResult) -> list[str]:
 
 def _amplitude(point: OperatingPoint) -> str:
     return format_amplitude(point.amplitude, point.amplitude_quantity)
-
-
-def _wrap(text: str, indent: str) -> str:
-    return textwrap.fill(
-        text, width=_WIDTH, initial_indent=indent, subsequent_indent=" " * len(indent)
-    )
