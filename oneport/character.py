@@ -25,7 +25,7 @@ import numpy as np
 
 from .cautions import CAUTIONS
 from .errors import InputError
-from .nyquist import UNSAFE_PHASE_STEP_RAD
+from .nyquist import UNSAFE_PHASE_STEP_RAD, estimate_noise, find_bands
 from .poles import NaturalFrequency, TrustRules, assess_roots, in_reach
 from .rational import FitSet, fit_with_variants
 from .result import Finding
@@ -365,20 +365,13 @@ def _summary(kind: str, terminations: tuple[TerminationModes, ...], z0: float) -
 def _negative_bands(
     frequency_hz: np.ndarray, gamma_device: np.ndarray
 ) -> tuple[tuple[float, float], ...]:
-    """Stretches where Re Zd < 0, i.e. |Γd| > 1 (the same in every real reference)."""
-    negative = np.abs(gamma_device) > 1.0
-    bands = []
-    index = 0
-    while index < negative.size:
-        if not negative[index]:
-            index += 1
-            continue
-        stop = index
-        while stop + 1 < negative.size and negative[stop + 1]:
-            stop += 1
-        bands.append((float(frequency_hz[index]), float(frequency_hz[stop])))
-        index = stop + 1
-    return tuple(bands)
+    """Stretches where Re Zd < 0, i.e. |Γd| ≥ 1 (the same in every real reference).
+
+    :func:`oneport.nyquist.find_bands` on Γd: edges interpolated, and stretches split only by
+    measurement scatter around |Γd| = 1 merged.
+    """
+    bands = find_bands(frequency_hz, gamma_device, estimate_noise(gamma_device))
+    return tuple((band.start_hz, band.stop_hz) for band in bands)
 
 
 def _findings(fits: FitSet) -> list[Finding]:

@@ -174,7 +174,7 @@ def render_character(character: DeviceCharacter) -> list[str]:
             f"{format_frequency(a)}-{format_frequency(b)}"
             for a, b in character.negative_resistance_bands_hz
         )
-        rows.append(f"  negative resistance (|gamma_device| > 1): {listed}")
+        rows.append(f"  negative resistance (|gamma_device| >= 1): {listed}")
     if character.forms:
         rows += ["", "Nyquist count in three forms (with the load)"]
         rows.append(f"  {'form':<11} {'function':<30} {'N':>4} {'P':>4} {'N + P':>6}")
