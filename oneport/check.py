@@ -54,6 +54,11 @@ class CheckOptions:
         Given together, they fix F(0) and close the contour towards DC.
     device_uncertainty, load_uncertainty : float
         Worst-case absolute error of each measured |Γ| (e.g. 0.01).
+    known_poles : int
+        Right-half-plane poles of F known from a netlist side (its natural frequencies
+        terminated in the analysis impedance): the count becomes Z = N + P.
+    premise_notes : tuple of str
+        What was checked of the premise, for the result's premise text.
     """
 
     measurement_impedance_ohm: float | None = None
@@ -61,6 +66,8 @@ class CheckOptions:
     load_dc_resistance_ohm: float | None = None
     device_uncertainty: float = 0.0
     load_uncertainty: float = 0.0
+    known_poles: int = 0
+    premise_notes: tuple[str, ...] = ()
 
     def __post_init__(self) -> None:
         given = (self.device_dc_resistance_ohm is None, self.load_dc_resistance_ohm is None)
@@ -83,13 +90,17 @@ def check(
     device_dc_resistance_ohm: float | None = None,
     load_dc_resistance_ohm: float | None = None,
     gamma_uncertainty: float | tuple[float, float] | None = None,
+    frequency_hz: np.ndarray | None = None,
 ) -> CheckResult:
     """Will ``device`` oscillate (or latch up) when connected to ``load``? Small-signal check.
 
     Parameters
     ----------
-    device, load : path, OnePort or skrf.Network
-        The negative-resistance device and the network it faces, as one-ports.
+    device, load : path, OnePort, PreparedPort, Circuit or skrf.Network
+        The negative-resistance device and the network it faces, as one-ports. A netlist
+        (``.cir`` path or :class:`oneport.circuit.Circuit`) is evaluated on the other side's
+        grid in the analysis impedance, and its own natural frequencies terminated there are
+        checked (the premise) and counted if any lie in the right half plane.
     measurement_impedance_ohm : float, optional
         The impedance the device was really measured in (VNA port impedance), Ω, if its file
         was renormalised afterwards; default: the device file's reference. The load is brought
@@ -99,6 +110,8 @@ def check(
         and the bias network's DC resistance, Ω (give both).
     gamma_uncertainty : float or (float, float), optional
         Worst-case absolute error of |Γ|, for both sides or (device, load).
+    frequency_hz : ndarray, optional
+        The grid, Hz, when both sides are netlists.
 
     Returns
     -------
@@ -119,15 +132,18 @@ def check(
         device_uncertainty, load_uncertainty = gamma_uncertainty
     else:
         device_uncertainty = load_uncertainty = gamma_uncertainty or 0.0
+    device_port, load_port, known_poles, notes = _resolve_sides(
+        device, load, measurement_impedance_ohm, frequency_hz
+    )
     options = CheckOptions(
         measurement_impedance_ohm=measurement_impedance_ohm,
         device_dc_resistance_ohm=device_dc_resistance_ohm,
         load_dc_resistance_ohm=load_dc_resistance_ohm,
         device_uncertainty=float(device_uncertainty),
         load_uncertainty=float(load_uncertainty),
+        known_poles=known_poles,
+        premise_notes=notes,
     )
-    device_port = load_one_port(device, "device")
-    load_port = load_one_port(load, "load")
     pair = align(device_port, load_port, options.measurement_impedance_ohm)
     result = analyse_pair(pair, device_port, load_port, options)
     prepared = [(i, s) for i, s in enumerate((device, load)) if isinstance(s, PreparedPort)]
@@ -139,6 +155,80 @@ def check(
         inputs[index] = replace(inputs[index], preparation=source.steps)
         findings += source.findings
     return replace(result, inputs=(inputs[0], inputs[1]), warnings=tuple(findings))
+
+
+def _resolve_sides(
+    device: OneportSource,
+    load: OneportSource,
+    measurement_impedance_ohm: float | None,
+    frequency_hz: np.ndarray | None,
+) -> tuple[OnePort, OnePort, int, tuple[str, ...]]:
+    """Both sides as one-ports on a common footing; netlist sides evaluated and their premise
+    checked. Returns the ports, the known right-half-plane poles of F and premise notes."""
+    device_circuit, load_circuit = _as_circuit(device), _as_circuit(load)
+    if device_circuit is None and load_circuit is None:
+        return load_one_port(device, "device"), load_one_port(load, "load"), 0, ()
+    from .circuit import one_port_from_circuit
+
+    if device_circuit is not None and load_circuit is not None:
+        if frequency_hz is None:
+            raise InputError(
+                "both sides are netlists: give the frequency grid (--start, --stop, --points)"
+            )
+        grid = np.asarray(frequency_hz, dtype=float)
+        z0 = measurement_impedance_ohm or 50.0
+        device_port = one_port_from_circuit(device_circuit, grid, z0)
+        load_port = one_port_from_circuit(load_circuit, grid, z0)
+    elif device_circuit is not None:
+        load_port = load_one_port(load, "load")
+        z0 = measurement_impedance_ohm or 50.0
+        device_port = one_port_from_circuit(device_circuit, load_port.frequency_hz, z0)
+    else:
+        device_port = load_one_port(device, "device")
+        z0 = measurement_impedance_ohm or device_port.reference_impedance_ohm
+        load_port = one_port_from_circuit(load_circuit, device_port.frequency_hz, z0)
+    poles, notes = 0, []
+    for role, circuit in (("device", device_circuit), ("load", load_circuit)):
+        if circuit is None:
+            continue
+        found, note = _netlist_poles(circuit, role, z0)
+        poles += found
+        notes.append(note)
+    return device_port, load_port, poles, tuple(notes)
+
+
+def _as_circuit(source: OneportSource) -> Any:
+    """The :class:`~oneport.circuit.Circuit` a source describes, or None for data."""
+    if isinstance(source, str | Path):
+        from .circuit import is_circuit_path, read_circuit
+
+        return read_circuit(source) if is_circuit_path(source) else None
+    from .circuit import Circuit
+
+    return source if isinstance(source, Circuit) else None
+
+
+def _netlist_poles(circuit: Any, role: str, z0: float) -> tuple[int, str]:
+    """Right-half-plane natural frequencies of a netlist side terminated in ``z0``."""
+    try:
+        roots = np.asarray(circuit.natural_frequencies(termination_ohm=z0))
+    except InputError:
+        return 0, (
+            f"The {role} netlist ({circuit.source}) has elements without a polynomial (lines,"
+            f" blocks, constant Q): its stability terminated in {z0:g} ohm was not checked and"
+            " is assumed."
+        )
+    unstable = int(np.sum(roots.real > 0))
+    if unstable:
+        return unstable, (
+            f"The {role} netlist ({circuit.source}) terminated in {z0:g} ohm has {unstable}"
+            " natural frequency(ies) in the right half plane; they are poles of F and are added"
+            " to the count (Z = N + P)."
+        )
+    return 0, (
+        f"The {role} netlist ({circuit.source}) was checked: terminated in {z0:g} ohm all its"
+        " natural frequencies lie in the left half plane (P = 0)."
+    )
 
 
 def analyse_pair(
@@ -170,7 +260,8 @@ def analyse_pair(
 
     count: int | None = None
     if low.founded and high.founded and step <= nyquist.UNSAFE_PHASE_STEP_RAD:
-        count = int(
+        # Z = N + P: P is 0 for measured sides (the premise), known for netlist sides.
+        count = options.known_poles + int(
             nyquist.count_encirclements(
                 loop_gain, np.array(low.sign_at_limit), np.array(high.sign_at_limit)
             )
@@ -203,6 +294,8 @@ def analyse_pair(
         f" does not cross the positive real axis beyond +1 outside it; parasitics above the sweep"
         f" can add encirclements. It is a small-signal result."
     )
+    if options.premise_notes:
+        premise += " " + " ".join(options.premise_notes)
     return CheckResult(
         verdict=verdict,
         reasons=tuple(reasons),

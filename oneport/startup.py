@@ -59,13 +59,15 @@ def startup_estimates(
         )
     omega = 2 * np.pi * frequency_hz
     estimates = []
-    for form, device, load in forms:
-        with np.errstate(over="ignore", invalid="ignore"):
+    # Near Γ = ±1 an immittance is huge and its slopes overflow: such estimates are dropped.
+    with np.errstate(all="ignore"):
+        for form, device, load in forms:
             total = device + load
-        if not np.all(np.isfinite(total)):
-            continue
-        estimates += _estimates_for_form(form, omega, device, load, total)
-    return sorted(estimates, key=lambda e: e.crossing_frequency_hz)
+            if not np.all(np.isfinite(total)):
+                continue
+            estimates += _estimates_for_form(form, omega, device, load, total)
+    finite = [e for e in estimates if np.isfinite([e.sigma_per_s, e.estimated_frequency_hz]).all()]
+    return sorted(finite, key=lambda e: e.crossing_frequency_hz)
 
 
 def _estimates_for_form(

@@ -11,7 +11,16 @@ from importlib import import_module
 from types import ModuleType
 
 #: Subcommand modules, in the order ``--help`` lists them.
-COMMAND_MODULES = ("check", "watch", "sweep", "oscillator", "poles", "amplifier")
+COMMAND_MODULES = (
+    "check",
+    "watch",
+    "export",
+    "sweep",
+    "oscillator",
+    "poles",
+    "amplifier",
+    "terminations",
+)
 
 
 def load_commands() -> list[ModuleType]:

@@ -19,6 +19,8 @@ _EPILOG = """examples:
   oneport check fet.s2p --terminate-impedance 10ohm --load tank.s1p
   oneport check diode.s1p --load bias.s1p --device-dc-resistance=-76ohm --load-dc-resistance 150
   oneport check diode.s1p --load tank.s1p --device-delay=-12ps --gamma-uncertainty 0.01
+  oneport check diode.s1p --load bias_tee.cir
+  oneport check diode.cir --load tank.cir --start 1MHz --stop 6GHz --points 2001
 
 negative values: write them with '=' (--device-delay=-12ps)."""
 
@@ -34,9 +36,13 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         epilog=_EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
-    command.add_argument("device", help="the device's Touchstone file (one-port, or see below)")
+    command.add_argument(
+        "device", help="the device: a Touchstone file (one-port, or see below) or a .cir netlist"
+    )
     loads = command.add_mutually_exclusive_group(required=True)
-    loads.add_argument("--load", metavar="FILE", help="the load's Touchstone one-port")
+    loads.add_argument(
+        "--load", metavar="FILE", help="the load: a Touchstone one-port or a .cir netlist"
+    )
     loads.add_argument(
         "--load-return-loss",
         metavar="DB",
@@ -58,6 +64,11 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     facts.add_argument(
         "--load-dc-resistance", metavar="OHMS", help="the load's (bias network's) DC resistance"
     )
+    grid = command.add_argument_group("frequency grid when both sides are netlists")
+    grid.add_argument("--start", metavar="FREQUENCY", help="e.g. 1MHz")
+    grid.add_argument("--stop", metavar="FREQUENCY", help="e.g. 6GHz")
+    grid.add_argument("--points", type=int, default=2001, help="default 2001")
+    grid.add_argument("--spacing", choices=("linear", "log"), default="linear")
     command.add_argument(
         "--gamma-uncertainty",
         metavar="X[,Y]",
@@ -115,11 +126,11 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     from ..bound import check_return_loss
     from ..check import check
     from ..cli import verdict_exit_code
-    from ..preparation import PortSetup, prepare
+    from ..preparation import PortSetup
     from ..result import InputRecord
     from ..text import render, render_bound, verdict_line
 
-    device = prepare(arguments.device, _device_setup(arguments), "device")
+    device = _side(arguments.device, _device_setup(arguments), "device")
     impedance = _resistance(arguments.measurement_impedance, "--measurement-impedance")
     result: Any
     if arguments.load_return_loss is not None:
@@ -128,6 +139,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
                 "--measurement-impedance, --poles, --plot and --report go with --load, not with"
                 " --load-return-loss"
             )
+        if isinstance(device, str):
+            raise InputError("--load-return-loss needs a measured device file, not a netlist")
         port = device.one_port
         record = InputRecord.of("device", port, port.reference_impedance_ohm)
         result = check_return_loss(
@@ -145,7 +158,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         )
         result = check(
             device,
-            prepare(arguments.load, load_setup, "load"),
+            _side(arguments.load, load_setup, "load"),
             measurement_impedance_ohm=impedance,
             device_dc_resistance_ohm=_resistance(
                 arguments.device_dc_resistance, "--device-dc-resistance"
@@ -154,6 +167,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
                 arguments.load_dc_resistance, "--load-dc-resistance"
             ),
             gamma_uncertainty=_uncertainty(arguments.gamma_uncertainty),
+            frequency_hz=_grid(arguments),
         )
         text = render(result)
         line = verdict_line(result)
@@ -173,6 +187,40 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     else:
         out.write(text)
     return verdict_exit_code(result.verdict)
+
+
+def _side(path: str, setup: Any, role: str) -> Any:
+    """A netlist path as it is (the check evaluates it), or the prepared Touchstone one-port."""
+    from ..circuit import is_circuit_path
+    from ..preparation import PortSetup, prepare
+
+    if not is_circuit_path(path):
+        return prepare(path, setup, role)
+    if setup != PortSetup(terminated_port=setup.terminated_port):
+        raise InputError(
+            f"{path}: termination, fixture and delay options apply to Touchstone files; describe"
+            " them in the netlist instead"
+        )
+    return path
+
+
+def _grid(arguments: argparse.Namespace) -> Any:
+    """The grid for two netlists (--start, --stop, --points, --spacing), else None."""
+    if arguments.start is None and arguments.stop is None:
+        return None
+    import numpy as np
+
+    if arguments.start is None or arguments.stop is None:
+        raise InputError("give both --start and --stop (e.g. 1MHz and 6GHz)")
+    start = parse_quantity(arguments.start, "frequency", option="--start")
+    stop = parse_quantity(arguments.stop, "frequency", option="--stop")
+    if not 0 <= start < stop or arguments.points < 5:
+        raise InputError("need 0 <= --start < --stop and --points of at least 5")
+    if arguments.spacing == "log":
+        if start <= 0:
+            raise InputError("--spacing log needs --start above 0 Hz")
+        return np.geomspace(start, stop, arguments.points)
+    return np.linspace(start, stop, arguments.points)
 
 
 def _second_opinion(result: Any) -> Any:

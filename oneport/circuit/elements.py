@@ -1,0 +1,441 @@
+"""Circuit elements and their modified-nodal-analysis stamps.
+
+Each element knows its terminals, its values (numbers or parameter references, resolved by
+the engine before stamping), which nodes it joins galvanically (for the floating-node check),
+how many branch currents it adds as unknowns, and how it writes itself into the equations
+``A x = b``. Stamps receive arrays that broadcast over (variants, frequencies); they never loop
+over points. Nothing here reads files, prints or decides which solver to use.
+
+Sign conventions: node rows are Kirchhoff current sums, positive for current leaving the node
+through the element; a branch current flows from an element's first terminal through it to the
+second; ``s = j·2πf``.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from typing import Any, ClassVar
+
+import numpy as np
+
+from ..touchstone import Multiport
+from .values import ValueSpec
+
+#: ``add(row, column, value)``; a row or column of None (ground) is skipped.
+Adder = Callable[[int | None, int | None, Any], None]
+
+SPEED_OF_LIGHT_M_PER_S = 299_792_458.0
+_NEPER_PER_DB = math.log(10.0) / 20.0
+
+
+@dataclass(frozen=True)
+class StampContext:
+    """What a stamp may read: complex frequency, frequency, resolved values, prepared data.
+
+    Attributes
+    ----------
+    s : ndarray of complex
+        ``j·2πf``, shape broadcastable to (variants, frequencies).
+    frequency_hz : ndarray of float
+        The same frequencies in Hz.
+    values : dict of str to ndarray
+        The element's values, resolved for these variants (scalars or shape (variants, 1)).
+    prepared : object
+        Element data prepared for this frequency chunk (a block's interpolated S-parameters).
+    omega : ndarray of float or None
+        2πf when s is on the imaginary axis (the engine's case); None for a real s.
+    """
+
+    s: np.ndarray
+    frequency_hz: np.ndarray
+    values: dict[str, Any]
+    prepared: Any = None
+    omega: np.ndarray | None = None
+
+    def times_s(self, value: Any) -> Any:
+        """s·value. On the jω axis the product is built from real arrays: numpy's complex
+        outer-broadcast products ((1, n) by (v, 1)) are several times slower."""
+        if self.omega is None:
+            return self.s * value
+        shape = np.broadcast_shapes(np.shape(self.omega), np.shape(value))
+        product = np.zeros(shape, dtype=complex)
+        np.multiply(self.omega, value, out=product.imag)
+        return product
+
+
+@dataclass(frozen=True, kw_only=True)
+class Element:
+    """Base of every element: a name, terminal nodes, values and the line it came from."""
+
+    name: str
+    nodes: tuple[str, ...]
+    values: dict[str, ValueSpec] = field(default_factory=dict)
+    line: int | None = None
+
+    letter: ClassVar[str] = ""
+    kind: ClassVar[str] = ""
+    #: Value keys and their rule: "nonzero", "positive", "nonnegative" or "any".
+    rules: ClassVar[dict[str, str]] = {}
+
+    @property
+    def branches(self) -> int:
+        """Branch currents this element adds as unknowns."""
+        return 0
+
+    @property
+    def rational(self) -> bool:
+        """Whether the stamp is A0 + s·A1 (needed for natural frequencies)."""
+        return True
+
+    def connections(self) -> list[tuple[str, str]]:
+        """Node pairs this element joins by a current path (for the floating-node check)."""
+        return [(self.nodes[0], self.nodes[1])]
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        """Write the element into the equations (``nodes``, ``branches``: matrix indices)."""
+        raise NotImplementedError
+
+    def where(self) -> str:
+        """``R1 (line 4)`` or ``R1``, for messages."""
+        return f"{self.name} (line {self.line})" if self.line is not None else self.name
+
+
+def _stamp_admittance(add: Adder, a: int | None, b: int | None, admittance: Any) -> None:
+    add(a, a, admittance)
+    add(b, b, admittance)
+    add(a, b, -admittance)
+    add(b, a, -admittance)
+
+
+def _stamp_branch_incidence(add: Adder, a: int | None, b: int | None, branch: int) -> None:
+    """Current ``branch`` leaves node ``a`` and enters node ``b``; row: V(a) − V(b) …"""
+    add(a, branch, 1.0)
+    add(b, branch, -1.0)
+    add(branch, a, 1.0)
+    add(branch, b, -1.0)
+
+
+@dataclass(frozen=True, kw_only=True)
+class Resistor(Element):
+    """``R`` between two nodes; negative values allowed, zero refused."""
+
+    letter: ClassVar[str] = "R"
+    kind: ClassVar[str] = "resistor"
+    rules: ClassVar[dict[str, str]] = {"resistance": "nonzero"}
+
+    def immittance(self, context: StampContext) -> tuple[str, Any]:
+        """``("z", R)``: the element as an impedance."""
+        return "z", context.values["resistance"]
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        _stamp_admittance(add, nodes[0], nodes[1], 1.0 / context.values["resistance"])
+
+
+@dataclass(frozen=True, kw_only=True)
+class Inductor(Element):
+    """``L`` with an optional series resistance ``rser`` or constant quality factor ``q``."""
+
+    letter: ClassVar[str] = "L"
+    kind: ClassVar[str] = "inductor"
+    rules: ClassVar[dict[str, str]] = {"inductance": "any", "rser": "any", "q": "positive"}
+
+    @property
+    def rational(self) -> bool:
+        return "q" not in self.values
+
+    @property
+    def branches(self) -> int:
+        return 1
+
+    def impedance(self, context: StampContext) -> Any:
+        """s·L + rser, or s·L·(1 − j/Q) (a series resistance ωL/Q)."""
+        values = context.values
+        impedance = context.times_s(values["inductance"])
+        if "q" in values:
+            return impedance * (1.0 - 1j / values["q"])
+        if "rser" in values:
+            return impedance + values["rser"]
+        return impedance
+
+    def immittance(self, context: StampContext) -> tuple[str, Any]:
+        """``("z", Z)``."""
+        return "z", self.impedance(context)
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        _stamp_branch_incidence(add, nodes[0], nodes[1], branches[0])
+        add(branches[0], branches[0], -self.impedance(context))
+
+
+@dataclass(frozen=True, kw_only=True)
+class Capacitor(Element):
+    """``C`` with an optional series resistance ``rser`` or constant quality factor ``q``."""
+
+    letter: ClassVar[str] = "C"
+    kind: ClassVar[str] = "capacitor"
+    rules: ClassVar[dict[str, str]] = {"capacitance": "any", "rser": "any", "q": "positive"}
+
+    @property
+    def rational(self) -> bool:
+        return "q" not in self.values
+
+    @property
+    def branches(self) -> int:
+        # With a series resistance the branch form keeps the stamp linear in s.
+        return 1 if "rser" in self.values else 0
+
+    def admittance(self, context: StampContext) -> Any:
+        """s·C, s·C / (1 + s·C·rser), or s·C / (1 + j/Q) (a series resistance 1/(ωCQ))."""
+        values = context.values
+        admittance = context.times_s(values["capacitance"])
+        if "q" in values:
+            return admittance / (1.0 + 1j / values["q"])
+        if "rser" in values:
+            return admittance / (1.0 + admittance * values["rser"])
+        return admittance
+
+    def immittance(self, context: StampContext) -> tuple[str, Any]:
+        """``("y", Y)``."""
+        return "y", self.admittance(context)
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        if "rser" not in context.values:
+            _stamp_admittance(add, nodes[0], nodes[1], self.admittance(context))
+            return
+        # s·C·(Va − Vb) − (1 + s·C·rser)·I = 0
+        branch = branches[0]
+        sc = context.times_s(context.values["capacitance"])
+        add(nodes[0], branch, 1.0)
+        add(nodes[1], branch, -1.0)
+        add(branch, nodes[0], sc)
+        add(branch, nodes[1], -sc)
+        add(branch, branch, -(1.0 + sc * context.values["rser"]))
+
+
+@dataclass(frozen=True, kw_only=True)
+class Transconductance(Element):
+    """``G``: current gm·(V(c+) − V(c−)) from node out+ through the source to node out−."""
+
+    letter: ClassVar[str] = "G"
+    kind: ClassVar[str] = "transconductance"
+    rules: ClassVar[dict[str, str]] = {"gm": "any"}
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        out_positive, out_negative, control_positive, control_negative = nodes
+        gm = context.values["gm"]
+        add(out_positive, control_positive, gm)
+        add(out_positive, control_negative, -gm)
+        add(out_negative, control_positive, -gm)
+        add(out_negative, control_negative, gm)
+
+
+@dataclass(frozen=True, kw_only=True)
+class Line(Element):
+    """``T``: a TEM line between two node pairs, by ``z0`` and ``len``/``eeff`` or ``delay``.
+
+    Optional loss ``loss`` (dB over the whole line) at frequency ``at``, scaling with the
+    square root of frequency (skin effect); the characteristic impedance stays real.
+    """
+
+    letter: ClassVar[str] = "T"
+    kind: ClassVar[str] = "transmission line"
+    rules: ClassVar[dict[str, str]] = {
+        "z0": "positive",
+        "len": "nonnegative",
+        "eeff": "positive",
+        "delay": "nonnegative",
+        "loss": "nonnegative",
+        "at": "positive",
+    }
+
+    @property
+    def rational(self) -> bool:
+        return False
+
+    @property
+    def branches(self) -> int:
+        return 2
+
+    def connections(self) -> list[tuple[str, str]]:
+        return [(self.nodes[0], self.nodes[1]), (self.nodes[2], self.nodes[3])]
+
+    def propagation(self, context: StampContext) -> Any:
+        """γ·ℓ = α·ℓ + s·τ, the whole line's propagation."""
+        values = context.values
+        if "delay" in values:
+            delay = values["delay"]
+        else:
+            delay = values["len"] * np.sqrt(values.get("eeff", 1.0)) / SPEED_OF_LIGHT_M_PER_S
+        propagation = context.times_s(delay)
+        if "loss" in values:
+            scale = np.sqrt(np.abs(context.frequency_hz) / values["at"])
+            propagation = propagation + values["loss"] * _NEPER_PER_DB * scale
+        return propagation
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        p1, n1, p2, n2 = nodes
+        first, second = branches
+        propagation = self.propagation(context)
+        z0 = context.values["z0"]
+        cosh, sinh = np.cosh(propagation), np.sinh(propagation)
+        add(p1, first, 1.0)
+        add(n1, first, -1.0)
+        add(p2, second, 1.0)
+        add(n2, second, -1.0)
+        # V1 = cosh·V2 − Z0·sinh·I2 and I1 = sinh/Z0·V2 − cosh·I2 (I2 into port 2).
+        add(first, p1, 1.0)
+        add(first, n1, -1.0)
+        add(first, p2, -cosh)
+        add(first, n2, cosh)
+        add(first, second, z0 * sinh)
+        add(second, first, 1.0)
+        add(second, p2, -sinh / z0)
+        add(second, n2, sinh / z0)
+        add(second, second, cosh)
+
+
+@dataclass(frozen=True, kw_only=True)
+class OpAmp(Element):
+    """An op-amp with output referred to ground and open-loop gain 1/(1/a0 + s/(2π·gbw)).
+
+    Without ``a0`` the DC gain is infinite; without ``gbw`` there is no pole; with neither the
+    op-amp is ideal (the inputs are held equal).
+    """
+
+    letter: ClassVar[str] = "O"
+    kind: ClassVar[str] = "op-amp"
+    rules: ClassVar[dict[str, str]] = {"a0": "positive", "gbw": "positive"}
+
+    @property
+    def branches(self) -> int:
+        return 1
+
+    def connections(self) -> list[tuple[str, str]]:
+        return [(self.nodes[0], "0")]
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        output, positive, negative = nodes
+        branch = branches[0]
+        values = context.values
+        inverse_gain: Any = 0.0
+        if "a0" in values:
+            inverse_gain = 1.0 / values["a0"]
+        if "gbw" in values:
+            inverse_gain = inverse_gain + context.times_s(1.0 / (2.0 * math.pi * values["gbw"]))
+        add(output, branch, -1.0)  # the op-amp drives current into its output node
+        add(branch, output, inverse_gain)
+        add(branch, positive, -1.0)
+        add(branch, negative, 1.0)
+
+
+@dataclass(frozen=True, kw_only=True)
+class Block(Element):
+    """An N-port from a Touchstone file; its ports share a reference node (the last node).
+
+    Each port i lies between ``nodes[i]`` and the reference ``nodes[-1]``, which may be any
+    netlist node (the indefinite-admittance idea: a transistor's common lead need not be
+    ground). The stamp uses wave variables, so any S-matrix (a thru, an ideal short) is valid.
+    """
+
+    letter: ClassVar[str] = "N"
+    kind: ClassVar[str] = "Touchstone block"
+
+    @property
+    def rational(self) -> bool:
+        return False
+
+    path: str
+    data: Multiport
+
+    @property
+    def ports(self) -> int:
+        """The block's port count."""
+        return self.data.ports
+
+    @property
+    def branches(self) -> int:
+        return self.ports
+
+    def connections(self) -> list[tuple[str, str]]:
+        return [(node, self.nodes[-1]) for node in self.nodes[:-1]]
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        s = context.prepared  # shape (p, p, 1, frequencies)
+        reference_node = nodes[-1]
+        z0 = self.data.reference_impedance_ohm
+        for i, row in enumerate(branches):
+            add(nodes[i], row, 1.0)
+            add(reference_node, row, -1.0)
+            for j in range(self.ports):
+                ratio = math.sqrt(z0[i] / z0[j])
+                coupling = (1.0 if i == j else 0.0) - s[i, j] * ratio
+                add(row, nodes[j], coupling)
+                add(row, reference_node, -coupling)
+                add(row, branches[j], -(z0[i] if i == j else 0.0) - s[i, j] * ratio * z0[j])
+
+
+@dataclass(frozen=True, kw_only=True)
+class CompactInductor(Inductor):
+    """An inductor stamped as its admittance 1/Z, without a branch current.
+
+    Fewer unknowns make elimination faster; valid only where Z ≠ 0 (not at 0 Hz without
+    loss), so the engine uses it only on grids above 0 Hz and falls back where it fails.
+    """
+
+    @property
+    def branches(self) -> int:
+        return 0
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        _stamp_admittance(add, nodes[0], nodes[1], 1.0 / self.impedance(context))
+
+
+@dataclass(frozen=True, kw_only=True)
+class CompactCapacitor(Capacitor):
+    """A capacitor with series resistance stamped as its admittance, without a branch current."""
+
+    @property
+    def branches(self) -> int:
+        return 0
+
+    def stamp(
+        self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
+    ) -> None:
+        _stamp_admittance(add, nodes[0], nodes[1], self.admittance(context))
+
+
+def compact(element: Element) -> Element:
+    """The element with its branch current folded into an admittance, where it has one."""
+    kind: type[Element] | None = None
+    if isinstance(element, Inductor) and not isinstance(element, CompactInductor):
+        kind = CompactInductor
+    elif isinstance(element, Capacitor) and element.branches:
+        kind = CompactCapacitor
+    if kind is None:
+        return element
+    return kind(name=element.name, nodes=element.nodes, values=element.values, line=element.line)
+
+
+#: Element classes by their letter.
+ELEMENT_TYPES: dict[str, type[Element]] = {
+    cls.letter: cls for cls in (Resistor, Inductor, Capacitor, Transconductance, Line, OpAmp, Block)
+}

@@ -1,0 +1,189 @@
+"""Two-port termination analysis: stability circles, negative share, best termination, chart, CLI.
+
+Outside references: scikit-rf's ``Network.stability_circle`` loci and ``Network.stability``
+(Rollett's K, with the common-practice rule that K > 1 and |Δ| < 1 mean no passive termination
+of either port gives the other a negative resistance), and a brute-force search over a grid of
+passive terminations written in this file.
+"""
+
+from __future__ import annotations
+
+import io
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+import skrf
+
+from oneport.circuit import multiport_from_circuit, parse_circuit
+from oneport.circuit.blocks import interpolate_block
+from oneport.circuit.smith import termination_figure
+from oneport.circuit.terminations import (
+    analyse_terminations,
+    negative_fraction,
+    observed_gamma,
+    stability_circle,
+)
+from oneport.cli import main
+from oneport.touchstone import Multiport, read_touchstone
+
+EXAMPLES = Path(__file__).resolve().parents[1] / "touchstone_examples" / "circuits"
+TRANSISTOR = EXAMPLES / "transistor.s2p"
+
+
+def _passive_grid(rings: int = 250) -> np.ndarray:
+    """Equal-area polar grid of the unit disk."""
+    radii = np.sqrt((np.arange(rings) + 0.5) / rings)
+    angles = np.linspace(0, 2 * np.pi, 4 * rings, endpoint=False)
+    return (radii[:, None] * np.exp(1j * angles[None, :])).ravel()
+
+
+def _common_gate() -> Multiport:
+    circuit = parse_circuit(
+        f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n rser=0.4\n.twoport s d', source="common gate"
+    )
+    return multiport_from_circuit(circuit, read_touchstone(TRANSISTOR).frequency_hz)
+
+
+@pytest.mark.parametrize("case", ["common source", "common gate"])
+@pytest.mark.parametrize("terminated_port", [1, 2])
+@pytest.mark.parametrize("frequency_hz", [1e9, 6e9, 14e9])
+def test_against_a_brute_force_search(case: str, terminated_port: int, frequency_hz: float) -> None:
+    data = read_touchstone(TRANSISTOR) if case == "common source" else _common_gate()
+    result = analyse_terminations(data, frequency_hz, terminated_port=terminated_port)
+    s = interpolate_block(data, np.array([frequency_hz]), "test")[:, :, 0, 0]
+    # Brute force (this test): evaluate the observed port for every grid termination
+    grid = _passive_grid()
+    gamma = observed_gamma(s, grid, terminated_port - 1)
+    negative = np.abs(gamma) > 1
+    assert result.negative_fraction == pytest.approx(negative.mean(), abs=3e-3)
+    circle = result.circle
+    inside = np.abs(grid - circle.center) < circle.radius
+    agree = np.mean(inside[negative] == circle.negative_inside) if negative.any() else 1.0
+    assert agree == 1.0
+    impedance = 50 * (1 + gamma) / (1 - gamma)
+    if result.best.unbounded:
+        assert abs(result.best.gamma) <= 1.0
+        assert abs(observed_gamma(s, result.best.gamma, terminated_port - 1) - 1) < 1e-9
+    else:
+        best = result.best.observed_resistance_ohm
+        assert best is not None
+        assert best <= impedance.real.min() + 1e-9
+        # the optimum is lossless: search the unit circle itself finely
+        ring = np.exp(2j * np.pi * np.arange(100_000) / 100_000)
+        on_ring = observed_gamma(s, ring, terminated_port - 1)
+        ring_resistance = (50 * (1 + on_ring) / (1 - on_ring)).real
+        assert best == pytest.approx(ring_resistance.min(), rel=1e-6)
+        assert abs(result.best.gamma) == pytest.approx(1.0, abs=1e-9)  # lossless optimum
+
+
+@pytest.mark.parametrize("target", [0, 1])
+def test_circle_matches_scikit_rf_loci(target: int) -> None:
+    data = read_touchstone(TRANSISTOR)
+    network = skrf.Network(
+        frequency=skrf.Frequency.from_f(data.frequency_hz, unit="Hz"),
+        s=np.moveaxis(data.s, -1, 0),
+        z0=50,
+    )
+    # scikit-rf: Network.stability_circle(target_port) gives points on each circle
+    loci = network.stability_circle(target_port=target, npoints=31)
+    center, radius, _ = stability_circle(data.s, target)
+    distances = np.abs(loci - center[None, :])
+    np.testing.assert_allclose(distances, np.broadcast_to(radius, distances.shape), rtol=1e-9)
+
+
+def test_no_negative_terminations_exactly_when_unconditionally_stable() -> None:
+    generator = np.random.default_rng(5)
+    s = generator.uniform(-0.9, 0.9, (2, 2, 400)) + 1j * generator.uniform(-0.9, 0.9, (2, 2, 400))
+    s[1, 0] *= generator.uniform(0.5, 4.0, 400)  # a range of forward gains
+    network = skrf.Network(
+        frequency=skrf.Frequency(1, 400, 400, unit="MHz"), s=np.moveaxis(s, -1, 0), z0=50
+    )
+    rollett = network.stability  # scikit-rf: Rollett's K
+    delta = np.abs(s[0, 0] * s[1, 1] - s[0, 1] * s[1, 0])
+    fractions = []
+    for terminated in (0, 1):
+        center, radius, inside = stability_circle(s, terminated)
+        fractions.append(negative_fraction(s, terminated, center, radius, inside))
+    none_negative = (fractions[0] < 1e-12) & (fractions[1] < 1e-12)
+    clear = np.abs(rollett - 1) > 1e-6
+    # common practice (Rollett): K > 1 and |Δ| < 1 ⇔ unconditionally stable
+    np.testing.assert_array_equal(none_negative[clear], ((rollett > 1) & (delta < 1))[clear])
+
+
+def test_degenerate_circle_is_sampled() -> None:
+    # |S22| = |Δ| makes the boundary a straight line (Δ = 0.25 + 0.25 = 0.5 = |S22|)
+    s = np.array([[0.5, 0.5], [-0.5, 0.5]], dtype=complex)[:, :, None]
+    center, radius, inside = stability_circle(s, 1)
+    assert not np.isfinite(radius[0])
+    fraction = negative_fraction(s, 1, center, radius, inside)[0]
+    brute = np.mean(np.abs(observed_gamma(s[:, :, 0], _passive_grid(), 1)) > 1)
+    assert fraction == pytest.approx(brute, abs=5e-3)
+
+
+def test_chart_draws_the_result() -> None:
+    figure = termination_figure(analyse_terminations(read_touchstone(TRANSISTOR), 8e9))
+    gids = {artist.get_gid() for artist in figure.axes[0].get_children()}
+    assert {"passive-boundary", "stability-circle", "negative-region", "best-termination"} <= gids
+
+
+def _run(*arguments: str) -> tuple[int, str, str]:
+    out, err = io.StringIO(), io.StringIO()
+    return main(list(arguments), stdout=out, stderr=err), out.getvalue(), err.getvalue()
+
+
+def test_command_text_json_and_chart(tmp_path: Path) -> None:
+    code, out, err = _run("terminations", str(TRANSISTOR), "--at", "8GHz")
+    assert (code, err) == (0, "")
+    assert "most negative resistance: -11.18 ohm" in out and "1.172 nH inductor" in out
+    chart = tmp_path / "chart.png"
+    code, out, _ = _run(
+        "terminations", str(TRANSISTOR), "--at", "8GHz", "--terminate", "1", "--json",
+        "--plot", str(chart),
+    )  # fmt: skip
+    assert code == 0
+    record = json.loads(out)
+    assert record["schema"] == "oneport.terminations/1"
+    assert (record["terminated_port"], record["observed_port"]) == (1, 2)
+    at = record["at"]
+    assert at["reference_impedance_ohm"] == 50.0 and at["negative_resistance_possible"]
+    assert at["best_termination"]["observed_resistance_ohm"] == pytest.approx(-54.28, abs=0.01)
+    assert record["negative_resistance_bands"] == [{"start_hz": 1e8, "stop_hz": 1.8e10}]
+    assert chart.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_command_with_a_netlist(tmp_path: Path) -> None:
+    netlist = tmp_path / "cg.cir"
+    netlist.write_text(f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n rser=0.4\n.twoport s d\n')
+    code, out, _ = _run(
+        "terminations", str(netlist), "--at", "5GHz", "--start", "1GHz", "--stop", "10GHz",
+        "--points", "91", "--quiet",
+    )  # fmt: skip
+    assert code == 0
+    assert out.startswith("port 2 terminations making port 1 negative at 5 GHz:")
+    assert "unbounded" in out
+
+
+@pytest.mark.parametrize(
+    ("arguments", "message"),
+    [
+        (["--at", "30GHz"], "leaves the band"),
+        (["--at", "8GHz", "--start", "1GHz"], "apply to netlists"),
+        (["--at", "8 parsecs"], "--at"),
+    ],
+)
+def test_command_refusals(arguments: list[str], message: str) -> None:
+    code, out, err = _run("terminations", str(TRANSISTOR), *arguments)
+    assert code == 2 and out == "" and message in err and len(err.splitlines()) == 1
+
+
+def test_netlist_needs_a_grid_and_two_ports(tmp_path: Path) -> None:
+    netlist = tmp_path / "one.cir"
+    netlist.write_text("R1 1 0 50\n.oneport 1\n")
+    code, _, err = _run("terminations", str(netlist), "--at", "1GHz")
+    assert code == 2 and "needs --start and --stop" in err
+    code, _, err = _run(
+        "terminations", str(netlist), "--at", "1GHz", "--start", "1GHz", "--stop", "2GHz"
+    )
+    assert code == 2 and "has 1 ports; the analysis needs a two-port" in err
