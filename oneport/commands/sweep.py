@@ -132,9 +132,11 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
 
         save_figure(plot_sweep(result), arguments.plot)
     if arguments.json:
-        write_json(summary_dict(result, summary, setup["inputs"], table_path), out)
+        data = summary_dict(result, summary, setup["inputs"], table_path)
+        data["warnings"] = [finding.to_dict() for finding in setup["warnings"]]
+        write_json(data, out)
     else:
-        out.write(_render(result, summary, table_path, arguments.quiet))
+        out.write(_render(result, summary, table_path, arguments.quiet, setup["warnings"]))
     if result.interrupted:
         return ExitCode.INTERRUPTED
     return {"stable": ExitCode.HOLDS, "unstable": ExitCode.FAILS}.get(
@@ -205,6 +207,12 @@ def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
             load_side = Side(gamma=renormalise(load.gamma, load.reference_impedance_ohm, z0))
     dc_sign = _dc_sign(arguments, z0)
     source = LoopSource(frequency_hz, z0, device_side, load_side)
+    warnings = [
+        finding
+        for role, circuit in (("device", device_circuit), ("load", load_circuit))
+        if circuit is not None
+        for finding in _premise_findings(circuit, role, z0)
+    ]
     return {
         "source": source,
         "frequency_hz": frequency_hz,
@@ -212,11 +220,39 @@ def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
         "dc_sign": dc_sign,
         "devices": len(device_paths) if device_circuit is None else 1,
         "inputs": inputs,
+        "warnings": warnings,
         "parameters": {
             **(device_circuit.parameters if device_circuit is not None else {}),
             **(load_circuit.parameters if load_circuit is not None else {}),
         },
     }
+
+
+def _premise_findings(circuit: Any, role: str, z0: float) -> list[Any]:
+    """A warning when a netlist side, at its nominal values, is unstable terminated in Z0.
+
+    The sweep counts N only (P = 0 assumed for every variant, as for measured data); the single
+    check adds a netlist's own right-half-plane poles, so the two would differ there.
+    """
+    from ..errors import InputError as _InputError
+    from ..result import Finding
+
+    try:
+        roots = np.asarray(circuit.natural_frequencies(termination_ohm=z0))
+    except _InputError:
+        return []
+    unstable = int(np.sum(roots.real > 0))
+    if not unstable:
+        return []
+    return [
+        Finding(
+            "netlist-unstable-in-reference",
+            f"The {role} netlist ({circuit.source}) at its nominal values has {unstable}"
+            f" natural frequency(ies) in the right half plane terminated in {z0:g} ohm: the"
+            " sweep's counts assume none (P = 0) and are wrong by that many; use oneport check"
+            " on single variants, which adds them.",
+        )
+    ]
 
 
 def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
@@ -296,7 +332,9 @@ def _progress(total: int) -> tuple[Any, Any]:
     return bar.update, bar.close
 
 
-def _render(result: Any, summary: Any, table_path: str | None, quiet: bool) -> str:
+def _render(
+    result: Any, summary: Any, table_path: str | None, quiet: bool, warnings: list[Any]
+) -> str:
     from ..units import format_frequency
 
     headline = {
@@ -332,6 +370,7 @@ def _render(result: Any, summary: Any, table_path: str | None, quiet: bool) -> s
     if table_path:
         rows.append(f"  table: {table_path}")
     from ..cautions import CAUTIONS
+    from ..text import closing_sections
 
-    rows += ["", "Cautions", *[f"  ! {c}" for c in CAUTIONS]]
+    rows += closing_sections(warnings, (), None, CAUTIONS)
     return "\n".join(rows) + "\n"
