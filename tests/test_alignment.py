@@ -7,25 +7,10 @@ import numpy as np
 import pytest
 import skrf
 
-from oneport import InputError, NoOverlapError, OnePort
+from oneport import InputError, NoOverlapError
 from oneport.alignment import MINIMUM_OVERLAP_POINTS, align, renormalise
 
-
-def gamma_of(impedance_ohm, reference_ohm):
-    """Γ = (Z − R)/(Z + R) (common practice)."""
-    impedance_ohm = np.asarray(impedance_ohm, dtype=complex)
-    return (impedance_ohm - reference_ohm) / (impedance_ohm + reference_ohm)
-
-
-def one_port(frequency_hz, gamma, reference_ohm=50.0, source="port"):
-    frequency_hz = np.asarray(frequency_hz, dtype=float)
-    gamma = np.broadcast_to(np.asarray(gamma, dtype=complex), frequency_hz.shape).copy()
-    return OnePort(
-        frequency_hz=frequency_hz,
-        gamma=gamma,
-        reference_impedance_ohm=float(reference_ohm),
-        source=source,
-    )
+from helpers import gamma_of, one_port
 
 
 def random_gamma(rng, size):
@@ -186,8 +171,8 @@ LOAD_Z = 30.0 + 1j * 2 * np.pi * FREQUENCY_HZ * 2e-9  # 30 Ω + 2 nH
 
 
 def test_a_75_ohm_load_is_analysed_in_the_devices_50_ohm():
-    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 50.0), 50.0)
-    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 75.0), 75.0)
+    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 50.0), reference_ohm=50.0)
+    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 75.0), reference_ohm=75.0)
     pair = align(device, load)
     assert pair.reference_impedance_ohm == 50.0
     np.testing.assert_array_equal(pair.gamma_device, device.gamma)  # untouched
@@ -197,8 +182,8 @@ def test_a_75_ohm_load_is_analysed_in_the_devices_50_ohm():
 
 
 def test_a_device_measured_in_75_ohm_is_analysed_in_75_ohm():
-    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 75.0), 75.0)
-    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 50.0), 50.0)
+    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 75.0), reference_ohm=75.0)
+    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 50.0), reference_ohm=50.0)
     pair = align(device, load)
     assert pair.reference_impedance_ohm == 75.0
     np.testing.assert_array_equal(pair.gamma_device, device.gamma)
@@ -212,8 +197,8 @@ def test_the_loop_gain_is_not_invariant_under_renormalisation():
     in_50 = gamma_of(DEVICE_Z, 50.0) * gamma_of(LOAD_Z, 50.0)
     in_75 = gamma_of(DEVICE_Z, 75.0) * gamma_of(LOAD_Z, 75.0)
     assert np.max(np.abs(in_50 - in_75)) > 0.1
-    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 50.0), 50.0)
-    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 75.0), 75.0)
+    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 50.0), reference_ohm=50.0)
+    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 75.0), reference_ohm=75.0)
     pair = align(device, load)
     np.testing.assert_allclose(pair.gamma_device * pair.gamma_load, in_50, rtol=1e-12)
 
@@ -221,8 +206,8 @@ def test_the_loop_gain_is_not_invariant_under_renormalisation():
 def test_measurement_impedance_renormalises_the_device_to_it():
     # A device file renormalised to 50 Ω after a measurement in 75 Ω: analysed in 75 Ω, the
     # load brought there too.
-    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 50.0), 50.0)
-    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 50.0), 50.0)
+    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 50.0), reference_ohm=50.0)
+    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 50.0), reference_ohm=50.0)
     pair = align(device, load, measurement_impedance_ohm=75.0)
     assert pair.reference_impedance_ohm == 75.0
     np.testing.assert_allclose(pair.gamma_device, gamma_of(DEVICE_Z, 75.0), rtol=1e-12)
@@ -232,8 +217,8 @@ def test_measurement_impedance_renormalises_the_device_to_it():
 
 
 def test_measurement_impedance_equal_to_the_files_changes_nothing():
-    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 50.0), 50.0)
-    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 75.0), 75.0)
+    device = one_port(FREQUENCY_HZ, gamma_of(DEVICE_Z, 50.0), reference_ohm=50.0)
+    load = one_port(FREQUENCY_HZ, gamma_of(LOAD_Z, 75.0), reference_ohm=75.0)
     pair = align(device, load, measurement_impedance_ohm=50.0)
     assert pair.reference_impedance_ohm == 50.0
     np.testing.assert_array_equal(pair.gamma_device, device.gamma)

@@ -2,19 +2,16 @@
 
 from __future__ import annotations
 
-import io
 import json
 from pathlib import Path
 
 import numpy as np
 import pytest
 
-import oneport
 from oneport.amplifier import analyse_amplifier, plot_amplifier, screen_amplifier
-from oneport.cli import main
 from oneport.errors import InputError
 
-Z0 = 50.0
+from helpers import Z0, one_port, run_cli
 
 
 def parallel_device(f: np.ndarray, resistance: float = 75.0, capacitance: float = 1e-12):
@@ -38,10 +35,6 @@ def circulator_port(f: np.ndarray) -> np.ndarray:
     """A well-matched port: 55 ohm + 0.2 nH (about 20 dB return loss up to 5 GHz)."""
     impedance = 55.0 + 2j * np.pi * f * 0.2e-9
     return (impedance - Z0) / (impedance + Z0)
-
-
-def one_port(f: np.ndarray, gamma: np.ndarray, name: str) -> oneport.OnePort:
-    return oneport.OnePort(frequency_hz=f, gamma=gamma, reference_impedance_ohm=Z0, source=name)
 
 
 @pytest.mark.parametrize("resistance", [75.0, 100.0, 150.0])
@@ -166,12 +159,6 @@ def write_s1p(path: Path, f: np.ndarray, gamma: np.ndarray) -> Path:
     lines += [f"{x:.10g} {g.real:.12e} {g.imag:.12e}" for x, g in zip(f, gamma, strict=True)]
     path.write_text("\n".join(lines) + "\n", encoding="ascii")
     return path
-
-
-def run_cli(*arguments: str) -> tuple[int, str, str]:
-    out, err = io.StringIO(), io.StringIO()
-    code = main(list(arguments), stdout=out, stderr=err)
-    return code, out.getvalue(), err.getvalue()
 
 
 def test_command(tmp_path):

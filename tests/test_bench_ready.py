@@ -11,7 +11,6 @@ data and the exact natural frequencies.
 
 from __future__ import annotations
 
-import io
 import json
 from pathlib import Path
 
@@ -21,100 +20,24 @@ import skrf
 
 import oneport
 from oneport import OnePort, nyquist
-from oneport.cli import main
 from oneport.preparation import PortSetup, prepare
 
-Z0 = 50.0
+from helpers import Z0, gamma_of, one_port, run_cli, write_touchstone
+from lumped import (
+    Impedance,
+    capacitor,
+    impedance,
+    inductor,
+    parallel,
+    resistor,
+    right_half_plane_roots,
+    series,
+)
+
 # CONVENTIONS.md: stable 0, unstable 3, inconclusive 4.
 EXIT_CODES = {"stable": 0, "unstable": 3, "inconclusive": 4}
 
-Polynomials = tuple[np.ndarray, np.ndarray]
-
-
-# --- circuits as polynomials in s ------------------------------------------------------------
-
-
-def resistor(resistance_ohm: float) -> Polynomials:
-    """Impedance polynomials (numerator, denominator) of a resistor."""
-    return np.array([float(resistance_ohm)]), np.array([1.0])
-
-
-def inductor(inductance_h: float) -> Polynomials:
-    """Impedance polynomials of an inductor, s·L."""
-    return np.array([inductance_h, 0.0]), np.array([1.0])
-
-
-def capacitor(capacitance_f: float) -> Polynomials:
-    """Impedance polynomials of a capacitor, 1/(s·C)."""
-    return np.array([1.0]), np.array([capacitance_f, 0.0])
-
-
-def series(*parts: Polynomials) -> Polynomials:
-    """Impedances in series: the sum over a common denominator."""
-    numerator, denominator = parts[0]
-    for other_numerator, other_denominator in parts[1:]:
-        numerator = np.polyadd(
-            np.polymul(numerator, other_denominator), np.polymul(other_numerator, denominator)
-        )
-        denominator = np.polymul(denominator, other_denominator)
-    return numerator, denominator
-
-
-def parallel(*parts: Polynomials) -> Polynomials:
-    """Impedances in parallel: Za·Zb/(Za + Zb), repeated."""
-    numerator, denominator = parts[0]
-    for other_numerator, other_denominator in parts[1:]:
-        numerator, denominator = (
-            np.polymul(numerator, other_numerator),
-            np.polyadd(
-                np.polymul(numerator, other_denominator), np.polymul(other_numerator, denominator)
-            ),
-        )
-    return numerator, denominator
-
-
-def impedance(circuit: Polynomials, frequency_hz: np.ndarray) -> np.ndarray:
-    """Z(jω), Ω, of a circuit on a grid (Hz)."""
-    s = 2j * np.pi * np.asarray(frequency_hz, dtype=float)
-    return np.polyval(circuit[0], s) / np.polyval(circuit[1], s)
-
-
-def reflection(circuit: Polynomials, frequency_hz: np.ndarray, z0: float = Z0) -> np.ndarray:
-    """Γ = (Z − Z0)/(Z + Z0) of a circuit on a grid."""
-    z = impedance(circuit, frequency_hz)
-    return (z - z0) / (z + z0)
-
-
-def right_half_plane_roots(device: Polynomials, load: Polynomials) -> np.ndarray:
-    """Natural frequencies with σ > 0: roots of n_d·d_L + n_L·d_d (METHODS §1), by numpy.roots."""
-    (device_numerator, device_denominator), (load_numerator, load_denominator) = device, load
-    characteristic = np.polyadd(
-        np.polymul(device_numerator, load_denominator),
-        np.polymul(load_numerator, device_denominator),
-    )
-    roots = np.roots(np.trim_zeros(characteristic, "f"))
-    return roots[roots.real > 0]
-
-
 # --- files and the command line ----------------------------------------------------------------
-
-
-def write_touchstone(
-    path: Path, frequency_hz: np.ndarray, s: np.ndarray, reference_ohm: float = Z0
-) -> Path:
-    """Write a Touchstone 1.x file, Hz, S, RI, full precision.
-
-    ``s`` has shape (n,) for a one-port or (2, 2, n) for a two-port, written in the Touchstone
-    1.x two-port order N11 N21 N12 N22 (Touchstone specification).
-    """
-    s = np.asarray(s, dtype=complex)
-    columns = [s] if s.ndim == 1 else [s[0, 0], s[1, 0], s[0, 1], s[1, 1]]
-    lines = ["! invented test data", f"# Hz S RI R {float(reference_ohm)!r}"]
-    for index, frequency in enumerate(np.asarray(frequency_hz, dtype=float)):
-        values = " ".join(f"{float(c[index].real)!r} {float(c[index].imag)!r}" for c in columns)
-        lines.append(f"{float(frequency)!r} {values}")
-    path.write_text("\n".join(lines) + "\n", encoding="ascii")
-    return path
 
 
 def write_network(path: Path, network: skrf.Network) -> Path:
@@ -123,16 +46,9 @@ def write_network(path: Path, network: skrf.Network) -> Path:
     return write_touchstone(path, network.f, np.moveaxis(network.s, 0, -1).squeeze(), reference)
 
 
-def run(*argv: str | Path) -> tuple[int, str, str]:
-    """Run ``oneport`` in-process; return exit code, stdout and stderr."""
-    out, err = io.StringIO(), io.StringIO()
-    code = main([str(argument) for argument in argv], stdout=out, stderr=err)
-    return int(code), out.getvalue(), err.getvalue()
-
-
 def run_json(*argv: str | Path) -> tuple[int, dict]:
     """Run ``oneport check … --json --include-arrays``; return exit code and the JSON object."""
-    code, out, err = run(*argv, "--json", "--include-arrays")
+    code, out, err = run_cli(*argv, "--json", "--include-arrays")
     assert code in EXIT_CODES.values(), (code, err)
     data = json.loads(out)
     assert EXIT_CODES[data["verdict"]] == code
@@ -147,13 +63,6 @@ def complex_array(values: list[dict]) -> np.ndarray:
 def crossing_frequencies(data: dict) -> np.ndarray:
     """The crossing frequencies of a check's JSON, Hz."""
     return np.array([c["frequency_hz"] for c in data["crossings"]])
-
-
-def one_port(frequency_hz: np.ndarray, gamma: np.ndarray, source: str) -> OnePort:
-    """An in-memory one-port referred to 50 Ω."""
-    return OnePort(
-        frequency_hz=frequency_hz, gamma=gamma, reference_impedance_ohm=Z0, source=source
-    )
 
 
 # --- shared invented circuits ------------------------------------------------------------------
@@ -215,7 +124,7 @@ def test_terminated_two_port_matches_scikit_rf_connect_and_the_roots(tmp_path):
     load_path = write_touchstone(
         tmp_path / "load.s1p",
         TERMINATION_GRID_HZ,
-        reflection(TERMINATION_LOAD, TERMINATION_GRID_HZ),
+        gamma_of(impedance(TERMINATION_LOAD, TERMINATION_GRID_HZ)),
     )
     # source: scikit-rf skrf.network.connect (handles the 75 Ω / 50 Ω step itself)
     reference = skrf.network.connect(two_port, 1, termination, 0)
@@ -262,8 +171,8 @@ GROUND_CONDUCTANCE_S, GROUND_CAPACITANCE_F = 1 / 2000.0, 0.5e-12
 # Differential: −G ∥ C with G = 1/200 − 1/4000 S and C = 0.4 + 0.25 pF: 1/G = 210 Ω exceeds the
 # 100 Ω differential reference, so Γ has no RHP pole there (METHODS §3).
 DIFFERENTIAL_DEVICE = (
-    np.array([1.0]),
-    np.array(
+    np.poly1d([1.0]),
+    np.poly1d(
         [
             FLOATING_CAPACITANCE_F + GROUND_CAPACITANCE_F / 2,
             FLOATING_CONDUCTANCE_S + GROUND_CONDUCTANCE_S / 2,
@@ -299,7 +208,7 @@ def test_differential_ports_match_scikit_rf_se2gmm(tmp_path):
     load_path = write_touchstone(
         tmp_path / "load.s1p",
         MIXED_GRID_HZ,
-        reflection(DIFFERENTIAL_LOAD, MIXED_GRID_HZ, 100.0),
+        gamma_of(impedance(DIFFERENTIAL_LOAD, MIXED_GRID_HZ), 100.0),
         100.0,
     )
     code, data = run_json("check", device_path, "--differential-ports", "1,2", "--load", load_path)
@@ -341,14 +250,14 @@ def test_ten_picoseconds_at_ten_gigahertz_is_seventy_two_degrees(tmp_path):
 
 def test_removing_a_known_line_restores_the_bare_device(tmp_path):
     media = _media(WIDE_GRID_HZ)
-    bare = reflection(DIODE, WIDE_GRID_HZ)
+    bare = gamma_of(impedance(DIODE, WIDE_GRID_HZ))
     bare_network = media.load(bare)  # a one-port with Γ = bare
     # source: scikit-rf media line (12 ps, matched) cascaded with ** in front of the device
     measured = media.line(12.0, unit="ps") ** bare_network
     bare_path = write_touchstone(tmp_path / "bare.s1p", WIDE_GRID_HZ, bare)
     measured_path = write_network(tmp_path / "measured.s1p", measured)
     load_path = write_touchstone(
-        tmp_path / "load.s1p", WIDE_GRID_HZ, reflection(OSCILLATING_LOAD, WIDE_GRID_HZ)
+        tmp_path / "load.s1p", WIDE_GRID_HZ, gamma_of(impedance(OSCILLATING_LOAD, WIDE_GRID_HZ))
     )
     _, truth = run_json("check", bare_path, "--load", load_path)
     code, shifted = run_json("check", measured_path, "--load", load_path, "--device-delay=-12ps")
@@ -371,7 +280,7 @@ def test_removing_a_known_line_restores_the_bare_device(tmp_path):
 
 def test_fixture_deembedding_through_the_cli_matches_the_bare_device(tmp_path):
     media = _media(WIDE_GRID_HZ)
-    bare = reflection(DIODE, WIDE_GRID_HZ)
+    bare = gamma_of(impedance(DIODE, WIDE_GRID_HZ))
     # An invented, lossy and mismatched fixture: 2 Ω, 15 ps of line, a 0.2 pF pad, a 0.3 nH wire.
     fixture = (
         media.resistor(2.0)
@@ -384,7 +293,7 @@ def test_fixture_deembedding_through_the_cli_matches_the_bare_device(tmp_path):
     measured_path = write_network(tmp_path / "measured.s1p", measured)
     bare_path = write_touchstone(tmp_path / "bare.s1p", WIDE_GRID_HZ, bare)
     load_path = write_touchstone(
-        tmp_path / "load.s1p", WIDE_GRID_HZ, reflection(OSCILLATING_LOAD, WIDE_GRID_HZ)
+        tmp_path / "load.s1p", WIDE_GRID_HZ, gamma_of(impedance(OSCILLATING_LOAD, WIDE_GRID_HZ))
     )
     _, truth = run_json("check", bare_path, "--load", load_path)
     _, deembedded = run_json(
@@ -411,10 +320,10 @@ def test_latch_up_below_the_sweep_needs_the_dc_resistances(tmp_path):
     device_grid_hz = np.linspace(200e6, 6e9, 1201)
     load_grid_hz = np.linspace(200e6, 6.5e9, 801)
     device_path = write_touchstone(
-        tmp_path / "diode.s1p", device_grid_hz, reflection(DIODE, device_grid_hz)
+        tmp_path / "diode.s1p", device_grid_hz, gamma_of(impedance(DIODE, device_grid_hz))
     )
     load_path = write_touchstone(
-        tmp_path / "bias.s1p", load_grid_hz, reflection(BIAS_NETWORK, load_grid_hz)
+        tmp_path / "bias.s1p", load_grid_hz, gamma_of(impedance(BIAS_NETWORK, load_grid_hz))
     )
     # source: numpy.roots: exactly one RHP root, and it is real (a latch-up, no frequency)
     roots = right_half_plane_roots(DIODE, BIAS_NETWORK)
@@ -459,13 +368,13 @@ def test_return_loss_bound_of_a_pure_negative_resistance(tmp_path, resistance_oh
     device_path = write_touchstone(
         tmp_path / "negative.s1p", BOUND_GRID_HZ, np.full(BOUND_GRID_HZ.size, gamma, complex)
     )
-    code, out, err = run("check", device_path, f"--load-return-loss={required_db + 0.01:.6f}dB")
+    code, out, err = run_cli("check", device_path, f"--load-return-loss={required_db + 0.01:.6f}dB")
     assert (code, err) == (0, ""), out
     assert out.startswith("GUARANTEED")  # the verdict first (CONVENTIONS.md)
-    code, out, err = run("check", device_path, f"--load-return-loss={required_db - 0.01:.6f}dB")
+    code, out, err = run_cli("check", device_path, f"--load-return-loss={required_db - 0.01:.6f}dB")
     assert (code, err) == (3, ""), out
     assert "not guaranteed" in out.splitlines()[0].lower()
-    code, text, _ = run(
+    code, text, _ = run_cli(
         "check", device_path, f"--load-return-loss={required_db - 0.01:.6f}dB", "--json"
     )
     data = json.loads(text)
@@ -551,7 +460,7 @@ COARSE_GRID_HZ = np.arange(10e6, 4e9 + 1.0, 10e6)  # 10 MHz steps: resolves load
 FINE_GRID_HZ = np.arange(10e6, 4e9 + 1.0, 0.1e6)  # 100 times finer
 
 
-def tank(resistance_ohm: float, quality_factor: float, resonance_hz: float) -> Polynomials:
+def tank(resistance_ohm: float, quality_factor: float, resonance_hz: float) -> Impedance:
     """A parallel RLC tank of the given loaded Q: Rp ∥ L ∥ C with Q = Rp/(ω0·L)."""
     omega = 2 * np.pi * resonance_hz
     inductance = resistance_ohm / (quality_factor * omega)
@@ -566,11 +475,11 @@ COUPLED_TANK = series(inductor(0.65e-9), tank(70.0, 1000.0, 1.006e9))
 TANK_DEVICE = series(resistor(3.0), parallel(resistor(-60.0), capacitor(5e-12)))
 
 
-def _check_on(grid_hz: np.ndarray, device: Polynomials, load: Polynomials):
+def _check_on(grid_hz: np.ndarray, device: Impedance, load: Impedance):
     """``oneport.check`` of two circuits sampled on one grid (API, no files)."""
     return oneport.check(
-        one_port(grid_hz, reflection(device, grid_hz), "device"),
-        one_port(grid_hz, reflection(load, grid_hz), "load"),
+        one_port(grid_hz, gamma_of(impedance(device, grid_hz)), "device"),
+        one_port(grid_hz, gamma_of(impedance(load, grid_hz)), "load"),
     )
 
 
@@ -699,8 +608,7 @@ def test_return_loss_bound_needs_a_sweep(tmp_path):
     # A bound "over frequency" from one point would claim a guarantee the data cannot give.
     device = tmp_path / "one_point.s1p"
     device.write_text("# GHz S RI R 50\n1 3 0\n")
-    out, err = io.StringIO(), io.StringIO()
-    code = main(["check", str(device), "--load-return-loss", "15dB"], stdout=out, stderr=err)
+    code, _, err = run_cli("check", device, "--load-return-loss", "15dB")
     assert code == 2
-    assert len(err.getvalue().strip().splitlines()) == 1
-    assert "at least 5" in err.getvalue()
+    assert len(err.strip().splitlines()) == 1
+    assert "at least 5" in err

@@ -10,11 +10,7 @@ import pytest
 from oneport.character import DeviceCharacter, characterise_device, winding_count
 from oneport.errors import InputError
 
-Z0 = 50.0
-
-
-def gamma_of(impedance: np.ndarray) -> np.ndarray:
-    return (impedance - Z0) / (impedance + Z0)
+from helpers import Z0, gamma_of
 
 
 def trusted_rhp(character: DeviceCharacter, termination: str) -> list[complex]:

@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import functools
 import hashlib
-import io
 import json
 import re
 import shutil
@@ -18,7 +17,7 @@ from pathlib import Path
 
 import pytest
 
-from oneport.cli import main
+from helpers import run_cli
 
 PROJECT = Path(__file__).resolve().parents[1]
 EXAMPLES = PROJECT / "touchstone_examples"
@@ -53,13 +52,6 @@ REQUIRED_KEYS = {
 }
 
 
-def run(*argv: str | Path) -> tuple[int, str, str]:
-    """Run ``oneport`` in-process; return exit code, stdout and stderr."""
-    out, err = io.StringIO(), io.StringIO()
-    code = main([str(a) for a in argv], stdout=out, stderr=err)
-    return int(code), out.getvalue(), err.getvalue()
-
-
 def example_files(name: str) -> tuple[Path, Path]:
     folder = EXAMPLES / name
     loads = sorted(folder.glob("load.*"))
@@ -71,7 +63,7 @@ def example_files(name: str) -> tuple[Path, Path]:
 @functools.cache
 def json_result(name: str) -> tuple[int, dict, str]:
     device, load = example_files(name)
-    code, out, err = run("check", device, "--load", load, "--json")
+    code, out, err = run_cli("check", device, "--load", load, "--json")
     return code, json.loads(out), err
 
 
@@ -90,7 +82,7 @@ def assert_one_line_error(code: int, out: str, err: str) -> None:
 @pytest.mark.parametrize("name", list(EXPECTED_VERDICTS))
 def test_exit_code_matches_the_verdict(name):
     device, load = example_files(name)
-    code, out, err = run("check", device, "--load", load)
+    code, out, err = run_cli("check", device, "--load", load)
     expected = EXPECTED_VERDICTS[name]
     assert code == EXIT_CODES[expected], out + err
     assert err == ""
@@ -227,7 +219,7 @@ def test_warnings_carry_code_and_message(tmp_path):
         kept.append(line)
     short_load = tmp_path / "load.s1p"
     short_load.write_text("\n".join(kept) + "\n", encoding="utf-8")
-    code, out, err = run("check", device, "--load", short_load, "--json")
+    code, out, err = run_cli("check", device, "--load", short_load, "--json")
     data = json.loads(out)
     assert code == EXIT_CODES[data["verdict"]], err
     assert data["warnings"]
@@ -240,7 +232,7 @@ def test_warnings_carry_code_and_message(tmp_path):
 
 def test_measurement_impedance_renormalises_the_device():
     device, load = example_files("stable")
-    code, out, _ = run(
+    code, out, _ = run_cli(
         "check", device, "--load", load, "--json", "--measurement-impedance", "75ohm"
     )
     data = json.loads(out)
@@ -258,7 +250,7 @@ def test_measurement_impedance_renormalises_the_device():
 
 def test_measurement_impedance_equal_to_the_files_changes_nothing():
     device, load = example_files("stable")
-    code, out, _ = run(
+    code, out, _ = run_cli(
         "check", device, "--load", load, "--json", "--measurement-impedance", "50ohm"
     )
     data = json.loads(out)
@@ -272,7 +264,7 @@ def test_measurement_impedance_equal_to_the_files_changes_nothing():
 
 def test_include_arrays_adds_the_arrays_with_their_reference():
     device, load = example_files("stable")
-    code, out, _ = run("check", device, "--load", load, "--json", "--include-arrays")
+    code, out, _ = run_cli("check", device, "--load", load, "--json", "--include-arrays")
     arrays = json.loads(out)["arrays"]
     assert code == 0
     assert arrays["reference_impedance_ohm"] == 50.0
@@ -293,7 +285,7 @@ def test_arrays_are_left_out_unless_asked():
 @pytest.mark.parametrize("name", list(EXPECTED_VERDICTS))
 def test_quiet_prints_one_line(name):
     device, load = example_files(name)
-    code, out, err = run("check", device, "--load", load, "--quiet")
+    code, out, err = run_cli("check", device, "--load", load, "--quiet")
     assert code == EXIT_CODES[EXPECTED_VERDICTS[name]]
     assert err == ""
     assert len(out.splitlines()) == 1
@@ -368,18 +360,18 @@ BAD_INPUTS = {
 def test_bad_input_exits_2_with_one_line(files, tmp_path, case):
     files["folder"] = tmp_path
     argv, must_contain = BAD_INPUTS[case]
-    code, out, err = run(*(arg.format(**files) for arg in argv))
+    code, out, err = run_cli(*(arg.format(**files) for arg in argv))
     assert_one_line_error(code, out, err)
     assert must_contain.format(**files) in err, err
 
 
 def test_bad_input_with_json_prints_no_json(files):
-    code, out, err = run("check", files["garbage"], "--load", files["load"], "--json")
+    code, out, err = run_cli("check", files["garbage"], "--load", files["load"], "--json")
     assert_one_line_error(code, out, err)
 
 
 def test_version_prints_the_version():
-    code, out, err = run("--version")
+    code, out, err = run_cli("--version")
     assert code == 0
     assert re.fullmatch(r"oneport \d+\.\d+\.\d+\S*\n", out)
     assert err == ""

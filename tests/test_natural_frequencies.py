@@ -20,63 +20,29 @@ from hypothesis import assume, event, given, settings
 from hypothesis import strategies as st
 
 import oneport
-from oneport import OnePort, nyquist
+from oneport import nyquist
 
-Z0 = 50.0
+from lumped import (
+    Z0,
+    Impedance,
+    capacitor,
+    characteristic_polynomial,
+    inductor,
+    log_uniform,
+    parallel,
+    port,
+    resistor,
+    roots,
+    series,
+    series_rl_loads,
+    tunnel_diodes,
+)
+
 POINTS = 3000
 #: A root with |Re s| below this fraction of |s| is too sharp for the grid to be trusted with.
 AXIS_FRACTION = 0.02
 #: Largest ratio of root magnitudes accepted, so the log grid keeps enough points per decade.
 MAX_SPREAD = 1e5
-#: numpy.roots works on s in units of this (rad/s), so component values in SI stay well scaled.
-S_UNIT = 1e9
-
-Impedance = tuple[np.poly1d, np.poly1d]
-
-
-# --- lumped impedances as (numerator, denominator) polynomials in s (SI units) -----------------
-
-
-def resistor(r: float) -> Impedance:
-    return np.poly1d([float(r)]), np.poly1d([1.0])
-
-
-def inductor(inductance: float) -> Impedance:
-    return np.poly1d([float(inductance), 0.0]), np.poly1d([1.0])
-
-
-def capacitor(capacitance: float) -> Impedance:
-    return np.poly1d([1.0]), np.poly1d([float(capacitance), 0.0])
-
-
-def series(*parts: Impedance) -> Impedance:
-    num, den = parts[0]
-    for n, d in parts[1:]:
-        num, den = num * d + n * den, den * d
-    return num, den
-
-
-def parallel(a: Impedance, b: Impedance) -> Impedance:
-    (na, da), (nb, db) = a, b
-    return na * nb, na * db + nb * da
-
-
-def roots(poly: np.poly1d) -> np.ndarray:
-    """numpy.roots of ``poly`` in s (rad/s), computed on s / S_UNIT for scaling."""
-    coefficients = poly.coeffs * S_UNIT ** np.arange(poly.order, -1, -1)
-    return np.roots(coefficients) * S_UNIT
-
-
-def gamma(z: Impedance, frequency_hz: np.ndarray, z0: float = Z0) -> np.ndarray:
-    """Γ = (n − Z0·d)/(n + Z0·d) evaluated at s = j2πf."""
-    s = 2j * np.pi * frequency_hz
-    n, d = z[0](s), z[1](s)
-    return (n - z0 * d) / (n + z0 * d)
-
-
-def characteristic_polynomial(device: Impedance, load: Impedance) -> np.poly1d:
-    (n_d, d_d), (n_l, d_l) = device, load
-    return n_d * d_l + n_l * d_d
 
 
 def limit_of_gamma(z: Impedance, side: str, z0: float = Z0) -> complex:
@@ -120,10 +86,7 @@ def check_against_roots(device: Impedance, load: Impedance, require=assume) -> s
     require(bool(scales.max() / scales.min() < MAX_SPREAD))
     frequency_hz = np.geomspace(1e-3 * scales.min(), 1e3 * scales.max(), POINTS) / (2 * np.pi)
 
-    result = oneport.check(
-        OnePort(frequency_hz, gamma(device, frequency_hz), Z0, "device"),
-        OnePort(frequency_hz, gamma(load, frequency_hz), Z0, "load"),
-    )
+    result = oneport.check(port(device, frequency_hz, "device"), port(load, frequency_hz, "load"))
     rhp = int(np.sum(natural.real > 0))
     context = (natural, result.reasons, [w.code for w in result.warnings])
     if result.encirclements is None:
@@ -152,34 +115,6 @@ def insist(condition: bool) -> None:
     assert condition
 
 
-# --- strategies --------------------------------------------------------------------------------
-
-
-def log_uniform(low: float, high: float) -> st.SearchStrategy[float]:
-    return st.floats(np.log10(low), np.log10(high)).map(lambda e: float(10.0**e))
-
-
-def tunnel_diode() -> st.SearchStrategy[Impedance]:
-    """Rs + s·Ls + (−Rd ∥ Cj), the tunnel-diode equivalent circuit (METHODS §7)."""
-    return st.builds(
-        lambda rs, ls, rd, cj: series(
-            resistor(rs), inductor(ls), parallel(resistor(-rd), capacitor(cj))
-        ),
-        log_uniform(0.5, 10.0),
-        log_uniform(0.05e-9, 3e-9),
-        log_uniform(60.0, 400.0),
-        log_uniform(0.2e-12, 10e-12),
-    )
-
-
-def series_rl_load() -> st.SearchStrategy[Impedance]:
-    return st.builds(
-        lambda r, inductance: series(resistor(r), inductor(inductance)),
-        st.floats(0.0, 300.0),
-        log_uniform(0.1e-9, 20e-9),
-    )
-
-
 # --- families ----------------------------------------------------------------------------------
 
 FAMILY = settings(max_examples=150, deadline=None)
@@ -191,7 +126,7 @@ FAMILY = settings(max_examples=150, deadline=None)
     inductance=log_uniform(0.1e-9, 10e-9),
     capacitance=log_uniform(0.2e-12, 20e-12),
     load=st.one_of(
-        series_rl_load(),
+        series_rl_loads(),
         st.builds(
             lambda r, c: parallel(resistor(r), capacitor(c)),
             log_uniform(1.0, 500.0),
@@ -209,7 +144,7 @@ def test_series_negative_rlc_device(
 
 
 @FAMILY
-@given(device=tunnel_diode(), load=series_rl_load())
+@given(device=tunnel_diodes(), load=series_rl_loads())
 def test_tunnel_diode_into_series_rl(device: Impedance, load: Impedance) -> None:
     """Counts 0, 1 (R_T > Rd: latch-up) and 2 (R_T too small for L_T: oscillation)."""
     event(check_against_roots(device, load))
@@ -217,7 +152,7 @@ def test_tunnel_diode_into_series_rl(device: Impedance, load: Impedance) -> None
 
 @FAMILY
 @given(
-    device=tunnel_diode(),
+    device=tunnel_diodes(),
     rf_resistance=log_uniform(5.0, 200.0),
     block=log_uniform(1e-12, 1e-9),
     bias_resistance=st.floats(0.0, 300.0),
@@ -236,7 +171,7 @@ def test_tunnel_diode_into_bias_tee(
 
 @FAMILY
 @given(
-    device=tunnel_diode(),
+    device=tunnel_diodes(),
     r=log_uniform(1.0, 300.0),
     inductance=log_uniform(0.1e-9, 20e-9),
     block=log_uniform(1e-12, 1e-9),

@@ -26,6 +26,7 @@ F0 = 1e9  # tank resonance, Hz
 TANK_C = 10e-12  # junction capacitance, F: with the load's inductor, a tank at F0
 TANK_L = 1.0 / ((2 * np.pi * F0) ** 2 * TANK_C)
 Z0 = 50.0
+TANK_PARASITICS = Parasitics(junction_capacitance_f=TANK_C)  # the junction capacitance alone
 
 
 def shunt_load(conductance_s: float, frequency_hz: np.ndarray | None = None) -> OnePort:
@@ -35,15 +36,33 @@ def shunt_load(conductance_s: float, frequency_hz: np.ndarray | None = None) -> 
     return OnePort(f, (1 - Z0 * admittance) / (1 + Z0 * admittance), Z0, "shunt load")
 
 
-def polynomial_device(coefficients: tuple[float, ...], amplitude_max_v: float) -> IVDevice:
-    """i(v) = sum c_k v^k about a bias of 0 V, in parallel with TANK_C."""
+def polynomial_device(
+    coefficients: tuple[float, ...],
+    amplitude_max_v: float,
+    parasitics: Parasitics = TANK_PARASITICS,
+) -> IVDevice:
+    """i(v) = sum c_k v^k about a bias of 0 V, with ``parasitics`` (by default TANK_C across it).
+
+    Parameters
+    ----------
+    coefficients : tuple of float
+        c_0, c_1, … of the I–V polynomial, A/V^k.
+    amplitude_max_v : float
+        Largest junction amplitude searched, V (the smallest is 1 mV).
+    parasitics : Parasitics
+        The linear parasitics around the junction.
+
+    Returns
+    -------
+    IVDevice
+    """
     return IVDevice(
         current=polynomial_current(coefficients, 0.0),
         curve_kind="polynomial",
         bias_voltage_v=0.0,
         amplitude_min_v=1e-3,
         amplitude_max_v=amplitude_max_v,
-        parasitics=Parasitics(junction_capacitance_f=TANK_C),
+        parasitics=parasitics,
     )
 
 
@@ -361,13 +380,8 @@ def test_a_form_that_does_not_suit_the_device_keeps_the_right_stability() -> Non
     # rises: I = A |G(A) + jwC| with |G| shrinking faster than A grows (by hand: dI/dA < 0 at
     # A = 0.179 V). Stability is then judged in the device's own level variable (METHODS §4:
     # the sign of S survives a monotone change of variable, the current is not one here).
-    device = IVDevice(
-        current=polynomial_current((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.0),
-        curve_kind="polynomial",
-        bias_voltage_v=0.0,
-        amplitude_min_v=1e-3,
-        amplitude_max_v=0.5,
-        parasitics=Parasitics(junction_capacitance_f=1e-12),
+    device = polynomial_device(
+        (0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.5, Parasitics(junction_capacitance_f=1e-12)
     )
     f = np.linspace(0.5e9, 1.5e9, 801)
     admittance = 8e-3 + 1.0 / (2j * np.pi * f * 25.33e-9)
@@ -388,13 +402,10 @@ def test_a_series_tuned_loop_switches_to_the_impedance_form() -> None:
     # near Ls-C series resonance the port voltage, about A_j w Ls |G(A_j)|, falls as A_j rises
     # (d/dA [A (g1 - (3/4) g3 A^2)] = g1 - (9/4) g3 A^2 < 0 here) while the current A_j w C rises.
     inductance, resistance = TANK_L, 2.0
-    device = IVDevice(
-        current=polynomial_current((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.0),
-        curve_kind="polynomial",
-        bias_voltage_v=0.0,
-        amplitude_min_v=1e-3,
-        amplitude_max_v=0.5,
-        parasitics=Parasitics(series_inductance_h=inductance, junction_capacitance_f=TANK_C),
+    device = polynomial_device(
+        (0.0, -G1_CUBIC, 0.0, G3_CUBIC),
+        0.5,
+        Parasitics(series_inductance_h=inductance, junction_capacitance_f=TANK_C),
     )
     f = np.linspace(0.8e9, 1.2e9, 401)
     gamma = np.full(f.shape, (resistance - Z0) / (resistance + Z0), dtype=complex)
@@ -431,13 +442,7 @@ def test_two_resonances_give_two_stable_points_and_mode_jumping() -> None:
     )
     admittance = 8e-3 + 1.0 / impedance
     load = OnePort(f, (1 - Z0 * admittance) / (1 + Z0 * admittance), Z0, "two tanks")
-    device = IVDevice(
-        current=polynomial_current((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.0),
-        curve_kind="polynomial",
-        bias_voltage_v=0.0,
-        amplitude_min_v=1e-3,
-        amplitude_max_v=0.5,
-    )
+    device = polynomial_device((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.5, Parasitics())
     result = analyse_oscillator(device, load)
     assert result.verdict == "mode-jumping" and result.exit_code == 3
     frequencies = sorted(p.frequency_hz for p in result.operating_points)

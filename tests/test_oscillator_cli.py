@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import io
 import json
 import shutil
 from pathlib import Path
@@ -10,17 +9,12 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from oneport.cli import main
 from oneport.errors import InputError
 from oneport.oscillator import OSCILLATOR_SCHEMA, VERDICT_EXIT_CODES, read_device_description
 
+from helpers import run_cli
+
 EXAMPLES = Path(__file__).resolve().parent.parent / "touchstone_examples" / "oscillator"
-
-
-def run(*argv: str) -> tuple[int, str, str]:
-    out, err = io.StringIO(), io.StringIO()
-    code = main(list(argv), stdout=out, stderr=err)
-    return code, out.getvalue(), err.getvalue()
 
 
 def write_level(path: Path, points: int = 11, reference: float = 50.0, value: float = 0.3) -> None:
@@ -161,14 +155,14 @@ def test_iv_table_is_read_with_its_header_and_checked(tmp_path: Path) -> None:
 
 def test_bad_input_is_one_line_and_exit_2(two_files: Path) -> None:
     path = manifest(two_files, "kind = [unclosed\n")
-    code, out, err = run("oscillator", str(path), "--load", str(two_files / "a.s1p"))
+    code, out, err = run_cli("oscillator", str(path), "--load", str(two_files / "a.s1p"))
     assert code == 2 and out == ""
     assert err.count("\n") == 1 and "is not valid TOML" in err and str(path) in err
 
 
 def test_json_contract_and_plot(tmp_path: Path) -> None:
     plot = tmp_path / "points.png"
-    code, out, _ = run(
+    code, out, _ = run_cli(
         "oscillator",
         str(EXAMPLES / "hard_excitation.toml"),
         "--load",
@@ -201,7 +195,7 @@ def test_json_contract_and_plot(tmp_path: Path) -> None:
 
 
 def test_unwritable_plot_is_a_usage_error(tmp_path: Path) -> None:
-    code, _, err = run(
+    code, _, err = run_cli(
         "oscillator",
         str(EXAMPLES / "tunnel_diode.toml"),
         "--load",
@@ -217,7 +211,7 @@ def test_unwritable_plot_is_a_usage_error(tmp_path: Path) -> None:
 def test_examples_settle_at_the_same_point(name: str) -> None:
     # The three descriptions of the invented diode D2 are one device (generate.py): the drive
     # levels were computed from the same I-V curve, so they must agree.
-    code, out, _ = run(
+    code, out, _ = run_cli(
         "oscillator", str(EXAMPLES / f"{name}.toml"), "--load", str(EXAMPLES / "load.s1p"), "--json"
     )
     data = json.loads(out)
@@ -230,7 +224,7 @@ def test_examples_settle_at_the_same_point(name: str) -> None:
 
 def test_text_report_puts_the_verdict_first_and_cautions_last(tmp_path: Path) -> None:
     shutil.copy(EXAMPLES / "load.s1p", tmp_path / "load.s1p")
-    code, out, _ = run(
+    code, out, _ = run_cli(
         "oscillator", str(EXAMPLES / "tunnel_diode.toml"), "--load", str(tmp_path / "load.s1p")
     )
     assert code == 0

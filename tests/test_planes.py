@@ -30,6 +30,8 @@ from oneport.planes import (
     termination_findings,
 )
 
+from helpers import gamma_of, one_port
+
 FREQUENCY_HZ = np.linspace(1e9, 5e9, 7)
 
 
@@ -296,13 +298,13 @@ def test_removing_a_known_line_restores_the_bare_devices_verdict():
     # textbook stability condition, from memory)
     device_ohm = 4.0 + s * 0.6e-9 + 1.0 / (-1.0 / 80.0 + s * 2e-12)
     load_ohm = 10.0 + s * 3e-9
-    bare = _one_port(frequency_hz, _reflection(device_ohm), "bare device")
-    load = _one_port(frequency_hz, _reflection(load_ohm), "load")
+    bare = one_port(frequency_hz, gamma_of(device_ohm), "bare device")
+    load = one_port(frequency_hz, gamma_of(load_ohm), "load")
     behind_line = _line_media(frequency_hz).line(20, "ps") ** _network(
         bare.gamma[None, None], 50.0, frequency_hz
     )  # source: scikit-rf media.line and `**`
     measured = behind_line.s[:, 0, 0]
-    restored = _one_port(frequency_hz, shift_plane(measured, frequency_hz, -20e-12), "restored")
+    restored = one_port(frequency_hz, shift_plane(measured, frequency_hz, -20e-12), "restored")
 
     expected = oneport.check(bare, load)
     got = oneport.check(restored, load)
@@ -317,20 +319,9 @@ def test_removing_a_known_line_restores_the_bare_devices_verdict():
         got.oscillation_frequencies_hz, expected.oscillation_frequencies_hz, rtol=1e-9
     )
     # and the line matters: left in, it moves the crossing by far more than the tolerance
-    unshifted = oneport.check(_one_port(frequency_hz, measured, "measured"), load)
+    unshifted = oneport.check(one_port(frequency_hz, measured, "measured"), load)
     moved = abs(unshifted.crossings[0].frequency_hz / expected.crossings[0].frequency_hz - 1)
     assert moved > 0.1
-
-
-def _reflection(impedance_ohm: np.ndarray) -> np.ndarray:
-    """Γ of an impedance array against 50 ohm."""
-    return (impedance_ohm - 50.0) / (impedance_ohm + 50.0)
-
-
-def _one_port(frequency_hz: np.ndarray, gamma: np.ndarray, source: str) -> oneport.OnePort:
-    return oneport.OnePort(
-        frequency_hz=frequency_hz, gamma=gamma, reference_impedance_ohm=50.0, source=source
-    )
 
 
 # --- fixtures --------------------------------------------------------------------------------

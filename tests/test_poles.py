@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import io
 import json
 from pathlib import Path
 
@@ -10,7 +9,6 @@ import numpy as np
 import pytest
 
 import oneport
-from oneport.cli import main
 from oneport.errors import InputError
 from oneport.poles import (
     NaturalFrequency,
@@ -21,13 +19,10 @@ from oneport.poles import (
 )
 from oneport.rational import fit_rational
 
-Z0 = 50.0
+from helpers import Z0, gamma_of, run_cli
+
 EXAMPLES = Path(__file__).resolve().parent.parent / "touchstone_examples"
 NOISE_45_DB = 10 ** (-45 / 20)  # complex standard deviation of the added noise, -45 dB re 1
-
-
-def gamma_of(impedance: np.ndarray) -> np.ndarray:
-    return (impedance - Z0) / (impedance + Z0)
 
 
 def with_noise(values: np.ndarray, seed: int, sigma: float = NOISE_45_DB) -> np.ndarray:
@@ -225,12 +220,6 @@ def test_bad_input_is_refused():
         identify_natural_frequencies(F_SERIES, np.ones(3))
     with pytest.raises(InputError, match="strictly increasing"):
         identify_natural_frequencies(F_SERIES[::-1], np.ones(F_SERIES.size))
-
-
-def run_cli(*arguments: str) -> tuple[int, str, str]:
-    out, err = io.StringIO(), io.StringIO()
-    code = main(list(arguments), stdout=out, stderr=err)
-    return code, out.getvalue(), err.getvalue()
 
 
 @pytest.mark.parametrize(

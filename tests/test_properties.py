@@ -20,53 +20,24 @@ import oneport
 from oneport import OnePort, nyquist
 from oneport.alignment import renormalise
 
-Z0 = 50.0
-S_UNIT = 1e9
-
-Impedance = tuple[np.poly1d, np.poly1d]
-
-
-# --- lumped impedances as (numerator, denominator) polynomials in s (SI units) -----------------
-
-
-def resistor(r: float) -> Impedance:
-    return np.poly1d([float(r)]), np.poly1d([1.0])
-
-
-def inductor(inductance: float) -> Impedance:
-    return np.poly1d([float(inductance), 0.0]), np.poly1d([1.0])
-
-
-def capacitor(capacitance: float) -> Impedance:
-    return np.poly1d([1.0]), np.poly1d([float(capacitance), 0.0])
-
-
-def series(*parts: Impedance) -> Impedance:
-    num, den = parts[0]
-    for n, d in parts[1:]:
-        num, den = num * d + n * den, den * d
-    return num, den
-
-
-def parallel(a: Impedance, b: Impedance) -> Impedance:
-    (na, da), (nb, db) = a, b
-    return na * nb, na * db + nb * da
-
-
-def roots(poly: np.poly1d) -> np.ndarray:
-    coefficients = poly.coeffs * S_UNIT ** np.arange(poly.order, -1, -1)
-    return np.roots(coefficients) * S_UNIT
-
-
-def gamma(z: Impedance, frequency_hz: np.ndarray, z0: float = Z0) -> np.ndarray:
-    s = 2j * np.pi * frequency_hz
-    n, d = z[0](s), z[1](s)
-    return (n - z0 * d) / (n + z0 * d)
-
-
-def log_uniform(low: float, high: float) -> st.SearchStrategy[float]:
-    return st.floats(np.log10(low), np.log10(high)).map(lambda e: float(10.0**e))
-
+from helpers import write_touchstone
+from lumped import (
+    Z0,
+    Impedance,
+    capacitor,
+    gamma,
+    inductor,
+    log_uniform,
+    natural_frequencies,
+    parallel,
+    port,
+    resistor,
+    roots,
+    series,
+    series_rl_loads,
+    tunnel_diodes,
+    wide_grid,
+)
 
 # --- strategies --------------------------------------------------------------------------------
 
@@ -105,25 +76,9 @@ def smooth_passive_trace(knots: tuple[list[float], list[float]], points: int) ->
     return np.interp(x, knot_x, magnitude) * np.exp(1j * np.interp(x, knot_x, phase))
 
 
-def tunnel_diode() -> st.SearchStrategy[Impedance]:
-    return st.builds(
-        lambda rs, ls, rd, cj: series(
-            resistor(rs), inductor(ls), parallel(resistor(-rd), capacitor(cj))
-        ),
-        log_uniform(0.5, 10.0),
-        log_uniform(0.05e-9, 3e-9),
-        log_uniform(60.0, 400.0),
-        log_uniform(0.2e-12, 10e-12),
-    )
-
-
 def lumped_load() -> st.SearchStrategy[Impedance]:
     return st.one_of(
-        st.builds(
-            lambda r, inductance: series(resistor(r), inductor(inductance)),
-            st.floats(0.0, 300.0),
-            log_uniform(0.1e-9, 20e-9),
-        ),
+        series_rl_loads(),
         st.builds(
             lambda r1, c1, r2, l2: parallel(
                 series(resistor(r1), capacitor(c1)), series(resistor(r2), inductor(l2))
@@ -139,19 +94,14 @@ def lumped_load() -> st.SearchStrategy[Impedance]:
 def lumped_grid(device: Impedance, load: Impedance, points: int) -> np.ndarray:
     """Log grid from 1e-3 of the slowest to 1e3 times the fastest pole or zero of Γd, ΓL, F."""
     (n_d, d_d), (n_l, d_l) = device, load
-    scales = np.abs(
-        np.concatenate(
-            [
-                roots(n_d * d_l + n_l * d_d),
-                roots(n_d + Z0 * d_d),
-                roots(n_d - Z0 * d_d),
-                roots(n_l + Z0 * d_l),
-                roots(n_l - Z0 * d_l),
-            ]
-        )
+    return wide_grid(
+        natural_frequencies(device, load),
+        roots(n_d + Z0 * d_d),
+        roots(n_d - Z0 * d_d),
+        roots(n_l + Z0 * d_l),
+        roots(n_l - Z0 * d_l),
+        points=points,
     )
-    scales = scales[scales > 0]
-    return np.geomspace(1e-3 * scales.min(), 1e3 * scales.max(), points) / (2 * np.pi)
 
 
 # --- passive pairs -----------------------------------------------------------------------------
@@ -198,7 +148,7 @@ def test_passive_smooth_traces_are_never_unstable(
 
 
 @settings(max_examples=60, deadline=None)
-@given(device=tunnel_diode(), load=lumped_load())
+@given(device=tunnel_diodes(), load=lumped_load())
 def test_finer_sampling_keeps_a_resolved_count(device: Impedance, load: Impedance) -> None:
     (n_d, d_d), (n_l, d_l) = device, load
     assume(np.all(roots(n_d + Z0 * d_d).real < 0))  # premise (numpy.roots)
@@ -211,8 +161,7 @@ def test_finer_sampling_keeps_a_resolved_count(device: Impedance, load: Impedanc
     for points in (1000, 2000, 4000):
         frequency_hz = lumped_grid(device, load, points)
         result = oneport.check(
-            OnePort(frequency_hz, gamma(device, frequency_hz), Z0, "device"),
-            OnePort(frequency_hz, gamma(load, frequency_hz), Z0, "load"),
+            port(device, frequency_hz, "device"), port(load, frequency_hz, "load")
         )
         counts.append(result.encirclements)
     resolved = [c for c in counts if c is not None]
@@ -225,19 +174,8 @@ def test_finer_sampling_keeps_a_resolved_count(device: Impedance, load: Impedanc
 # --- units and reference impedance -------------------------------------------------------------
 
 
-def write_s1p(path: Path, frequency_hz: np.ndarray, values: np.ndarray, unit: str) -> Path:
-    scale = {"Hz": 1.0, "GHz": 1e9}[unit]
-    lines = [f"# {unit} S RI R {Z0:g}"]
-    lines += [
-        f"{f / scale:.17g} {v.real:.17g} {v.imag:.17g}"
-        for f, v in zip(frequency_hz, values, strict=True)
-    ]
-    path.write_text("\n".join(lines) + "\n", encoding="ascii")
-    return path
-
-
 @settings(max_examples=25, deadline=None)
-@given(device=tunnel_diode(), load=lumped_load())
+@given(device=tunnel_diodes(), load=lumped_load())
 def test_hz_and_ghz_files_give_the_same_answer(device: Impedance, load: Impedance) -> None:
     frequency_hz = lumped_grid(device, load, 600)
     gamma_device, gamma_load = gamma(device, frequency_hz), gamma(load, frequency_hz)
@@ -245,8 +183,12 @@ def test_hz_and_ghz_files_give_the_same_answer(device: Impedance, load: Impedanc
     with tempfile.TemporaryDirectory() as folder:
         for unit in ("Hz", "GHz"):
             results[unit] = oneport.check(
-                write_s1p(Path(folder) / f"device_{unit}.s1p", frequency_hz, gamma_device, unit),
-                write_s1p(Path(folder) / f"load_{unit}.s1p", frequency_hz, gamma_load, unit),
+                write_touchstone(
+                    Path(folder) / f"device_{unit}.s1p", frequency_hz, gamma_device, unit=unit
+                ),
+                write_touchstone(
+                    Path(folder) / f"load_{unit}.s1p", frequency_hz, gamma_load, unit=unit
+                ),
             )
     hz, ghz = results["Hz"], results["GHz"]
     assert hz.verdict == ghz.verdict
@@ -259,7 +201,7 @@ def test_hz_and_ghz_files_give_the_same_answer(device: Impedance, load: Impedanc
 
 
 @settings(max_examples=60, deadline=None)
-@given(device=tunnel_diode(), load=lumped_load(), z0=log_uniform(5.0, 500.0))
+@given(device=tunnel_diodes(), load=lumped_load(), z0=log_uniform(5.0, 500.0))
 def test_load_referred_to_another_z0_gives_the_same_answer(
     device: Impedance, load: Impedance, z0: float
 ) -> None:

@@ -19,85 +19,26 @@ import oneport
 from oneport import OnePort, nyquist
 from oneport.alignment import renormalise
 
-Z0 = 50.0
-S_UNIT = 1e9  # numpy.roots works on s / S_UNIT so SI coefficients stay well scaled
-
-Impedance = tuple[np.poly1d, np.poly1d]
-
-
-# --- lumped impedances as (numerator, denominator) polynomials in s (SI units) -----------------
-
-
-def resistor(r: float) -> Impedance:
-    return np.poly1d([float(r)]), np.poly1d([1.0])
-
-
-def inductor(inductance: float) -> Impedance:
-    return np.poly1d([float(inductance), 0.0]), np.poly1d([1.0])
-
-
-def capacitor(capacitance: float) -> Impedance:
-    return np.poly1d([1.0]), np.poly1d([float(capacitance), 0.0])
-
-
-def series(*parts: Impedance) -> Impedance:
-    num, den = parts[0]
-    for n, d in parts[1:]:
-        num, den = num * d + n * den, den * d
-    return num, den
-
-
-def parallel(a: Impedance, b: Impedance) -> Impedance:
-    (na, da), (nb, db) = a, b
-    return na * nb, na * db + nb * da
-
-
-def tunnel_diode(rs: float, ls: float, rd: float, cj: float) -> Impedance:
-    """Rs + s·Ls + (−Rd ∥ Cj) (METHODS §7)."""
-    return series(resistor(rs), inductor(ls), parallel(resistor(-rd), capacitor(cj)))
-
-
-def roots(poly: np.poly1d) -> np.ndarray:
-    """numpy.roots of ``poly`` in s (rad/s), computed on s / S_UNIT for scaling."""
-    coefficients = poly.coeffs * S_UNIT ** np.arange(poly.order, -1, -1)
-    return np.roots(coefficients) * S_UNIT
-
-
-def natural_frequencies(device: Impedance, load: Impedance) -> np.ndarray:
-    """Roots of n_d·d_L + n_L·d_d: the closed circuit's natural frequencies (METHODS §1)."""
-    (n_d, d_d), (n_l, d_l) = device, load
-    return roots(n_d * d_l + n_l * d_d)
+from helpers import write_touchstone
+from lumped import (
+    Z0,
+    Impedance,
+    capacitor,
+    gamma,
+    inductor,
+    log_uniform,
+    natural_frequencies,
+    parallel,
+    port,
+    resistor,
+    series,
+    tunnel_diode,
+    wide_grid,
+)
 
 
 def rhp_count(values: np.ndarray) -> int:
     return int(np.sum(values.real > 0))
-
-
-def gamma(z: Impedance, frequency_hz: np.ndarray, z0: float = Z0) -> np.ndarray:
-    s = 2j * np.pi * frequency_hz
-    n, d = z[0](s), z[1](s)
-    return (n - z0 * d) / (n + z0 * d)
-
-
-def port(z: Impedance, frequency_hz: np.ndarray, name: str, z0: float = Z0) -> OnePort:
-    return OnePort(frequency_hz, gamma(z, frequency_hz, z0), z0, name)
-
-
-def wide_grid(*root_sets: np.ndarray, points: int = 3000) -> np.ndarray:
-    """Log grid from 1e-3 of the smallest to 1e3 times the largest |s| / 2π (Hz)."""
-    scales = np.abs(np.concatenate(root_sets))
-    scales = scales[scales > 0]
-    return np.geomspace(1e-3 * scales.min(), 1e3 * scales.max(), points) / (2 * np.pi)
-
-
-def write_s1p(path: Path, frequency_hz: np.ndarray, values: np.ndarray, z0: float) -> Path:
-    """A Touchstone 1.x one-port, ``# Hz S RI R z0``, full double precision."""
-    lines = [f"# Hz S RI R {z0:g}"]
-    lines += [
-        f"{f:.17g} {v.real:.17g} {v.imag:.17g}" for f, v in zip(frequency_hz, values, strict=True)
-    ]
-    path.write_text("\n".join(lines) + "\n", encoding="ascii")
-    return path
 
 
 # --- METHODS §7: the series loop --------------------------------------------------------------
@@ -179,7 +120,7 @@ def test_renormalisation_trap_load_file_at_150_ohm(tmp_path: Path) -> None:
     # Premise at the measurement impedance (50 Ω): no RHP root — numpy.roots
     assert rhp_count(natural_frequencies(TRAP_DEVICE, resistor(50.0))) == 0
     frequency_hz = trap_grid()
-    load_file = write_s1p(
+    load_file = write_touchstone(
         tmp_path / "load_150.s1p", frequency_hz, gamma(TRAP_LOAD, frequency_hz, 150.0), 150.0
     )
     result = oneport.check(port(TRAP_DEVICE, frequency_hz, "device at 50 ohm"), load_file)
@@ -325,10 +266,6 @@ def test_python_control_count(case: str) -> None:
     assert result.encirclements == python_control_count(device, load, frequency_hz)
     # and both against numpy.roots
     assert result.encirclements == rhp_count(natural)
-
-
-def log_uniform(low: float, high: float) -> st.SearchStrategy[float]:
-    return st.floats(np.log10(low), np.log10(high)).map(lambda e: float(10.0**e))
 
 
 @settings(max_examples=80, deadline=None)

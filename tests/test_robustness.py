@@ -9,7 +9,6 @@ here the whole path runs: reading, alignment, analysis, rendering.
 
 from __future__ import annotations
 
-import io
 import tempfile
 from pathlib import Path
 
@@ -17,7 +16,7 @@ import numpy as np
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from oneport.cli import main
+from helpers import LINE_MUTATIONS, mutate_lines, run_cli
 
 # CONVENTIONS.md exit codes: 0 stable, 2 bad input, 3 unstable, 4 inconclusive.
 ACCEPTED_EXIT_CODES = {0, 2, 3, 4}
@@ -59,38 +58,14 @@ def _diode_and_load_text() -> tuple[str, str]:
 
 DEVICE_TEXT, LOAD_TEXT = _diode_and_load_text()
 GARBLE_ALPHABET = "0123456789.-+eE  \t!#[]RrSsZzYyMmAaDdBbHhGgKk,;_xXnNiIfF\x7f\u00b5\u0661"
-OPERATIONS = ("drop", "duplicate", "truncate", "garble", "swap", "insert", "bytes")
+OPERATIONS = (*LINE_MUTATIONS, "bytes")
 
 
 @st.composite
 def mutated(draw: st.DrawFn, text: str) -> bytes:
     """``text`` with one to five line- or byte-level mutations, as the bytes of a file."""
-    lines = text.splitlines()
-    inserted: list[tuple[int, bytes]] = []
-    for _ in range(draw(st.integers(1, 5))):
-        if not lines:
-            lines.append(draw(st.text(GARBLE_ALPHABET, max_size=20)))
-            continue
-        index = draw(st.integers(0, len(lines) - 1))
-        operation = draw(st.sampled_from(OPERATIONS))
-        line = lines[index]
-        if operation == "drop":
-            del lines[index]
-        elif operation == "duplicate":
-            lines.insert(index, line)
-        elif operation == "truncate":
-            lines[index] = line[: draw(st.integers(0, len(line)))]
-        elif operation == "garble":
-            position = draw(st.integers(0, len(line)))
-            replacement = draw(st.text(GARBLE_ALPHABET, min_size=1, max_size=3))
-            lines[index] = line[:position] + replacement + line[position + 1 :]
-        elif operation == "swap":
-            other = draw(st.integers(0, len(lines) - 1))
-            lines[index], lines[other] = lines[other], lines[index]
-        elif operation == "insert":
-            lines.insert(index, draw(st.text(GARBLE_ALPHABET, max_size=30)))
-        else:
-            inserted.append((draw(st.integers(0, 10_000)), draw(st.binary(min_size=1, max_size=4))))
+    mutations = draw(st.integers(1, 5))
+    lines, inserted = mutate_lines(draw, text.splitlines(), mutations, GARBLE_ALPHABET, OPERATIONS)
     ending = draw(st.sampled_from(["\n", "\r\n"]))
     data = (ending.join(lines) + ending).encode("utf-8")
     for position, raw in inserted:
@@ -115,9 +90,7 @@ def _run_check(device: bytes, load: bytes, as_json: bool) -> tuple[int, str, str
         device_path.write_bytes(device)
         load_path.write_bytes(load)
         argv = ["check", str(device_path), "--load", str(load_path)]
-        out, err = io.StringIO(), io.StringIO()
-        code = main([*argv, "--json"] if as_json else argv, stdout=out, stderr=err)
-    return int(code), out.getvalue(), err.getvalue()
+        return run_cli(*argv, "--json") if as_json else run_cli(*argv)
 
 
 def test_the_unmutated_pair_gives_a_verdict():

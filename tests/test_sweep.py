@@ -3,7 +3,6 @@ the Dask path, and the command line."""
 
 from __future__ import annotations
 
-import io
 import json
 
 import numpy as np
@@ -11,12 +10,12 @@ import pytest
 
 import oneport
 from oneport.circuit import read_circuit
-from oneport.cli import main
 from oneport.sweep import grid_plan, monte_carlo_plan, run_sweep
 from oneport.sweep.sources import LoopSource, Side
 from oneport.variants import STABLE, VERDICT_CODES
 
-Z0 = 50.0
+from helpers import Z0, run_cli
+
 RS, LS, RD, CJ = 4.0, 0.6e-9, 80.0, 2e-12  # invented tunnel-diode-like device
 FREQUENCY_HZ = np.linspace(1e6, 8e9, 1601)
 LOAD_NETLIST = """* series R-L load (invented)
@@ -174,25 +173,20 @@ def test_command_line_writes_table_and_summary(tmp_path):
     load = tmp_path / "load.cir"
     load.write_text(LOAD_NETLIST)
     table = tmp_path / "table.parquet"
-    out, err = io.StringIO(), io.StringIO()
-    code = main(
-        [
-            "sweep",
-            str(device),
-            "--load",
-            str(load),
-            "--vary",
-            "R=1:100:9",
-            "--vary",
-            "Lt=1n:8n:5",
-            "-o",
-            str(table),
-            "--json",
-        ],
-        stdout=out,
-        stderr=err,
+    code, out, _ = run_cli(
+        "sweep",
+        device,
+        "--load",
+        load,
+        "--vary",
+        "R=1:100:9",
+        "--vary",
+        "Lt=1n:8n:5",
+        "-o",
+        table,
+        "--json",
     )
-    summary = json.loads(out.getvalue())
+    summary = json.loads(out)
     assert code == 3  # some variants unstable (CONVENTIONS exit code 3)
     assert summary["schema"] == "oneport.sweep/1"
     assert summary["variants"] == 45 and summary["completed"] == 45
@@ -204,19 +198,9 @@ def test_command_line_writes_table_and_summary(tmp_path):
 def test_command_line_refuses_unknown_parameters(tmp_path):
     load = tmp_path / "load.cir"
     load.write_text(LOAD_NETLIST)
-    out, err = io.StringIO(), io.StringIO()
-    code = main(
-        [
-            "sweep",
-            "touchstone_examples/stable/device.s1p",
-            "--load",
-            str(load),
-            "--vary",
-            "Q=1:2:3",
-        ],
-        stdout=out,
-        stderr=err,
+    code, _, err = run_cli(
+        "sweep", "touchstone_examples/stable/device.s1p", "--load", load, "--vary", "Q=1:2:3"
     )
     assert code == 2
-    assert len(err.getvalue().strip().splitlines()) == 1
-    assert "Q" in err.getvalue() and "Traceback" not in err.getvalue()
+    assert len(err.strip().splitlines()) == 1
+    assert "Q" in err and "Traceback" not in err

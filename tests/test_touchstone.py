@@ -23,6 +23,8 @@ from hypothesis import strategies as st
 from oneport import FileFormatError, OnePort, read_one_port
 from oneport.alignment import renormalise
 
+from helpers import mutate_lines
+
 REFERENCE_FOLDER = Path(__file__).resolve().parents[2] / "shared" / "touchstone-reference"
 SPEC_EXAMPLES = REFERENCE_FOLDER / "spec-examples"
 
@@ -569,30 +571,7 @@ GARBLE_ALPHABET = "0123456789.-+eE  \t!#[]RrSsZzYyMmAaDdBbHhGgKk,;_xXnNiIfF\x00\
 def mutated_file(draw):
     lines = draw(st.sampled_from([VALID_1_X, VALID_2_0])).splitlines()
     suffix = draw(st.sampled_from([".s1p", ".ts", ".s2p", ".txt"]))
-    for _ in range(draw(st.integers(1, 6))):
-        if not lines:
-            lines.append(draw(st.text(GARBLE_ALPHABET, max_size=20)))
-            continue
-        index = draw(st.integers(0, len(lines) - 1))
-        operation = draw(
-            st.sampled_from(["drop", "duplicate", "truncate", "garble", "swap", "insert"])
-        )
-        line = lines[index]
-        if operation == "drop":
-            del lines[index]
-        elif operation == "duplicate":
-            lines.insert(index, line)
-        elif operation == "truncate":
-            lines[index] = line[: draw(st.integers(0, len(line)))]
-        elif operation == "garble":
-            position = draw(st.integers(0, len(line)))
-            replacement = draw(st.text(GARBLE_ALPHABET, min_size=1, max_size=3))
-            lines[index] = line[:position] + replacement + line[position + 1 :]
-        elif operation == "swap":
-            other = draw(st.integers(0, len(lines) - 1))
-            lines[index], lines[other] = lines[other], lines[index]
-        else:
-            lines.insert(index, draw(st.text(GARBLE_ALPHABET, max_size=30)))
+    lines, _ = mutate_lines(draw, lines, draw(st.integers(1, 6)), GARBLE_ALPHABET)
     ending = draw(st.sampled_from(["\n", "\r\n"]))
     return suffix, ending.join(lines) + ending
 

@@ -8,11 +8,7 @@ import pytest
 import oneport
 from oneport.variants import VERDICT_CODES, analyse_variants
 
-Z0 = 50.0
-
-
-def _gamma(impedance: np.ndarray) -> np.ndarray:
-    return (impedance - Z0) / (impedance + Z0)
+from helpers import Z0, gamma_of
 
 
 def _device(s: np.ndarray) -> np.ndarray:
@@ -32,7 +28,7 @@ def family() -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     # Some loads have a 10 pF DC block in series; the others none (elastance 0).
     elastance = np.where(rng.random(count) < 0.3, 1 / 10e-12, 0.0)[:, None]
     loads = resistance + s * inductance + elastance / s
-    return frequency_hz, _gamma(_device(s)), _gamma(loads)
+    return frequency_hz, gamma_of(_device(s)), gamma_of(loads)
 
 
 def test_every_variant_matches_a_single_check(family):

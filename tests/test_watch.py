@@ -10,9 +10,10 @@ from pathlib import Path
 
 import pytest
 
-from oneport import cli
 from oneport.commands.watch import watch_folder
 from oneport.watch import FolderWatcher, check_file, run_watch
+
+from helpers import run_cli
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "touchstone_examples"
 DEVICE = EXAMPLES / "stable/device.s1p"
@@ -160,10 +161,10 @@ def test_reports_are_written_per_file(tmp_path):
 )
 def test_command_line_errors_are_one_line(tmp_path, monkeypatch, arguments, message):
     monkeypatch.chdir(tmp_path)
-    out, err = io.StringIO(), io.StringIO()
-    assert cli.main(["watch", *arguments], stdout=out, stderr=err) == 2
-    assert message in err.getvalue()
-    assert err.getvalue().count("\n") == 1
+    code, _, err = run_cli("watch", *arguments)
+    assert code == 2
+    assert message in err
+    assert err.count("\n") == 1
 
 
 def test_ctrl_c_stops_with_exit_code_130(tmp_path, monkeypatch):
@@ -171,7 +172,6 @@ def test_ctrl_c_stops_with_exit_code_130(tmp_path, monkeypatch):
         raise KeyboardInterrupt
 
     monkeypatch.setattr(FolderWatcher, "poll", interrupted)
-    out, err = io.StringIO(), io.StringIO()
-    code = cli.main(["watch", str(tmp_path), "--load", str(LOAD)], stdout=out, stderr=err)
+    code, _, err = run_cli("watch", tmp_path, "--load", LOAD)
     assert code == 130  # shared/CONVENTIONS.md: 130 interrupted
-    assert err.getvalue() == "oneport: interrupted\n"
+    assert err == "oneport: interrupted\n"
