@@ -58,35 +58,42 @@ def impedance(gamma: np.ndarray, reference_impedance_ohm: float) -> np.ndarray:
         return reference_impedance_ohm * (1.0 + gamma) / (1.0 - gamma)
 
 
-def foster_jumps(gamma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Sample intervals where Foster's theorem says a resonance lies between the samples.
+def foster_jump_indices(gamma: np.ndarray) -> tuple[tuple[np.ndarray, ...], np.ndarray]:
+    """Where Foster's theorem says a resonance lies between two samples, as sparse indices.
 
-    Returns two boolean arrays of shape (..., n − 1): ``parallel`` (Im Z/Z0 falls from above
-    +``FOSTER_JUMP_THRESHOLD`` to below −threshold: a pole of Z) and ``series`` (the same on
-    Im Y·Z0: a zero of Z). Both samples must also look reactive (|X| ≥
-    ``FOSTER_REACTIVE_RATIO``·R, or |B| ≥ ratio·G): a lossy resonance resolved by the grid
-    lets the reactance fall through zero within a step, which is no sign of a hidden one.
-    Real arithmetic only (Z/Z0 = (1 + Γ)/(1 − Γ) written out), so sweeps can test every variant.
+    ``gamma`` has shape (..., n). Returns the index arrays of the intervals (as from
+    ``numpy.nonzero`` on shape (..., n − 1)) and, for each, True for a parallel resonance (Im Z
+    falls from above +``FOSTER_JUMP_THRESHOLD``·Z0 to below −threshold: a pole of Z) or False
+    for a series one (the same on Im Y·Z0: a zero of Z). Both samples must also look reactive
+    (|X| ≥ ``FOSTER_REACTIVE_RATIO``·R, or |B| ≥ ratio·G): a lossy resonance resolved by the
+    grid lets the reactance fall through zero within a step, which is no sign of a hidden one.
+
+    Im Z and Im Y change sign only where Im Γ does, so the candidates come from the sign of
+    Im Γ alone and the immittances are computed at those few intervals only (real arithmetic,
+    Z/Z0 = (1 + Γ)/(1 − Γ) written out): cheap enough for every variant of a sweep.
     """
     gamma = np.asarray(gamma, dtype=complex)
+    imaginary = gamma.imag
+    positive, negative = imaginary > 0, imaginary < 0
+    # Im Z has the sign of Im Γ, Im Y the opposite sign.
+    parallel = positive[..., :-1] & negative[..., 1:]
+    series = negative[..., :-1] & positive[..., 1:]
+    index = np.nonzero(parallel | series)
+    kind = parallel[index]
+    before = gamma[index]
+    after = gamma[(*index[:-1], index[-1] + 1)]
+    keep = _reactive_jump(before, kind) & _reactive_jump(after, kind)
+    return tuple(i[keep] for i in index), kind[keep]
+
+
+def _reactive_jump(gamma: np.ndarray, parallel: np.ndarray) -> np.ndarray:
+    """At a candidate sample: |Im| beyond the threshold and reactive enough (see above)."""
     magnitude = gamma.real**2 + gamma.imag**2
+    distance = np.where(parallel, (1.0 - gamma.real) ** 2, (1.0 + gamma.real) ** 2) + gamma.imag**2
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        open_distance = (1.0 - gamma.real) ** 2 + gamma.imag**2
-        short_distance = (1.0 + gamma.real) ** 2 + gamma.imag**2
-        reactance = 2.0 * gamma.imag / open_distance
-        resistance = (1.0 - magnitude) / open_distance
-        susceptance = -2.0 * gamma.imag / short_distance
-        conductance = (1.0 - magnitude) / short_distance
-        found = []
-        for imaginary, real in ((reactance, resistance), (susceptance, conductance)):
-            reactive = np.abs(imaginary) >= FOSTER_REACTIVE_RATIO * np.abs(real)
-            found.append(
-                (imaginary[..., :-1] > FOSTER_JUMP_THRESHOLD)
-                & (imaginary[..., 1:] < -FOSTER_JUMP_THRESHOLD)
-                & reactive[..., :-1]
-                & reactive[..., 1:]
-            )
-    return found[0], found[1]
+        imaginary = np.abs(2.0 * gamma.imag / distance)
+        real = np.abs((1.0 - magnitude) / distance)
+    return (imaginary > FOSTER_JUMP_THRESHOLD) & (imaginary >= FOSTER_REACTIVE_RATIO * real)
 
 
 def foster_violations(
@@ -113,15 +120,16 @@ def foster_violations(
     >>> [(r.kind, r.start_hz, r.stop_hz) for r in foster_violations(f, gamma, 50.0, "tank")]
     [('parallel', 5000000000.0, 6000000000.0)]
     """
-    found = []
-    for kind, jumps in zip(("parallel", "series"), foster_jumps(gamma), strict=True):
-        for index in np.flatnonzero(jumps):
-            found.append(
-                HiddenResonance(
-                    source, kind, float(frequency_hz[index]), float(frequency_hz[index + 1])
-                )
-            )
-    return sorted(found, key=lambda r: r.start_hz)
+    (index,), parallel = foster_jump_indices(gamma)
+    return [
+        HiddenResonance(
+            source,
+            "parallel" if is_parallel else "series",
+            float(frequency_hz[i]),
+            float(frequency_hz[i + 1]),
+        )
+        for i, is_parallel in zip(index.tolist(), parallel.tolist(), strict=True)
+    ]
 
 
 def grid_resolution(frequency_hz: np.ndarray, source: str) -> GridResolution:

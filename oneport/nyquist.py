@@ -95,15 +95,17 @@ def characteristic(loop_gain: np.ndarray) -> np.ndarray:
     return 1.0 - np.asarray(loop_gain, dtype=complex)
 
 
-def phase_steps(loop_gain: np.ndarray) -> np.ndarray:
+def phase_steps(
+    loop_gain: np.ndarray, characteristic_values: np.ndarray | None = None
+) -> np.ndarray:
     """Change of arg F between neighbouring samples, each taken in (−π, π] (last axis), rad.
 
     These are the steps ``numpy.unwrap`` takes (the same rule, ties at ±π included); their sum
     is the in-band phase change and their largest magnitude the sampling check, so neither
     needs the unwrapped phase itself.
     """
-    angle = np.angle(characteristic(loop_gain))
-    raw = np.diff(angle, axis=-1)
+    f = characteristic(loop_gain) if characteristic_values is None else characteristic_values
+    raw = np.diff(np.angle(f), axis=-1)
     # Differences of principal angles lie in (−2π, 2π); beyond ±π the short way round is the
     # other one. Exactly ±π stays, as numpy.unwrap leaves it.
     return np.where(raw > np.pi, raw - 2.0 * np.pi, np.where(raw < -np.pi, raw + 2.0 * np.pi, raw))
@@ -150,11 +152,12 @@ def count_encirclements(
     >>> int(count_encirclements(L, np.array(1), np.array(1)))
     0
     """
-    f = characteristic(loop_gain)
+    loop_gain = np.asarray(loop_gain, dtype=complex)
     steps = phase_steps(loop_gain) if steps is None else steps
     in_band = np.sum(steps, axis=-1)
-    low = np.angle(f[..., 0]) - _reference_angle(sign_low, f[..., 0].imag)
-    high = _reference_angle(sign_high, f[..., -1].imag) - np.angle(f[..., -1])
+    first, last = 1.0 - loop_gain[..., 0], 1.0 - loop_gain[..., -1]
+    low = np.angle(first) - _reference_angle(sign_low, first.imag)
+    high = _reference_angle(sign_high, last.imag) - np.angle(last)
     return np.rint(-(in_band + low + high) / np.pi).astype(int)
 
 

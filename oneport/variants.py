@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import nyquist
-from .diagnostics import foster_jumps
+from .diagnostics import foster_jump_indices
 
 #: Verdict codes in the per-variant arrays.
 VERDICT_CODES = ("stable", "unstable", "inconclusive")
@@ -77,12 +77,15 @@ def analyse_variants(
     if dc_sign is not None:
         low_code = np.full(low_code.shape, -1)  # the DC facts: founded, outside CLOSURE_BASES
         low_sign = np.full(low_sign.shape, dc_sign)
-    step = nyquist.largest_phase_step(loop_gain)
+    characteristic = 1.0 - loop_gain
+    steps = nyquist.phase_steps(loop_gain, characteristic)
+    step = nyquist.largest_phase_step(loop_gain, steps)
     known = (low_code != 0) & high.founded & (step <= nyquist.UNSAFE_PHASE_STEP_RAD)
     count = nyquist.count_encirclements(
         loop_gain,
         np.where(low_sign == 0, 1, low_sign),
         np.where(high.sign_at_limit == 0, 1, high.sign_at_limit),
+        steps,
     )
     hidden = _hidden_resonance_at_stake(gamma_device, gamma_load, loop_gain.shape)
     verdict = np.where(
@@ -93,7 +96,7 @@ def analyse_variants(
     verdict = np.where(hidden & (verdict != INCONCLUSIVE), INCONCLUSIVE, verdict)
     frequency, modes = _carrying_crossings(frequency_hz, loop_gain)
     unstable = known & (count > 0)
-    distance = np.abs(1.0 - loop_gain)
+    distance = np.abs(characteristic)
     closest = np.argmin(distance, axis=-1)
     magnitude = np.abs(loop_gain)
     loudest = np.argmax(magnitude, axis=-1)
@@ -160,13 +163,17 @@ def _carrying_crossings(
 def _hidden_resonance_at_stake(
     gamma_device: np.ndarray, gamma_load: np.ndarray, shape: tuple[int, ...]
 ) -> np.ndarray:
-    """Foster's test on the load (on the common grid), where the device has |Γd| ≥ 1 nearby."""
-    parallel, series = foster_jumps(np.broadcast_to(gamma_load, shape))
-    jumps = parallel | series
-    gamma_device = np.broadcast_to(gamma_device, shape)
-    gain = np.abs(gamma_device) >= 1.0
-    # The single check looks at |Γd| in the interval and one sample either side.
-    near = gain[..., :-1] | gain[..., 1:]
-    near[..., 1:] |= gain[..., :-2]
-    near[..., :-1] |= gain[..., 2:]
-    return np.any(jumps & near, axis=-1)
+    """Foster's test on the load (on the common grid), where the device has |Γd| ≥ 1 nearby.
+
+    The single check looks at |Γd| in the interval and one sample either side.
+    """
+    flat_shape = (int(np.prod(shape[:-1], dtype=int)), shape[-1])
+    load = np.broadcast_to(gamma_load, shape).reshape(flat_shape)
+    device = np.broadcast_to(gamma_device, shape).reshape(flat_shape)
+    (rows, columns), _ = foster_jump_indices(load)
+    at_stake = np.zeros(flat_shape[0], dtype=bool)
+    last = flat_shape[1] - 1
+    for offset in (-1, 0, 1, 2):
+        nearby = np.clip(columns + offset, 0, last)
+        at_stake[rows[np.abs(device[rows, nearby]) >= 1.0]] = True
+    return at_stake.reshape(shape[:-1])

@@ -26,10 +26,10 @@ from .topology import Plan
 
 #: Memory for the equations of one chunk; temporaries add about as much again.
 MATRIX_BUDGET_BYTES = 2 * 2**20
-#: Points per chunk at most on the closed-form path: its temporaries then stay below the C
-#: library's threshold for mapping fresh pages (128 KiB) and reuse memory instead of faulting
-#: it in. (Elimination reuses its buffers and prefers larger chunks.)
-CHUNK_POINTS = 4096
+#: Points per chunk at most on the closed-form path: 512 KiB per complex temporary, large
+#: enough that per-chunk overhead vanishes and small enough to stay in cache (measured fastest
+#: of 4,096 to 2,097,152 here; benchmarks/README.md). Elimination reuses its buffers.
+CHUNK_POINTS = 32768
 
 ElementValues = Mapping[str, Mapping[str, Any]]
 
