@@ -63,9 +63,10 @@ def closed_form_load(frequency_hz: np.ndarray, p: dict[str, np.ndarray]) -> np.n
     return (z - Z0) / (z + Z0)
 
 
-def numpy_floor(frequency_hz: np.ndarray, plan, chunk: int) -> float:
+def numpy_floor(frequency_hz: np.ndarray, plan, chunk: int | None) -> float:
     """Closed-form load, loop gain, unwrapped phase and count, chunked: seconds."""
     gamma_device = device_gamma(frequency_hz)
+    chunk = chunk or max(1, 1_000_000 // frequency_hz.size)
     start = time.perf_counter()
     for first in range(0, plan.variants, chunk):
         values = plan.chunk(first, first + chunk)
@@ -130,15 +131,20 @@ def main() -> None:
         circuit = read_circuit(path)
     tolerances = [(name, 0.2) for name in NOMINAL]
     plan = monte_carlo_plan(tolerances, NOMINAL, variants, seed=1)
-    chunk = 1000
+    chunk = None  # the runner's default (about 1e6 samples per chunk)
 
-    seconds, result = sweep_seconds(frequency_hz, plan, circuit, chunk_size=chunk)
+    warm_up = monte_carlo_plan(tolerances, NOMINAL, 50, seed=3)
+    sweep_seconds(frequency_hz, warm_up, circuit)  # plans the circuit, touches the code paths
+    seconds, result = min(
+        (sweep_seconds(frequency_hz, plan, circuit, chunk_size=chunk) for _ in range(2)),
+        key=lambda pair: pair[0],
+    )
     floor = numpy_floor(frequency_hz, plan, chunk)
     loop_count = 20 if arguments.quick else 100
     loop = scikit_rf_loop(frequency_hz, plan, loop_count) * variants / loop_count
     stable = float(np.mean(result.table["verdict_code"] == 0))
     print(f"variants {variants} x {frequency_hz.size} points; {stable:.1%} stable")
-    print(f"sweep                      {seconds:8.2f} s")
+    print(f"sweep (best of 2)           {seconds:8.2f} s")
     print(f"numpy floor                {floor:8.2f} s   sweep / floor = {seconds / floor:5.2f}")
     print(f"scikit-rf loop             {loop:8.1f} s   loop / sweep = {loop / seconds:6.1f}")
     print(f"  (timed on {loop_count} variants, scaled linearly)")
@@ -154,10 +160,33 @@ def main() -> None:
         t, _ = sweep_seconds(grid, sub, circuit, chunk_size=chunk)
         print(f"  {points:7d} points    {t:7.2f} s  {t / points * 1e3:7.3f} ms/point")
     if not arguments.no_dask:
+        from distributed import LocalCluster
+
         single, _ = sweep_seconds(frequency_hz, plan, circuit, chunk_size=chunk)
-        double, _ = sweep_seconds(frequency_hz, plan, circuit, chunk_size=chunk, workers=2)
-        print(f"in-process, one worker     {single:8.2f} s")
-        print(f"local Dask, 2 workers      {double:8.2f} s   speed-up {single / double:4.2f}x")
+        print(f"in-process                 {single:8.2f} s")
+        timings = {}
+        for workers in (1, 2):
+            # The cluster starts outside the timer: its start-up is paid once per session.
+            with LocalCluster(
+                n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None
+            ) as cluster:
+                # Each worker imports the package and plans the circuit on its first chunk.
+                sweep_seconds(
+                    frequency_hz,
+                    warm_up,
+                    circuit,
+                    chunk_size=5,
+                    scheduler=cluster.scheduler_address,
+                )
+                timings[workers], _ = sweep_seconds(
+                    frequency_hz,
+                    plan,
+                    circuit,
+                    chunk_size=chunk,
+                    scheduler=cluster.scheduler_address,
+                )
+            print(f"Dask, {workers} worker(s)         {timings[workers]:8.2f} s")
+        print(f"speed-up from 1 to 2 Dask workers: {timings[1] / timings[2]:4.2f}x")
 
 
 if __name__ == "__main__":

@@ -105,10 +105,12 @@ def phase_steps(
     needs the unwrapped phase itself.
     """
     f = characteristic(loop_gain) if characteristic_values is None else characteristic_values
-    raw = np.diff(np.angle(f), axis=-1)
+    steps = np.diff(np.angle(f), axis=-1)
     # Differences of principal angles lie in (−2π, 2π); beyond ±π the short way round is the
-    # other one. Exactly ±π stays, as numpy.unwrap leaves it.
-    return np.where(raw > np.pi, raw - 2.0 * np.pi, np.where(raw < -np.pi, raw + 2.0 * np.pi, raw))
+    # other one. Exactly ±π stays, as numpy.unwrap leaves it. (In place: few samples change.)
+    steps[steps > np.pi] -= 2.0 * np.pi
+    steps[steps < -np.pi] += 2.0 * np.pi
+    return steps
 
 
 def unwrapped_phase(loop_gain: np.ndarray) -> np.ndarray:
