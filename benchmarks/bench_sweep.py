@@ -139,14 +139,24 @@ def main() -> None:
         (sweep_seconds(frequency_hz, plan, circuit, chunk_size=chunk) for _ in range(2)),
         key=lambda pair: pair[0],
     )
+    one_thread = min(
+        sweep_seconds(frequency_hz, plan, circuit, chunk_size=chunk, threads=1)[0] for _ in range(2)
+    )
     floor = numpy_floor(frequency_hz, plan, chunk)
     loop_count = 20 if arguments.quick else 100
     loop = scikit_rf_loop(frequency_hz, plan, loop_count) * variants / loop_count
     stable = float(np.mean(result.table["verdict_code"] == 0))
     print(f"variants {variants} x {frequency_hz.size} points; {stable:.1%} stable")
-    print(f"sweep (best of 2)           {seconds:8.2f} s")
-    print(f"numpy floor                {floor:8.2f} s   sweep / floor = {seconds / floor:5.2f}")
-    print(f"scikit-rf loop             {loop:8.1f} s   loop / sweep = {loop / seconds:6.1f}")
+    print(f"sweep, one thread per core {seconds:8.2f} s   (best of 2)")
+    print(f"sweep, one thread          {one_thread:8.2f} s   (best of 2)")
+    print(
+        f"numpy floor (one thread)   {floor:8.2f} s   sweep / floor = {seconds / floor:5.2f}"
+        f" (one thread: {one_thread / floor:.2f})"
+    )
+    print(
+        f"scikit-rf loop             {loop:8.1f} s   loop / sweep = {loop / seconds:6.1f}"
+        f" (one thread: {loop / one_thread:.1f})"
+    )
     print(f"  (timed on {loop_count} variants, scaled linearly)")
     print("growth with variants (2,001 points):")
     for count in (variants // 4, variants // 2, variants):
@@ -162,8 +172,7 @@ def main() -> None:
     if not arguments.no_dask:
         from distributed import LocalCluster
 
-        single, _ = sweep_seconds(frequency_hz, plan, circuit, chunk_size=chunk)
-        print(f"in-process                 {single:8.2f} s")
+        print(f"in-process, one thread     {one_thread:8.2f} s")
         timings = {}
         for workers in (1, 2):
             # The cluster starts outside the timer: its start-up is paid once per session.

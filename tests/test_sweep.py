@@ -127,11 +127,19 @@ def test_interrupted_sweep_keeps_the_finished_chunks(load_circuit):
         return source(values)
 
     plan = grid_plan([("R", 1.0, 100.0, 50)])
-    result = run_sweep(plan, interrupting, FREQUENCY_HZ, Z0, chunk_size=10)
+    result = run_sweep(plan, interrupting, FREQUENCY_HZ, Z0, chunk_size=10, threads=1)
     assert result.interrupted
     assert result.completed == 20
     assert result.table["R"].size == 20
     np.testing.assert_array_equal(result.table["R"], plan.values["R"][:20])
+
+
+def test_threads_give_the_sequential_result(load_circuit):
+    plan = monte_carlo_plan([("R", 0.9), ("Lt", 0.5)], {"R": 30.0, "Lt": 3e-9}, 200, seed=4)
+    sequential = run_sweep(plan, _source(load_circuit), FREQUENCY_HZ, Z0, chunk_size=16, threads=1)
+    threaded = run_sweep(plan, _source(load_circuit), FREQUENCY_HZ, Z0, chunk_size=16, threads=3)
+    for name, column in sequential.table.items():
+        np.testing.assert_array_equal(threaded.table[name], column)
 
 
 def test_dask_cluster_gives_the_local_result(load_circuit):

@@ -92,7 +92,10 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     )
     run_group.add_argument("--workers", type=int, help="start a local Dask cluster with N workers")
     run_group.add_argument(
-        "--chunk-size", type=int, help="variants per chunk (default: about 2e6 samples)"
+        "--threads", type=int, help="threads in this process (default: one per core)"
+    )
+    run_group.add_argument(
+        "--chunk-size", type=int, help="variants per chunk (default: about 1e6 samples)"
     )
     command.add_argument("--traceback", action="store_true", help="show tracebacks (debugging)")
     return command
@@ -118,6 +121,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
             chunk_size=arguments.chunk_size,
             scheduler=arguments.scheduler,
             workers=arguments.workers,
+            threads=arguments.threads,
             progress=progress,
         )
     finally:

@@ -10,7 +10,10 @@ finished, which stay valid.
 
 from __future__ import annotations
 
+import itertools
+import os
 from collections.abc import Callable, Iterator
+from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -91,19 +94,29 @@ def run_sweep(
     chunk_size: int | None = None,
     scheduler: str | None = None,
     workers: int | None = None,
+    threads: int | None = None,
     progress: Callable[[int], Any] | None = None,
 ) -> SweepResult:
     """Run every chunk of ``plan``; ``progress(n)`` is called with each finished chunk's size.
 
     ``scheduler`` (``tcp://host:port``) sends chunks to a running Dask cluster; ``workers``
-    > 1 starts a local one. Without either, chunks run here, one after another.
+    > 1 starts a local one. Without either, chunks run here on ``threads`` threads (default:
+    one per core). Every chunk is computed alone, so the table is the same in every case.
     """
     bounds = chunk_bounds(plan.variants, frequency_hz.size, chunk_size)
     finished: dict[int, dict[str, np.ndarray]] = {}
     interrupted = False
     try:
         for index, columns in _execute(
-            plan, source, frequency_hz, reference_impedance_ohm, dc_sign, bounds, scheduler, workers
+            plan,
+            source,
+            frequency_hz,
+            reference_impedance_ohm,
+            dc_sign,
+            bounds,
+            scheduler,
+            workers,
+            threads,
         ):
             finished[index] = columns
             if progress is not None:
@@ -131,13 +144,46 @@ def _execute(
     bounds: list[tuple[int, int]],
     scheduler: str | None,
     workers: int | None,
+    threads: int | None,
 ) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
     arguments = (frequency_hz, reference_impedance_ohm, dc_sign)
     if scheduler is None and (workers is None or workers <= 1):
+        yield from _execute_here(plan, source, arguments, bounds, threads)
+        return
+    yield from _execute_on_dask(plan, source, arguments, bounds, scheduler, workers)
+
+
+def _execute_here(
+    plan: SweepPlan,
+    source: VariantSource,
+    arguments: tuple[Any, ...],
+    bounds: list[tuple[int, int]],
+    threads: int | None,
+) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
+    """Chunks in this process: on ``threads`` threads (numpy releases the GIL in its loops),
+    with at most two chunks per thread in flight so memory stays bounded."""
+    count = max(1, threads if threads is not None else (os.cpu_count() or 1))
+    if count == 1 or len(bounds) == 1:
         for index, (start, stop) in enumerate(bounds):
             yield index, run_chunk(source, plan.chunk(start, stop), *arguments)
         return
-    yield from _execute_on_dask(plan, source, arguments, bounds, scheduler, workers)
+    with ThreadPoolExecutor(max_workers=count) as pool:
+        pending: dict[Future[dict[str, np.ndarray]], int] = {}
+        upcoming = iter(enumerate(bounds))
+        try:
+            for index, (start, stop) in itertools.islice(upcoming, 2 * count):
+                pending[pool.submit(run_chunk, source, plan.chunk(start, stop), *arguments)] = index
+            while pending:
+                done, _ = wait(pending, return_when=FIRST_COMPLETED)
+                for future in done:
+                    index = pending.pop(future)
+                    yield index, future.result()
+                    for next_index, (start, stop) in itertools.islice(upcoming, 1):
+                        chunk = plan.chunk(start, stop)
+                        pending[pool.submit(run_chunk, source, chunk, *arguments)] = next_index
+        finally:
+            for future in pending:
+                future.cancel()
 
 
 def _execute_on_dask(
