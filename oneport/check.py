@@ -59,6 +59,9 @@ class CheckOptions:
         terminated in the analysis impedance): the count becomes Z = N + P.
     premise_notes : tuple of str
         What was checked of the premise, for the result's premise text.
+    load_poles_known : bool
+        True when the load is a netlist whose own natural frequencies were counted, so an
+        active load does not leave its poles unknown.
     """
 
     measurement_impedance_ohm: float | None = None
@@ -68,6 +71,7 @@ class CheckOptions:
     load_uncertainty: float = 0.0
     known_poles: int = 0
     premise_notes: tuple[str, ...] = ()
+    load_poles_known: bool = False
 
     def __post_init__(self) -> None:
         given = (self.device_dc_resistance_ohm is None, self.load_dc_resistance_ohm is None)
@@ -143,6 +147,7 @@ def check(
         load_uncertainty=float(load_uncertainty),
         known_poles=known_poles,
         premise_notes=notes,
+        load_poles_known=_as_circuit(load) is not None,
     )
     pair = align(device_port, load_port, options.measurement_impedance_ohm)
     result = analyse_pair(pair, device_port, load_port, options)
@@ -222,8 +227,8 @@ def _netlist_poles(circuit: Any, role: str, z0: float) -> tuple[int, str]:
     if unstable:
         return unstable, (
             f"The {role} netlist ({circuit.source}) terminated in {z0:g} ohm has {unstable}"
-            " natural frequency(ies) in the right half plane; they are poles of F and are added"
-            " to the count (Z = N + P)."
+            " natural frequencies in the right half plane (P); they are poles of F and are"
+            " added to the count (Z = N + P)."
         )
     return 0, (
         f"The {role} netlist ({circuit.source}) was checked: terminated in {z0:g} ohm all its"
@@ -275,6 +280,27 @@ def analyse_pair(
         reasons += _describe_modes(count, oscillation, z0, frequency_hz, loop_gain)
 
     warnings = _findings(pair, step, noise, margins, crossings, frequency_hz, loop_gain)
+    passivity = _passivity_findings(frequency_hz, pair.gamma_load, noise)
+    warnings += passivity
+    if passivity and not options.load_poles_known and verdict != "inconclusive":
+        verdict = "inconclusive"
+        reasons.append(
+            "The load is not passive (|gamma_load| > 1 in the band): whether it has poles of its"
+            " own in the right half plane cannot be told from its reflection, so the count"
+            " cannot decide."
+        )
+        next_steps.append(
+            "Check that device and load are not swapped; an active load can be given as a"
+            " netlist, whose own natural frequencies are then counted."
+        )
+    # Where the device has gain within the analysed band: there a hidden resonance matters.
+    gain_bands = np.array(
+        [
+            (b.start_hz, b.stop_hz)
+            for b in nyquist.find_bands(frequency_hz, pair.gamma_device, noise)
+        ]
+        or [(frequency_hz[0], frequency_hz[-1])]
+    )
     warnings += _diagnostic_findings(hidden, hidden_at_stake)
     disagree = data_low.founded and data_low.sign_at_limit != low.sign_at_limit
     if low.basis == "dc-resistances" and disagree:
@@ -313,8 +339,8 @@ def analyse_pair(
         uncertainty=uncertainty,
         hidden_resonances=tuple(hidden),
         grid_resolution=(
-            diagnostics.grid_resolution(device.frequency_hz, device.source),
-            diagnostics.grid_resolution(load.frequency_hz, load.source),
+            diagnostics.grid_resolution(device.frequency_hz, device.source, gain_bands),
+            diagnostics.grid_resolution(load.frequency_hz, load.source, gain_bands),
         ),
         startup_estimates=tuple(
             startup_estimates(frequency_hz, pair.gamma_device, pair.gamma_load, z0)
@@ -429,6 +455,30 @@ def _doubts(
     return verdict
 
 
+def _passivity_findings(
+    frequency_hz: np.ndarray, gamma_load: np.ndarray, noise: float
+) -> list[Finding]:
+    """A warning when the load reflects more than it receives: active, or files swapped."""
+    magnitude = np.abs(gamma_load)
+    worst = int(np.argmax(magnitude))
+    if magnitude[worst] <= 1.0 + 3.0 * noise + 1e-9:
+        return []
+    return [
+        Finding(
+            "load-not-passive",
+            f"The load has |gamma| = {magnitude[worst]:.3g} at"
+            f" {format_frequency(frequency_hz[worst])}: it returns more power than it receives."
+            " The count assumes a passive load (no poles of its own in the right half plane);"
+            " check that device and load are not swapped, or describe an active load as a"
+            " netlist so its own natural frequencies are counted.",
+            {
+                "largest_load_reflection": float(magnitude[worst]),
+                "frequency_hz": float(frequency_hz[worst]),
+            },
+        )
+    ]
+
+
 def _diagnostic_findings(
     hidden: list[diagnostics.HiddenResonance],
     hidden_at_stake: list[diagnostics.HiddenResonance],
@@ -485,9 +535,10 @@ def _decide(
             )
         if closure.side == "low":
             steps.append(
-                "Bias-network oscillations and latch-up often sit below a VNA's lowest"
-                " frequency: the DC resistances of the device (its I-V slope at the bias point)"
-                " and of the bias network decide the sign of F(0)."
+                "Or give the DC facts: bias-network oscillations and latch-up often sit below a"
+                " VNA's lowest frequency, and the device's DC resistance (its I-V slope at the"
+                " bias point) and the bias network's decide the sign of F(0): pass them as"
+                " --device-dc-resistance and --load-dc-resistance."
             )
     if step > nyquist.UNSAFE_PHASE_STEP_RAD:
         index = int(np.argmax(np.abs(np.diff(nyquist.unwrapped_phase(loop_gain)))))
@@ -503,7 +554,7 @@ def _decide(
         return "inconclusive", reasons, steps
     if count < 0:
         reasons.append(
-            f"The loop encircles +1 {-count} time(s) counterclockwise (N = {count}). With a"
+            f"The loop encircles +1 counterclockwise {_times(-count)} (N = {count}). With a"
             " passive load that means the device itself is unstable in its measurement"
             " impedance (the premise fails), or the data are not what they claim."
         )
@@ -518,15 +569,29 @@ def _decide(
             " encirclement of +1 (N = 0). Small-signal stable into this load."
         )
         return "stable", reasons, steps
+    roots = "natural frequency" if count == 1 else "natural frequencies"
     reasons.append(
-        f"The loop gain encircles +1 {count} time(s) clockwise (N = {count}): {count} natural"
-        " frequency(ies) in the right half plane."
+        f"The loop gain encircles +1 clockwise {_times(count)} (N = {count}): {count} {roots}"
+        " in the right half plane."
     )
-    steps.append(
-        "Do not apply full bias into this load: change the load (more loss or a different"
-        " resonance) and check again."
-    )
+    if count % 2:
+        steps.append(
+            "Do not apply full bias into this load. A real root (latch-up) is set by the loop at"
+            " DC and low frequency: keep the bias network's DC resistance below the device's"
+            " negative resistance |R_d| (or add a low-frequency path that does), then check"
+            " again."
+        )
+    if count >= 2:
+        steps.append(
+            "Do not apply full bias into this load: change the load where the loop crosses +1"
+            " (more loss, or move the resonance) and check again."
+        )
     return "unstable", reasons, steps
+
+
+def _times(count: int) -> str:
+    """ "once", "twice", "3 times"."""
+    return {1: "once", 2: "twice"}.get(count, f"{count} times")
 
 
 def _describe_modes(

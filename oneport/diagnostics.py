@@ -132,10 +132,24 @@ def foster_violations(
     ]
 
 
-def grid_resolution(frequency_hz: np.ndarray, source: str) -> GridResolution:
-    """The finest loaded Q resolvable anywhere on the grid: min over samples of f / (2Δf)."""
+def grid_resolution(
+    frequency_hz: np.ndarray, source: str, where: np.ndarray | None = None
+) -> GridResolution:
+    """The finest loaded Q the grid resolves, f / (2Δf), at its coarsest sample interval.
+
+    ``where`` (frequency pairs [low, high] as an array of shape (k, 2)) limits the search to the
+    stretches that matter — for the check, where the device has |Γd| ≥ 1 inside the analysed
+    band, since a hidden resonance elsewhere cannot reach +1 with a passive load. Without it,
+    or when no interval falls inside, the whole grid counts.
+    """
     steps = np.diff(frequency_hz)
     centres = 0.5 * (frequency_hz[:-1] + frequency_hz[1:])
     q = centres / (2.0 * steps)
+    if where is not None and len(where):
+        inside = np.zeros(centres.shape, dtype=bool)
+        for low, high in where:
+            inside |= (centres >= low) & (centres <= high)
+        if inside.any():
+            q = np.where(inside, q, np.inf)
     index = int(np.argmin(q))
     return GridResolution(source, float(q[index]), float(centres[index]), float(steps[index]))

@@ -15,6 +15,7 @@ axis beyond +1 outside the sweep. Where that assumption is not founded the count
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -418,16 +419,20 @@ def find_margins(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> Margins:
     )
 
 
-def estimate_noise(loop_gain: np.ndarray) -> float:
+def estimate_noise(loop_gain: np.ndarray) -> Any:
     """Standard deviation of the point-to-point scatter of L (robust, from second differences).
+
+    A float for one trace, an array of the leading shape for several.
 
     For white noise of σ on each sample, the second difference has σ·√6; the median absolute
     value keeps real curvature (a resonance) from inflating the estimate.
     """
-    if loop_gain.size < 3:
-        return 0.0
-    second = np.diff(loop_gain, n=2)
+    loop_gain = np.asarray(loop_gain)
+    if loop_gain.shape[-1] < 3:
+        return 0.0 if loop_gain.ndim == 1 else np.zeros(loop_gain.shape[:-1])
+    second = np.diff(loop_gain, n=2, axis=-1)
     # For complex Gaussian noise |second| is Rayleigh; its median is σ_c·sqrt(ln 4) where σ_c is
     # the per-component deviation times sqrt(6). Report the complex (total) deviation of L.
-    per_component = np.median(np.abs(second)) / np.sqrt(np.log(4.0)) / np.sqrt(6.0)
-    return float(per_component * np.sqrt(2.0))
+    per_component = np.median(np.abs(second), axis=-1) / np.sqrt(np.log(4.0)) / np.sqrt(6.0)
+    total = per_component * np.sqrt(2.0)
+    return float(total) if np.ndim(total) == 0 else total

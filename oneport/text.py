@@ -148,7 +148,7 @@ def _diagnostics(result: CheckResult) -> list[str]:
     rows = ["Sampling and measurement"]
     for grid in result.grid_resolution:
         rows.append(
-            f"  finest loaded Q the grid resolves: {grid.finest_resolvable_q:.0f}"
+            f"  finest loaded Q the grid resolves: {grid.finest_resolvable_q:.2g}"
             f" (step {format_frequency(grid.largest_step_hz)} near"
             f" {format_frequency(grid.at_frequency_hz)})  {grid.source}"
         )

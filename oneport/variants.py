@@ -56,6 +56,7 @@ def analyse_variants(
     gamma_load: np.ndarray,
     reference_impedance_ohm: float,
     dc_sign: int | None = None,
+    load_poles_known: bool = False,
 ) -> VariantAnalysis:
     """The single check's analysis for every variant at once.
 
@@ -67,6 +68,10 @@ def analyse_variants(
         Both referred to ``reference_impedance_ohm`` (the device's measurement impedance).
     dc_sign : {+1, −1}, optional
         The sign of F(0) from stated DC resistances, overriding the data's low-edge closure.
+    load_poles_known : bool
+        True for a netlist load: an active one then does not leave its poles unknown. For
+        measured loads, a variant whose |ΓL| exceeds 1 beyond the data's scatter is
+        inconclusive, as in the single check.
     """
     gamma_device = np.asarray(gamma_device, dtype=complex)
     gamma_load = np.asarray(gamma_load, dtype=complex)
@@ -94,6 +99,10 @@ def analyse_variants(
         np.where(count == 0, STABLE, UNSTABLE),
     )
     verdict = np.where(hidden & (verdict != INCONCLUSIVE), INCONCLUSIVE, verdict)
+    if not load_poles_known:
+        scatter = nyquist.estimate_noise(loop_gain)
+        active = np.max(np.abs(gamma_load), axis=-1) > 1.0 + 3.0 * scatter + 1e-9
+        verdict = np.where(np.broadcast_to(active, verdict.shape), INCONCLUSIVE, verdict)
     frequency, modes = _carrying_crossings(frequency_hz, loop_gain)
     unstable = known & (count > 0)
     distance = np.abs(characteristic)

@@ -65,7 +65,12 @@ def run_chunk(
     gamma_device, gamma_load = source(parameters)
     rows = next(iter(parameters.values())).shape[0] if parameters else 1
     analysis = analyse_variants(
-        frequency_hz, gamma_device, gamma_load, reference_impedance_ohm, dc_sign
+        frequency_hz,
+        gamma_device,
+        gamma_load,
+        reference_impedance_ohm,
+        dc_sign,
+        load_poles_known=bool(getattr(source, "load_poles_known", False)),
     )
     columns = {name: np.asarray(values) for name, values in parameters.items()}
     for name in (

@@ -49,6 +49,11 @@ class LoopSource:
     device: Side
     load: Side
 
+    @property
+    def load_poles_known(self) -> bool:
+        """A netlist load: an active one does not leave its poles unknown."""
+        return self.load.circuit is not None
+
     def __call__(self, values: dict[str, np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
         """(Γd, ΓL) for the chunk's variants."""
         device = self.device.evaluate(self.frequency_hz, self.reference_impedance_ohm, values)
