@@ -19,6 +19,8 @@ import numpy as np
 
 #: Samples each side of a crossing used for the local slopes.
 SLOPE_HALF_WIDTH = 3
+#: Crossings of one form closer than this many samples are scatter around zero, not modes.
+CHATTER_SAMPLES = 12
 #: Common practice for reliable start-up: |negative resistance| about 3 × the load's.
 STARTUP_RATIO_PRACTICE = 3.0
 
@@ -66,8 +68,32 @@ def startup_estimates(
             if not np.all(np.isfinite(total)):
                 continue
             estimates += _estimates_for_form(form, omega, device, load, total)
-    finite = [e for e in estimates if np.isfinite([e.sigma_per_s, e.estimated_frequency_hz]).all()]
-    return sorted(finite, key=lambda e: e.crossing_frequency_hz)
+    low, high = frequency_hz[0], frequency_hz[-1]
+    kept = [
+        e
+        for e in estimates
+        if np.isfinite([e.sigma_per_s, e.estimated_frequency_hz]).all()
+        # One Newton step that lands outside the band extrapolates: no estimate there.
+        and low <= e.estimated_frequency_hz <= high
+    ]
+    return _without_chatter(sorted(kept, key=lambda e: e.crossing_frequency_hz), frequency_hz)
+
+
+def _without_chatter(
+    estimates: list[StartupEstimate], frequency_hz: np.ndarray
+) -> list[StartupEstimate]:
+    """Drop crossings of one form that follow another within ``CHATTER_SAMPLES`` samples:
+    measurement scatter dithering X_T (or B_T) about zero, not separate resonances."""
+    window = CHATTER_SAMPLES * float(np.median(np.diff(frequency_hz)))
+    kept: list[StartupEstimate] = []
+    last: dict[str, float] = {}
+    for estimate in estimates:
+        previous = last.get(estimate.form)
+        last[estimate.form] = estimate.crossing_frequency_hz
+        if previous is not None and estimate.crossing_frequency_hz - previous <= window:
+            continue
+        kept.append(estimate)
+    return kept
 
 
 def _estimates_for_form(

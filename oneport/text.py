@@ -181,9 +181,20 @@ def _startup(result: CheckResult) -> list[str]:
             + ("  grows" if estimate.growing else "")
         )
     rows.append(
-        "  common practice for reliable start-up: |negative resistance| about 3 x the load's"
-        " (2 x for a cubic device)"
+        wrap(
+            "common practice for reliable start-up: |negative resistance| about 3 x the load's"
+            " (2 x for a cubic device)",
+            "  ",
+        )
     )
+    if any(e.growing for e in result.startup_estimates):
+        rows.append(
+            wrap(
+                "where a 'grows' disagrees with the count, the count decides: one Newton step"
+                " misleads near an anti-resonance, where the reactance falls through zero",
+                "  ",
+            )
+        )
     return rows
 
 
