@@ -175,6 +175,9 @@ def _resolve_sides(
         return load_one_port(device, "device"), load_one_port(load, "load"), 0, ()
     from .circuit import one_port_from_circuit
 
+    # Evaluate from the path where there is one, so the record carries the netlist's checksum.
+    device_netlist = device if isinstance(device, str | Path) else device_circuit
+    load_netlist = load if isinstance(load, str | Path) else load_circuit
     if device_circuit is not None and load_circuit is not None:
         if frequency_hz is None:
             raise InputError(
@@ -182,16 +185,16 @@ def _resolve_sides(
             )
         grid = np.asarray(frequency_hz, dtype=float)
         z0 = measurement_impedance_ohm or 50.0
-        device_port = one_port_from_circuit(device_circuit, grid, z0)
-        load_port = one_port_from_circuit(load_circuit, grid, z0)
+        device_port = one_port_from_circuit(device_netlist, grid, z0)
+        load_port = one_port_from_circuit(load_netlist, grid, z0)
     elif device_circuit is not None:
         load_port = load_one_port(load, "load")
         z0 = measurement_impedance_ohm or 50.0
-        device_port = one_port_from_circuit(device_circuit, load_port.frequency_hz, z0)
+        device_port = one_port_from_circuit(device_netlist, load_port.frequency_hz, z0)
     else:
         device_port = load_one_port(device, "device")
         z0 = measurement_impedance_ohm or device_port.reference_impedance_ohm
-        load_port = one_port_from_circuit(load_circuit, device_port.frequency_hz, z0)
+        load_port = one_port_from_circuit(load_netlist, device_port.frequency_hz, z0)
     poles, notes = 0, []
     for role, circuit in (("device", device_circuit), ("load", load_circuit)):
         if circuit is None:

@@ -48,7 +48,18 @@ class _Parser(argparse.ArgumentParser):
     """argparse that reports usage errors as one line and exit code 2."""
 
     def error(self, message: str) -> NoReturn:
-        raise _UsageError(f"{self.prog}: {message} (see --help)")
+        raise _UsageError(f"{self.prog}: {message}{_hint(message)} (see --help)")
+
+
+def _hint(message: str) -> str:
+    """A hint for the two slips argparse words least helpfully."""
+    if message.startswith("unrecognized arguments:"):
+        extra = message.split(":", 1)[1].split()
+        if extra and extra[0].isalpha() and len(extra[0]) <= 4:
+            return f"; write the unit next to the number (15{extra[0]}, not 15 {extra[0]})"
+    if message.endswith("expected one argument"):
+        return "; a negative value goes after '=', e.g. --device-delay=-12ps"
+    return ""
 
 
 def build_parser() -> tuple[argparse.ArgumentParser, dict[str, ModuleType]]:

@@ -59,7 +59,7 @@ def prepare(path: str | Path, setup: PortSetup, role: str) -> PreparedPort:
     else:
         port = read_one_port(path)
     if setup.fixture_path is not None:
-        port = _deembedded(port, setup.fixture_path)
+        port = _deembedded(port, setup.fixture_path, findings)
         steps.append(f"fixture {setup.fixture_path} de-embedded")
         findings.append(
             Finding(
@@ -125,9 +125,29 @@ def _differential(path: str | Path, pairs: tuple[tuple[int, int], ...]) -> OnePo
     return _with_record(port, multiport)
 
 
-def _deembedded(port: OnePort, fixture_path: str) -> OnePort:
+def _deembedded(port: OnePort, fixture_path: str, findings: list[Finding]) -> OnePort:
     fixture = _two_port(fixture_path)
     inside = _inside(port.frequency_hz, fixture.frequency_hz, fixture_path)
+    if not inside.all():
+        findings.append(
+            Finding(
+                "points-outside-fixture-band",
+                f"{int((~inside).sum())} point(s) of {port.source} lie outside the band of"
+                f" {fixture_path} and were left out; nothing is extrapolated.",
+                {"dropped": int((~inside).sum())},
+            )
+        )
+    gain = float(np.linalg.svd(np.moveaxis(fixture.s, -1, 0), compute_uv=False).max())
+    if gain > 1.0 + 1e-3:
+        findings.append(
+            Finding(
+                "fixture-not-passive",
+                f"{fixture_path} has gain (largest singular value of S {gain:.3g} > 1): a"
+                " fixture is passive, so this is probably not the fixture's file, or its ports"
+                " or references are wrong.",
+                {"largest_singular_value": gain},
+            )
+        )
     frequency_hz = port.frequency_hz[inside]
     s = np.stack(
         [

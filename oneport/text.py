@@ -52,11 +52,19 @@ def render(result: CheckResult) -> str:
         parts.append(f"  {record.role:<7} {record.source}")
         if record.preparation:
             parts.append(f"          {'; '.join(record.preparation)}")
-        parts.append(
-            f"          {record.parameter} {record.number_format}, Touchstone {record.version},"
-            f" {record.points} points, {format_frequency(low)}-{format_frequency(high)},"
-            f" R = {record.file_reference_impedance_ohm:g} ohm{renormalised}"
-        )
+        if record.version == "netlist":
+            parts.append(
+                f"          netlist, evaluated at {record.points} points,"
+                f" {format_frequency(low)}-{format_frequency(high)}, in"
+                f" {record.analysed_reference_impedance_ohm:g} ohm"
+            )
+        else:
+            parts.append(
+                f"          {record.parameter} {record.number_format}, Touchstone"
+                f" {record.version}, {record.points} points,"
+                f" {format_frequency(low)}-{format_frequency(high)},"
+                f" R = {record.file_reference_impedance_ohm:g} ohm{renormalised}"
+            )
     low, high = result.frequency_range_hz
     parts.append(
         f"  analysed {format_frequency(low)}-{format_frequency(high)},"

@@ -278,8 +278,20 @@ def _resistance(text: str | None, option: str) -> float | None:
     return None if text is None else parse_quantity(text, "resistance", option=option)
 
 
+#: A plane shift longer than this is no cable or fixture: a unit was probably left out.
+_LONGEST_DELAY_S = 1e-6
+
+
 def _time(text: str | None, option: str) -> float:
-    return 0.0 if text is None else parse_quantity(text, "time", option=option)
+    if text is None:
+        return 0.0
+    delay = parse_quantity(text, "time", option=option)
+    if abs(delay) > _LONGEST_DELAY_S:
+        raise InputError(
+            f"{option}: {text!r} is {delay:g} s of line, far beyond any fixture or cable; give"
+            " the unit, e.g. 12ps or 0.5ns"
+        )
+    return delay
 
 
 def _uncertainty(text: str | None) -> float | tuple[float, float] | None:
