@@ -468,7 +468,13 @@ def _edge(frequency_hz: np.ndarray, gain_db: np.ndarray, slack: np.ndarray, side
     founded = margin > rise + EDGE_MARGIN_DB
     where = format_frequency(frequency_hz[edge])
     note = (
-        f"At {where} the port's return loss exceeds the gain by {margin:.1f} dB and the gain"
+        f"At {where} the port's return loss"
+        + (
+            f" exceeds the gain by {margin:.1f} dB"
+            if margin >= 0
+            else f" falls {-margin:.1f} dB short of the gain"
+        )
+        + " and the gain"
         f" rises by {rise:.1f} dB towards the edge over the outermost octave"
         + ("." if founded else ": the bound cannot be carried beyond the sweep.")
     )

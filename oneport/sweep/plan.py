@@ -125,7 +125,7 @@ def monte_carlo_plan(
             raise InputError(f"--tolerance {name}: no parameter of that name (known: {known})")
         relative = _draw(rng, distribution, tolerance, samples)
         values[name] = nominal[name] * (1.0 + relative)
-        description[name] = f"{nominal[name]:g} ±{tolerance:.3g} ({distribution})"
+        description[name] = f"{nominal[name]:g} ±{tolerance:.0%} ({distribution})"
     return SweepPlan("monte-carlo", values, (samples,), description)
 
 
