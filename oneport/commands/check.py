@@ -8,7 +8,7 @@ from typing import Any, TextIO
 
 from ..errors import InputError
 from ..units import parse_decibels, parse_quantity
-from .common import add_output_options, write_json
+from .common import add_grid_options, add_output_options, grid_from_options, write_json
 
 NAME = "check"
 
@@ -64,11 +64,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     facts.add_argument(
         "--load-dc-resistance", metavar="OHMS", help="the load's (bias network's) DC resistance"
     )
-    grid = command.add_argument_group("frequency grid when both sides are netlists")
-    grid.add_argument("--start", metavar="FREQUENCY", help="e.g. 1MHz")
-    grid.add_argument("--stop", metavar="FREQUENCY", help="e.g. 6GHz")
-    grid.add_argument("--points", type=int, default=2001, help="default 2001")
-    grid.add_argument("--spacing", choices=("linear", "log"), default="linear")
+    add_grid_options(command, "frequency grid when both sides are netlists")
     command.add_argument(
         "--gamma-uncertainty",
         metavar="X[,Y]",
@@ -167,7 +163,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
                 arguments.load_dc_resistance, "--load-dc-resistance"
             ),
             gamma_uncertainty=_uncertainty(arguments.gamma_uncertainty),
-            frequency_hz=_grid(arguments),
+            frequency_hz=grid_from_options(arguments, required=False),
         )
         text = render(result)
         line = verdict_line(result)
@@ -202,25 +198,6 @@ def _side(path: str, setup: Any, role: str) -> Any:
             " them in the netlist instead"
         )
     return path
-
-
-def _grid(arguments: argparse.Namespace) -> Any:
-    """The grid for two netlists (--start, --stop, --points, --spacing), else None."""
-    if arguments.start is None and arguments.stop is None:
-        return None
-    import numpy as np
-
-    if arguments.start is None or arguments.stop is None:
-        raise InputError("give both --start and --stop (e.g. 1MHz and 6GHz)")
-    start = parse_quantity(arguments.start, "frequency", option="--start")
-    stop = parse_quantity(arguments.stop, "frequency", option="--stop")
-    if not 0 <= start < stop or arguments.points < 5:
-        raise InputError("need 0 <= --start < --stop and --points of at least 5")
-    if arguments.spacing == "log":
-        if start <= 0:
-            raise InputError("--spacing log needs --start above 0 Hz")
-        return np.geomspace(start, stop, arguments.points)
-    return np.linspace(start, stop, arguments.points)
 
 
 def _second_opinion(result: Any) -> Any:

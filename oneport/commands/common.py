@@ -24,3 +24,31 @@ def write_json(data: dict[str, Any], out: TextIO) -> None:
     """One JSON object on ``out``."""
     json.dump(data, out, indent=2, allow_nan=False)
     out.write("\n")
+
+
+def add_grid_options(command: argparse.ArgumentParser, title: str) -> None:
+    """``--start``, ``--stop``, ``--points``, ``--spacing`` for a grid of the user's choosing."""
+    grid = command.add_argument_group(title)
+    grid.add_argument("--start", metavar="FREQUENCY", help="e.g. 1MHz")
+    grid.add_argument("--stop", metavar="FREQUENCY", help="e.g. 6GHz")
+    grid.add_argument("--points", type=int, default=2001, help="default 2001")
+    grid.add_argument("--spacing", choices=("linear", "log"), default="linear")
+
+
+def grid_from_options(arguments: argparse.Namespace, required: bool) -> Any:
+    """The grid the grid options describe, Hz; None when neither end is given and not required."""
+    if arguments.start is None and arguments.stop is None and not required:
+        return None
+    if arguments.start is None or arguments.stop is None:
+        from ..errors import InputError
+
+        raise InputError("give both --start and --stop (e.g. 1MHz and 6GHz)")
+    from ..circuit.export import frequency_grid
+    from ..units import parse_quantity
+
+    return frequency_grid(
+        parse_quantity(arguments.start, "frequency", option="--start"),
+        parse_quantity(arguments.stop, "frequency", option="--stop"),
+        arguments.points,
+        arguments.spacing,
+    )

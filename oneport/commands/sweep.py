@@ -11,7 +11,7 @@ import numpy as np
 
 from ..errors import InputError
 from ..units import parse_quantity
-from .common import write_json
+from .common import add_grid_options, grid_from_options, write_json
 
 NAME = "sweep"
 
@@ -64,11 +64,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         "--samples", type=int, default=1000, help="Monte Carlo variants (default 1000)"
     )
     command.add_argument("--seed", type=int, default=1, help="random seed (default 1): runs repeat")
-    grid = command.add_argument_group("frequency grid when both sides are netlists")
-    grid.add_argument("--start", help="e.g. 1MHz")
-    grid.add_argument("--stop", help="e.g. 6GHz")
-    grid.add_argument("--points", type=int, default=2001)
-    grid.add_argument("--spacing", choices=("linear", "log"), default="linear")
+    add_grid_options(command, "frequency grid when both sides are netlists")
     facts = command.add_argument_group("DC facts (give both)")
     facts.add_argument("--device-dc-resistance", metavar="OHMS")
     facts.add_argument("--load-dc-resistance", metavar="OHMS")
@@ -190,7 +186,7 @@ def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
             frequency_hz = load.frequency_hz
             z0 = _resistance(arguments.reference_impedance) or 50.0
         else:
-            frequency_hz = _grid(arguments)
+            frequency_hz = grid_from_options(arguments, required=True)
             z0 = _resistance(arguments.reference_impedance) or 50.0
         device_side = Side(circuit=device_circuit, parameters=tuple(device_circuit.parameters))
 
@@ -291,22 +287,6 @@ def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
             "sweep: nothing to vary: give --vary, --tolerance, or several device files"
         )
     return grid_plan(specifications, [known.get(n.lower(), n) for n in arguments.log])
-
-
-def _grid(arguments: argparse.Namespace) -> np.ndarray:
-    if arguments.start is None or arguments.stop is None:
-        raise InputError(
-            "sweep: with netlists on both sides give --start and --stop (e.g. 1MHz, 6GHz)"
-        )
-    start = parse_quantity(arguments.start, "frequency", option="--start")
-    stop = parse_quantity(arguments.stop, "frequency", option="--stop")
-    if not 0 <= start < stop or arguments.points < 5:
-        raise InputError("sweep: need 0 <= --start < --stop and --points >= 5")
-    if arguments.spacing == "log":
-        if start <= 0:
-            raise InputError("--spacing log needs --start above 0 Hz")
-        return np.geomspace(start, stop, arguments.points)
-    return np.linspace(start, stop, arguments.points)
 
 
 def _resistance(text: str | None) -> float | None:
