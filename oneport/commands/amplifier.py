@@ -10,8 +10,13 @@ import argparse
 from typing import TYPE_CHECKING, Any, TextIO
 
 from ..text import closing_sections, wrap
-from ..units import format_frequency, parse_decibels, parse_quantity
-from .common import add_output_options, write_json
+from ..units import format_frequency, parse_decibels
+from .common import (
+    add_measurement_impedance_option,
+    add_output_options,
+    measurement_impedance,
+    write_json,
+)
 
 if TYPE_CHECKING:
     from ..amplifier import AmplifierResult, GainBand
@@ -51,12 +56,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         default="10dB",
         help="list the bands where the gain reaches this (default 10dB)",
     )
-    command.add_argument(
-        "--measurement-impedance",
-        metavar="OHMS",
-        help="impedance the device was measured in, if its file was renormalised afterwards"
-        " (e.g. 50ohm); default: the device file's reference",
-    )
+    add_measurement_impedance_option(command)
     command.add_argument("--plot", metavar="FILE", help="save a gain plot (.png, .svg, .pdf)")
     add_output_options(command)
     return command
@@ -67,11 +67,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     from ..amplifier import save_amplifier_plot, screen_amplifier
     from ..cli import ExitCode
 
-    impedance = None
-    if arguments.measurement_impedance is not None:
-        impedance = parse_quantity(
-            arguments.measurement_impedance, "resistance", option="--measurement-impedance"
-        )
+    impedance = measurement_impedance(arguments)
     return_loss = None
     if arguments.port_return_loss is not None:
         return_loss = parse_decibels(arguments.port_return_loss, option="--port-return-loss")

@@ -8,7 +8,14 @@ from typing import Any, TextIO
 
 from ..errors import InputError
 from ..units import parse_decibels, parse_quantity
-from .common import add_grid_options, add_output_options, grid_from_options, write_json
+from .common import (
+    add_grid_options,
+    add_measurement_impedance_option,
+    add_output_options,
+    grid_from_options,
+    measurement_impedance,
+    write_json,
+)
 
 NAME = "check"
 
@@ -49,12 +56,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         help="instead of a load file: is it stable into every passive load with at least"
         " this return loss (e.g. 15dB)? small-gain bound",
     )
-    command.add_argument(
-        "--measurement-impedance",
-        metavar="OHMS",
-        help="impedance the device was measured in, if its file was renormalised afterwards"
-        " (e.g. 50ohm); default: the device file's reference",
-    )
+    add_measurement_impedance_option(command)
     facts = command.add_argument_group("DC facts (close the contour towards DC; give both)")
     facts.add_argument(
         "--device-dc-resistance",
@@ -127,7 +129,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     from ..text import render, render_bound, verdict_line
 
     device = _side(arguments.device, _device_setup(arguments), "device")
-    impedance = _resistance(arguments.measurement_impedance, "--measurement-impedance")
+    impedance = measurement_impedance(arguments)
     result: Any
     if arguments.load_return_loss is not None:
         if impedance is not None or arguments.plot or arguments.report or arguments.poles:

@@ -7,14 +7,23 @@ import json
 from typing import Any, TextIO
 
 
-def add_output_options(command: argparse.ArgumentParser) -> None:
-    """``--json``, ``--quiet``, ``--include-arrays`` and ``--traceback``."""
+def add_output_options(
+    command: argparse.ArgumentParser,
+    *,
+    quiet_help: str = "print the verdict line only",
+    json_help: str = "print one JSON object",
+    arrays: bool = True,
+) -> None:
+    """``--json``, ``--quiet``, ``--traceback`` and (with ``arrays``) ``--include-arrays``."""
     output = command.add_mutually_exclusive_group()
-    output.add_argument("--json", action="store_true", help="print one JSON object")
-    output.add_argument("--quiet", "-q", action="store_true", help="print the verdict line only")
-    command.add_argument(
-        "--include-arrays", action="store_true", help="with --json: add the per-frequency arrays"
-    )
+    output.add_argument("--json", action="store_true", help=json_help)
+    output.add_argument("--quiet", "-q", action="store_true", help=quiet_help)
+    if arrays:
+        command.add_argument(
+            "--include-arrays",
+            action="store_true",
+            help="with --json: add the per-frequency arrays",
+        )
     command.add_argument(
         "--traceback", action="store_true", help="show Python tracebacks for errors (debugging)"
     )
@@ -51,4 +60,25 @@ def grid_from_options(arguments: argparse.Namespace, required: bool) -> Any:
         parse_quantity(arguments.stop, "frequency", option="--stop"),
         arguments.points,
         arguments.spacing,
+    )
+
+
+def add_measurement_impedance_option(command: argparse.ArgumentParser) -> None:
+    """``--measurement-impedance OHMS``: what the device was really measured in."""
+    command.add_argument(
+        "--measurement-impedance",
+        metavar="OHMS",
+        help="impedance the device was measured in, if its file was renormalised afterwards"
+        " (e.g. 50ohm); default: the device file's reference",
+    )
+
+
+def measurement_impedance(arguments: argparse.Namespace) -> float | None:
+    """The ``--measurement-impedance`` value in Ω, or None when not given."""
+    if arguments.measurement_impedance is None:
+        return None
+    from ..units import parse_quantity
+
+    return parse_quantity(
+        arguments.measurement_impedance, "resistance", option="--measurement-impedance"
     )

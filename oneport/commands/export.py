@@ -7,7 +7,7 @@ from typing import Any, TextIO
 
 from ..errors import InputError
 from ..units import parse_quantity
-from .common import write_json
+from .common import add_output_options, write_json
 
 NAME = "export"
 
@@ -50,12 +50,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         metavar="OHMS",
         help="reference impedance of the written data (default 50ohm)",
     )
-    output = command.add_mutually_exclusive_group()
-    output.add_argument("--json", action="store_true", help="print one JSON object")
-    output.add_argument("--quiet", "-q", action="store_true", help="print nothing on success")
-    command.add_argument(
-        "--traceback", action="store_true", help="show Python tracebacks for errors (debugging)"
-    )
+    add_output_options(command, quiet_help="print nothing on success", arrays=False)
     return command
 
 

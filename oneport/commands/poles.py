@@ -10,8 +10,13 @@ import argparse
 from typing import TYPE_CHECKING, Any, TextIO
 
 from ..text import closing_sections, wrap
-from ..units import format_frequency, parse_quantity
-from .common import add_output_options, write_json
+from ..units import format_frequency
+from .common import (
+    add_measurement_impedance_option,
+    add_output_options,
+    measurement_impedance,
+    write_json,
+)
 
 if TYPE_CHECKING:
     from ..character import DeviceCharacter
@@ -37,12 +42,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     )
     command.add_argument("device", help="the device's Touchstone one-port (.s1p or 2.x .ts)")
     command.add_argument("--load", required=True, help="the load's Touchstone one-port")
-    command.add_argument(
-        "--measurement-impedance",
-        metavar="OHMS",
-        help="impedance the device was measured in, if its file was renormalised afterwards"
-        " (e.g. 50ohm); default: the device file's reference",
-    )
+    add_measurement_impedance_option(command)
     command.add_argument(
         "--character",
         action="store_true",
@@ -77,11 +77,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     from ..cli import verdict_exit_code
     from ..poles import DEFAULT_MAX_ORDER, identify_natural_frequencies, with_count_check
 
-    impedance = None
-    if arguments.measurement_impedance is not None:
-        impedance = parse_quantity(
-            arguments.measurement_impedance, "resistance", option="--measurement-impedance"
-        )
+    impedance = measurement_impedance(arguments)
     device = load_one_port(arguments.device, "device")
     load = load_one_port(arguments.load, "load")
     pair = align(device, load, impedance)

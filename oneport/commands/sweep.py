@@ -11,7 +11,7 @@ import numpy as np
 
 from ..errors import InputError
 from ..units import parse_quantity
-from .common import add_grid_options, grid_from_options, write_json
+from .common import add_grid_options, add_output_options, grid_from_options, write_json
 
 NAME = "sweep"
 
@@ -80,8 +80,6 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     out.add_argument(
         "--plot", metavar="FILE", help="stability map or margin histogram (.png, .svg)"
     )
-    out.add_argument("--json", action="store_true", help="print the summary as one JSON object")
-    out.add_argument("--quiet", "-q", action="store_true", help="print the verdict line only")
     run_group = command.add_argument_group("where it runs")
     run_group.add_argument(
         "--scheduler", metavar="tcp://HOST:PORT", help="a running Dask scheduler"
@@ -93,7 +91,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     run_group.add_argument(
         "--chunk-size", type=int, help="variants per chunk (default: about 1e6 samples)"
     )
-    command.add_argument("--traceback", action="store_true", help="show tracebacks (debugging)")
+    add_output_options(command, json_help="print the summary as one JSON object", arrays=False)
     return command
 
 

@@ -7,7 +7,7 @@ from typing import Any, TextIO
 
 from ..errors import InputError
 from ..units import parse_quantity
-from .common import write_json
+from .common import add_output_options, write_json
 from .export import parse_parameter_options
 
 NAME = "terminations"
@@ -49,12 +49,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         help="reference impedance for a netlist's S-parameters (default 50ohm)",
     )
     command.add_argument("--plot", metavar="FILE", help="write a Smith chart (.png or .svg)")
-    output = command.add_mutually_exclusive_group()
-    output.add_argument("--json", action="store_true", help="print one JSON object")
-    output.add_argument("--quiet", "-q", action="store_true", help="print one summary line")
-    command.add_argument(
-        "--traceback", action="store_true", help="show Python tracebacks for errors (debugging)"
-    )
+    add_output_options(command, quiet_help="print one summary line", arrays=False)
     return command
 
 
