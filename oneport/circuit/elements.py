@@ -46,6 +46,8 @@ class StampContext:
         Element data prepared for this frequency chunk (a block's interpolated S-parameters).
     omega : ndarray of float or None
         2πf when s is on the imaginary axis (the engine's case); None for a real s.
+    inverse_omega : ndarray of float or None
+        1/ω, when the engine has it (infinite at 0 Hz).
     """
 
     s: np.ndarray
@@ -53,6 +55,20 @@ class StampContext:
     values: dict[str, Any]
     prepared: Any = None
     omega: np.ndarray | None = None
+    inverse_omega: np.ndarray | None = None
+
+    def over_omega(self, value: Any) -> Any:
+        """1/(ω·value), real; infinite at 0 Hz (the closed form then defers to elimination).
+
+        Written (1/ω)·(1/value): both reciprocals are of the small factors ((1, n) and
+        (variants, 1)), so the full-size work is one product. The caller sets ``np.errstate``
+        for the division at 0 Hz (the ladder does, once per chunk).
+        """
+        inverse = self.inverse_omega
+        if inverse is None:
+            assert self.omega is not None
+            inverse = 1.0 / self.omega
+        return inverse * (1.0 / np.asarray(value))
 
     def times_s(self, value: Any) -> Any:
         """s·value. On the jω axis the product is built from real arrays: numpy's complex
@@ -127,9 +143,10 @@ class Resistor(Element):
     kind: ClassVar[str] = "resistor"
     rules: ClassVar[dict[str, str]] = {"resistance": "nonzero"}
 
-    def immittance(self, context: StampContext) -> tuple[str, Any]:
-        """``("z", R)``: the element as an impedance."""
-        return "z", context.values["resistance"]
+    def parts(self, context: StampContext, wanted: str) -> tuple[str, Any, Any]:
+        """``("z", R, 0)`` or ``("y", 1/R, 0)``: parts as in :mod:`oneport.circuit.ladder`."""
+        resistance = context.values["resistance"]
+        return ("z", resistance, 0.0) if wanted == "z" else ("y", 1.0 / resistance, 0.0)
 
     def stamp(
         self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
@@ -163,9 +180,18 @@ class Inductor(Element):
             return impedance + values["rser"]
         return impedance
 
-    def immittance(self, context: StampContext) -> tuple[str, Any]:
-        """``("z", Z)``."""
-        return "z", self.impedance(context)
+    def parts(self, context: StampContext, wanted: str) -> tuple[str, Any, Any]:
+        """On the jω axis ``("z", rser or ωL/Q, ωL)``; lossless and wanted as an admittance,
+        ``("y", 0, 1/(ωL))`` (the susceptance −1/(ωL), carried negated)."""
+        values = context.values
+        assert context.omega is not None
+        lossless = "q" not in values and "rser" not in values
+        if lossless and wanted == "y":
+            return "y", 0.0, context.over_omega(values["inductance"])
+        reactance = context.omega * values["inductance"]
+        if "q" in values:
+            return "z", reactance / values["q"], reactance
+        return "z", values.get("rser", 0.0), reactance
 
     def stamp(
         self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
@@ -201,9 +227,19 @@ class Capacitor(Element):
             return admittance / (1.0 + admittance * values["rser"])
         return admittance
 
-    def immittance(self, context: StampContext) -> tuple[str, Any]:
-        """``("y", Y)``."""
-        return "y", self.admittance(context)
+    def parts(self, context: StampContext, wanted: str) -> tuple[str, Any, Any]:
+        """On the jω axis, lossless: ``("y", 0, −ωC)`` (the susceptance carried negated) or
+        ``("z", 0, −1/(ωC))``; with a loss, ``("z", rser or 1/(ωCQ), −1/(ωC))``."""
+        values = context.values
+        assert context.omega is not None
+        capacitance = values["capacitance"]
+        lossless = "q" not in values and "rser" not in values
+        if lossless and wanted == "y":
+            return "y", 0.0, context.omega * -np.asarray(capacitance)
+        reactance = context.over_omega(-np.asarray(capacitance))
+        if "q" in values:
+            return "z", context.over_omega(np.asarray(capacitance) * values["q"]), reactance
+        return "z", values.get("rser", 0.0), reactance
 
     def stamp(
         self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any

@@ -101,7 +101,7 @@ def scattering(
         for first in range(0, problem.variants, variant_chunk):
             variants = slice(first, min(first + variant_chunk, problem.variants))
             chunk = _Chunk(problem, frequency_hz[window], window, variants, buffer, compact)
-            result[variants, :, :, window] = chunk.scattering(reference_impedance_ohm)
+            chunk.scattering(reference_impedance_ohm, result[variants, :, :, window])
     return result
 
 
@@ -122,6 +122,9 @@ class _Chunk:
         self.compact = compact
         self.frequency_hz = frequency_hz[None, :]
         self.s = 2j * math.pi * self.frequency_hz
+        self.omega = 2.0 * math.pi * self.frequency_hz
+        with np.errstate(divide="ignore"):
+            self.inverse_omega = 1.0 / self.omega
         self.window = window
         self.variants = variants
         self.count = variants.stop - variants.start
@@ -142,25 +145,26 @@ class _Chunk:
                 frequency_hz=self.frequency_hz,
                 values=values,
                 prepared=prepared,
-                omega=2.0 * math.pi * self.frequency_hz,
+                omega=self.omega,
+                inverse_omega=self.inverse_omega,
             )
         return self._contexts[element.name]
 
-    def scattering(self, reference_impedance_ohm: np.ndarray) -> np.ndarray:
-        """S of this chunk, shape (variants, p, p, frequencies)."""
-        shape = (self.count, self.frequency_hz.shape[1])
+    def scattering(self, reference_impedance_ohm: np.ndarray, out: np.ndarray) -> None:
+        """S of this chunk into ``out``, shape (variants, p, p, frequencies)."""
         ladder = self.problem.ladder
         if ladder is not None and not self.problem.force_elimination:
-            gamma = np.broadcast_to(
-                evaluate_ladder(ladder, self.context, float(reference_impedance_ohm[0])), shape
+            gamma = evaluate_ladder(
+                ladder, self.context, float(reference_impedance_ohm[0]), out[:, 0, 0, :]
             )
+            # One sum finds any non-finite point (a finite sum overflowing only costs a detour).
+            if np.isfinite(np.sum(gamma)):
+                return
             good = np.isfinite(gamma)
-            if good.all():
-                return gamma[:, None, None, :]
             solved = self._eliminate(reference_impedance_ohm)
-            gamma = np.where(good, gamma, solved[:, 0, 0, :])
-            return gamma[:, None, None, :]
-        return self._eliminate(reference_impedance_ohm)
+            gamma[~good] = solved[:, 0, 0, :][~good]
+            return
+        out[...] = self._eliminate(reference_impedance_ohm)
 
     def _eliminate(self, reference_impedance_ohm: np.ndarray) -> np.ndarray:
         if self.compact is not None:

@@ -89,35 +89,90 @@ def evaluate_ladder(
     tree: LadderNode,
     context_of: Callable[[Element], StampContext],
     reference_impedance_ohm: float,
+    out: np.ndarray,
 ) -> np.ndarray:
-    """Reflection at the port, referred to ``reference_impedance_ohm``; may hold non-finite values.
+    """Reflection at the port, referred to ``reference_impedance_ohm``, written into ``out``
+    (complex, of the chunk's shape (variants, frequencies)); may hold non-finite values.
+
+    The sums and reciprocals run on real and imaginary parts held apart, as real arrays: a
+    resistance stays a column of shape (variants, 1), a reactance costs one real product, and
+    a reciprocal a few real operations instead of numpy's complex division (several times
+    slower on this kind of broadcast). An impedance is carried as (R, X); an admittance
+    G + jB as (G, −B), its conjugate, so that a reciprocal either way is (a, b)/(a² + b²)
+    with no change of sign. Only Γ is assembled as complex.
 
     Parameters
     ----------
     tree : LadderNode
         From :func:`reduce_ladder`.
     context_of : callable
-        The stamp context (s, resolved values) of an element for the current chunk.
+        The stamp context (jω, resolved values) of an element for the current chunk.
     reference_impedance_ohm : float
         Real, positive Z0, Ω.
+    out : ndarray of complex
+        Where Γ goes (the engine's result for this chunk); returned.
     """
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        form, value = _immittance(tree, context_of)
+        form, real, imaginary = _parts(tree, context_of, "z")
+        # With c = Z0 for an impedance, 1/Z0 for an admittance, r = real + c and
+        # k = 2c/(r² + imaginary²): Γ = (Z − Z0)/(Z + Z0) = 1 − r·k + j·X·k, and
+        # Γ = (1 − Y·Z0)/(1 + Y·Z0) = r·k − 1 − j·B·k = r·k − 1 + j·(−B)·k.
+        c = reference_impedance_ohm if form == "z" else 1.0 / reference_impedance_ohm
+        r = real + c
+        k = (2.0 * c) / (r * r + imaginary * imaginary)
+        rk = r * k
         if form == "z":
-            return np.asarray((value - reference_impedance_ohm) / (value + reference_impedance_ohm))
-        scaled = value * reference_impedance_ohm
-        return np.asarray((1.0 - scaled) / (1.0 + scaled))
+            np.subtract(1.0, rk, out=out.real)
+        else:
+            np.subtract(rk, 1.0, out=out.real)
+        np.multiply(imaginary, k, out=out.imag)
+        return out
 
 
-def _immittance(node: LadderNode, context_of: Callable[[Element], StampContext]) -> tuple[str, Any]:
-    """``("z", impedance)`` or ``("y", admittance)``, whichever needs no reciprocal."""
+Parts = tuple[str, Any, Any]
+
+
+def _parts(node: LadderNode, context_of: Callable[[Element], StampContext], wanted: str) -> Parts:
+    """``(form, real, imaginary)`` of the node as an impedance (R, X) or an admittance
+    (G, −B): the form its parent sums, ``wanted``, when that is cheap, else its natural one.
+    A part that is the float 0.0 is known to be zero and costs nothing."""
     if node.form == "leaf":
         element = node.element
         assert isinstance(element, Resistor | Inductor | Capacitor)
-        return element.immittance(context_of(element))
-    wanted = "z" if node.form == "series" else "y"
-    total: Any = 0.0
+        return element.parts(context_of(element), wanted)
+    own = "z" if node.form == "series" else "y"
+    total_real: Any = 0.0
+    total_imaginary: Any = 0.0
     for child in node.children:
-        form, value = _immittance(child, context_of)
-        total = total + (value if form == wanted else 1.0 / value)
-    return wanted, total
+        form, real, imaginary = _parts(child, context_of, own)
+        if form != own:
+            real, imaginary = _reciprocal(real, imaginary)
+        total_real = _add(total_real, real)
+        total_imaginary = _add(total_imaginary, imaginary)
+    return own, total_real, total_imaginary
+
+
+def _reciprocal(real: Any, imaginary: Any) -> tuple[Any, Any]:
+    """Between (R, X) and (G, −B): 1/(a + jb) = (a − jb)/(a² + b²), carried as (a, b)/(a² + b²).
+
+    The cases of a or b known to be zero cost one division (of the other part) or none.
+    """
+    if _is_zero(imaginary):
+        return 1.0 / real, 0.0
+    if _is_zero(real):
+        return 0.0, 1.0 / imaginary
+    magnitude = real * real + imaginary * imaginary
+    return real / magnitude, imaginary / magnitude
+
+
+def _add(total: Any, value: Any) -> Any:
+    if _is_zero(total):
+        return value
+    if _is_zero(value):
+        return total
+    return total + value
+
+
+def _is_zero(value: Any) -> bool:
+    """True for the exact float 0.0 placeholder (never for arrays, whatever they hold)."""
+    return isinstance(value, float) and value == 0.0
