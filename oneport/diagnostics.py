@@ -78,7 +78,9 @@ def foster_jump_indices(gamma: np.ndarray) -> tuple[tuple[np.ndarray, ...], np.n
     # Im Z has the sign of Im Γ, Im Y the opposite sign.
     parallel = positive[..., :-1] & negative[..., 1:]
     series = negative[..., :-1] & positive[..., 1:]
-    index = np.nonzero(parallel | series)
+    jumps = parallel | series
+    # flatnonzero and unravel_index: the same indices as nonzero, several times faster.
+    index = np.unravel_index(np.flatnonzero(jumps), jumps.shape)
     kind = parallel[index]
     before = gamma[index]
     after = gamma[(*index[:-1], index[-1] + 1)]

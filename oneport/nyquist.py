@@ -106,9 +106,15 @@ def phase_steps(
     needs the unwrapped phase itself.
     """
     f = characteristic(loop_gain) if characteristic_values is None else characteristic_values
-    steps = np.diff(np.angle(f), axis=-1)
-    # Differences of principal angles lie in (−2π, 2π); beyond ±π the short way round is the
-    # other one. Exactly ±π stays, as numpy.unwrap leaves it. (In place: few samples change.)
+    return wrap_steps(np.diff(np.angle(f), axis=-1))
+
+
+def wrap_steps(steps: np.ndarray) -> np.ndarray:
+    """Differences of principal angles, in place, taken the short way round (rad).
+
+    They lie in (−2π, 2π); beyond ±π the short way round is the other one. Exactly ±π stays,
+    as ``numpy.unwrap`` leaves it. (In place: few samples change.)
+    """
     steps[steps > np.pi] -= 2.0 * np.pi
     steps[steps < -np.pi] += 2.0 * np.pi
     return steps
@@ -158,7 +164,21 @@ def count_encirclements(
     loop_gain = np.asarray(loop_gain, dtype=complex)
     steps = phase_steps(loop_gain) if steps is None else steps
     in_band = np.sum(steps, axis=-1)
-    first, last = 1.0 - loop_gain[..., 0], 1.0 - loop_gain[..., -1]
+    return count_from_phase_change(
+        in_band, loop_gain[..., 0], loop_gain[..., -1], sign_low, sign_high
+    )
+
+
+def count_from_phase_change(
+    in_band: np.ndarray,
+    first_loop_gain: np.ndarray,
+    last_loop_gain: np.ndarray,
+    sign_low: np.ndarray,
+    sign_high: np.ndarray,
+) -> np.ndarray:
+    """N_cw from the in-band change of arg F (the sum of :func:`phase_steps`, rad), L at the
+    first and last samples, and the signs of F(0) and F(∞): the edges closed to the real axis."""
+    first, last = 1.0 - first_loop_gain, 1.0 - last_loop_gain
     low = np.angle(first) - _reference_angle(sign_low, first.imag)
     high = _reference_angle(sign_high, last.imag) - np.angle(last)
     return np.rint(-(in_band + low + high) / np.pi).astype(int)
@@ -243,7 +263,11 @@ def close_edge(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> Ed
     )
 
 
-def _smoothed(values: np.ndarray, index: int, half_width: int = 2) -> np.ndarray:
+#: Samples either side of an edge that its medians take (five-point windows).
+_HALF_WINDOW = 2
+
+
+def _smoothed(values: np.ndarray, index: int, half_width: int = _HALF_WINDOW) -> np.ndarray:
     """Median of real and imaginary parts over a few samples around ``index`` (last axis)."""
     window = values[..., max(0, index - half_width) : index + half_width + 1]
     return np.median(window.real, axis=-1) + 1j * np.median(window.imag, axis=-1)
@@ -254,13 +278,7 @@ def motion_per_octave(frequency_hz: np.ndarray, values: np.ndarray, side: str) -
 
     ``values`` has shape (..., n); the result has shape (...).
     """
-    last = frequency_hz.size - 1
-    if side == "low":
-        edge = 0
-        inner = min(int(np.searchsorted(frequency_hz, 2.0 * frequency_hz[0])), last)
-    else:
-        edge = last
-        inner = max(int(np.searchsorted(frequency_hz, 0.5 * frequency_hz[-1], side="right")) - 1, 0)
+    edge, inner = _octave_ends(frequency_hz, side)
     values = np.asarray(values)
     if frequency_hz[edge] == 0 or frequency_hz[inner] == 0:
         return np.zeros(values.shape[:-1])
@@ -269,6 +287,33 @@ def motion_per_octave(frequency_hz: np.ndarray, values: np.ndarray, side: str) -
         return np.zeros(values.shape[:-1])
     change = np.abs(_smoothed(values, inner) - _smoothed(values, edge))
     return change / octaves
+
+
+def _octave_ends(frequency_hz: np.ndarray, side: str) -> tuple[int, int]:
+    """Sample indices of the edge and of the inner end of the outermost octave at ``side``."""
+    last = frequency_hz.size - 1
+    if side == "low":
+        return 0, min(int(np.searchsorted(frequency_hz, 2.0 * frequency_hz[0])), last)
+    inner = max(int(np.searchsorted(frequency_hz, 0.5 * frequency_hz[-1], side="right")) - 1, 0)
+    return last, inner
+
+
+def closure_columns(frequency_hz: np.ndarray) -> np.ndarray:
+    """The sample indices :func:`close_edges` reads, at both edges, ascending.
+
+    They are the five-sample windows (:func:`_smoothed`) around each edge sample and around the
+    inner end of its outermost octave, so ``close_edges(frequency_hz[c], loop_gain[..., c],
+    side)`` equals ``close_edges(frequency_hz, loop_gain, side)``: a sweep computes L at these
+    few columns for the closures instead of keeping every sample.
+    """
+    count = frequency_hz.size
+    columns: set[int] = set()
+    for side in ("low", "high"):
+        for centre in _octave_ends(frequency_hz, side):
+            columns.update(
+                range(max(0, centre - _HALF_WINDOW), min(count, centre + _HALF_WINDOW + 1))
+            )
+    return np.array(sorted(columns), dtype=np.intp)
 
 
 def _extend_to(f: np.ndarray, values: np.ndarray, edge_frequency: float, side: str) -> float:
