@@ -5,6 +5,7 @@
 - A finer grid over the same lumped circuit does not change a resolved count.
 - The same data in Hz or GHz, or with the load referred to another Z0, give the same answer.
 - ``count_encirclements`` on stacked variants equals row-by-row calls.
+- ``close_edges`` reads only ``closure_columns``: on those columns it gives the same answer.
 """
 
 from __future__ import annotations
@@ -256,3 +257,31 @@ def test_stacked_count_equals_row_by_row(seed: int, rows: int, points: int, scal
     assert np.array_equal(
         deeper[1], nyquist.count_encirclements(loop_gain[::-1], sign_low[::-1], sign_high[::-1])
     )
+
+
+@settings(max_examples=150, deadline=None)
+@given(
+    seed=st.integers(0, 2**32 - 1),
+    points=st.integers(2, 400),
+    start_hz=st.sampled_from([0.0, 1e3, 1e6, 0.3e9]),
+    span=log_uniform(1.01, 1e4),
+    logarithmic=st.booleans(),
+)
+def test_edge_closures_need_only_their_columns(
+    seed: int, points: int, start_hz: float, span: float, logarithmic: bool
+) -> None:
+    rng = np.random.default_rng(seed)
+    low = start_hz if start_hz > 0 else 1e6
+    if logarithmic:
+        frequency_hz = np.geomspace(low, low * span, points)
+    else:
+        frequency_hz = np.linspace(start_hz, low * span, points)
+    frequency_hz = np.unique(frequency_hz)
+    loop_gain = 2.0 * (rng.normal(size=(3, frequency_hz.size)) + 1j * rng.normal(size=(3, 1)))
+    columns = nyquist.closure_columns(frequency_hz)
+    for side in ("low", "high"):
+        whole = nyquist.close_edges(frequency_hz, loop_gain, side)
+        few = nyquist.close_edges(frequency_hz[columns], loop_gain[:, columns], side)
+        np.testing.assert_array_equal(few.basis_code, whole.basis_code)
+        np.testing.assert_array_equal(few.sign_at_limit, whole.sign_at_limit)
+        np.testing.assert_array_equal(few.motion, whole.motion)

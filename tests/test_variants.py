@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 
 import oneport
+from oneport import variants
 from oneport.variants import VERDICT_CODES, analyse_variants
 
 from helpers import Z0, gamma_of
@@ -63,3 +64,23 @@ def test_leading_axes_broadcast(family):
     assert grid.verdict_code.shape == (6, 10)
     np.testing.assert_array_equal(grid.verdict_code.reshape(-1), flat.verdict_code)
     np.testing.assert_array_equal(grid.encirclements.reshape(-1), flat.encirclements)
+
+
+@pytest.mark.parametrize("load_poles_known", [False, True])
+def test_block_size_changes_nothing(family, monkeypatch, load_poles_known):
+    """The pass over samples runs in cache-sized blocks of variants; one row per block, a few,
+    and all rows at once give identical arrays."""
+    frequency_hz, gamma_device, gamma_load = family
+
+    def analysis(block_samples: int) -> variants.VariantAnalysis:
+        monkeypatch.setattr(variants, "BLOCK_SAMPLES", block_samples)
+        return analyse_variants(
+            frequency_hz, gamma_device, gamma_load, Z0, load_poles_known=load_poles_known
+        )
+
+    reference = analysis(10**9)
+    points = frequency_hz.size
+    for block_samples in (1, 7 * points + 3):
+        other = analysis(block_samples)
+        for name, value in vars(reference).items():
+            np.testing.assert_array_equal(getattr(other, name), value, err_msg=name)

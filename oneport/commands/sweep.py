@@ -86,7 +86,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     )
     run_group.add_argument("--workers", type=int, help="start a local Dask cluster with N workers")
     run_group.add_argument(
-        "--threads", type=int, help="threads in this process (default: one per core)"
+        "--threads", type=int, help="threads in this process (default 1; --workers uses cores)"
     )
     run_group.add_argument(
         "--chunk-size", type=int, help="variants per chunk (default: about 1e6 samples)"

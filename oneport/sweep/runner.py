@@ -11,7 +11,6 @@ finished, which stay valid.
 from __future__ import annotations
 
 import itertools
-import os
 from collections.abc import Callable, Iterator
 from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
 from dataclasses import dataclass, field
@@ -105,8 +104,10 @@ def run_sweep(
     """Run every chunk of ``plan``; ``progress(n)`` is called with each finished chunk's size.
 
     ``scheduler`` (``tcp://host:port``) sends chunks to a running Dask cluster; ``workers``
-    > 1 starts a local one. Without either, chunks run here on ``threads`` threads (default:
-    one per core). Every chunk is computed alone, so the table is the same in every case.
+    > 1 starts a local one. Without either, chunks run here on ``threads`` threads (default
+    one: the analysis works in cache-sized blocks, whose short numpy calls leave threads
+    waiting on the interpreter lock; measured in benchmarks/README.md). Every chunk is computed
+    alone, so the table is the same in every case.
     """
     bounds = chunk_bounds(plan.variants, frequency_hz.size, chunk_size)
     finished: dict[int, dict[str, np.ndarray]] = {}
@@ -167,7 +168,7 @@ def _execute_here(
 ) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
     """Chunks in this process: on ``threads`` threads (numpy releases the GIL in its loops),
     with at most two chunks per thread in flight so memory stays bounded."""
-    count = max(1, threads if threads is not None else (os.cpu_count() or 1))
+    count = max(1, threads if threads is not None else 1)
     if count == 1 or len(bounds) == 1:
         for index, (start, stop) in enumerate(bounds):
             yield index, run_chunk(source, plan.chunk(start, stop), *arguments)
