@@ -73,19 +73,19 @@ def foster_jump_indices(gamma: np.ndarray) -> tuple[tuple[np.ndarray, ...], np.n
     Z/Z0 = (1 + Γ)/(1 − Γ) written out): cheap enough for every variant of a sweep.
     """
     gamma = np.asarray(gamma, dtype=complex)
-    imaginary = gamma.imag
-    positive, negative = imaginary > 0, imaginary < 0
-    # Im Z has the sign of Im Γ, Im Y the opposite sign.
-    parallel = positive[..., :-1] & negative[..., 1:]
-    series = negative[..., :-1] & positive[..., 1:]
-    jumps = parallel | series
-    # flatnonzero and unravel_index: the same indices as nonzero, several times faster.
-    index = np.unravel_index(np.flatnonzero(jumps), jumps.shape)
-    kind = parallel[index]
+    negative = gamma.imag < 0
+    # Candidates: Im Γ < 0 starts or stops (one pass over the samples). flatnonzero and
+    # unravel_index give the indices of nonzero, several times faster.
+    change = negative[..., :-1] != negative[..., 1:]
+    index = np.unravel_index(np.flatnonzero(change), change.shape)
     before = gamma[index]
     after = gamma[(*index[:-1], index[-1] + 1)]
-    keep = _reactive_jump(before, kind) & _reactive_jump(after, kind)
-    return tuple(i[keep] for i in index), kind[keep]
+    # Im Z has the sign of Im Γ, Im Y the opposite sign: strictly + to − is a pole of Z,
+    # − to + a zero (a change to or from an exact 0 is neither).
+    parallel = (before.imag > 0) & (after.imag < 0)
+    series = (before.imag < 0) & (after.imag > 0)
+    keep = (parallel | series) & _reactive_jump(before, parallel) & _reactive_jump(after, parallel)
+    return tuple(i[keep] for i in index), parallel[keep]
 
 
 def _reactive_jump(gamma: np.ndarray, parallel: np.ndarray) -> np.ndarray:
