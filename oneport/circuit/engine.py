@@ -98,11 +98,30 @@ def scattering(
     buffer = np.empty(size * (size + ports) * variant_chunk * frequency_chunk, dtype=complex)
     for start in range(0, frequencies, frequency_chunk):
         window = slice(start, start + frequency_chunk)
+        axis = _Axis.of(frequency_hz[window])
         for first in range(0, problem.variants, variant_chunk):
             variants = slice(first, min(first + variant_chunk, problem.variants))
-            chunk = _Chunk(problem, frequency_hz[window], window, variants, buffer, compact)
+            chunk = _Chunk(problem, axis, window, variants, buffer, compact)
             chunk.scattering(reference_impedance_ohm, result[variants, :, :, window])
     return result
+
+
+@dataclass(frozen=True)
+class _Axis:
+    """A frequency window as a row (1, n): f, s = jω, ω and 1/ω (infinite at 0 Hz)."""
+
+    frequency_hz: np.ndarray
+    s: np.ndarray
+    omega: np.ndarray
+    inverse_omega: np.ndarray
+
+    @classmethod
+    def of(cls, frequency_hz: np.ndarray) -> _Axis:
+        row = frequency_hz[None, :]
+        omega = 2.0 * math.pi * row
+        with np.errstate(divide="ignore"):
+            inverse = 1.0 / omega
+        return cls(row, 1j * omega, omega, inverse)
 
 
 class _Chunk:
@@ -111,7 +130,7 @@ class _Chunk:
     def __init__(
         self,
         problem: Problem,
-        frequency_hz: np.ndarray,
+        axis: _Axis,
         window: slice,
         variants: slice,
         buffer: np.ndarray,
@@ -120,11 +139,8 @@ class _Chunk:
         self.problem = problem
         self.buffer = buffer
         self.compact = compact
-        self.frequency_hz = frequency_hz[None, :]
-        self.s = 2j * math.pi * self.frequency_hz
-        self.omega = 2.0 * math.pi * self.frequency_hz
-        with np.errstate(divide="ignore"):
-            self.inverse_omega = 1.0 / self.omega
+        self.axis = axis
+        self.frequency_hz = axis.frequency_hz
         self.window = window
         self.variants = variants
         self.count = variants.stop - variants.start
@@ -141,12 +157,12 @@ class _Chunk:
             if prepared is not None:
                 prepared = prepared[..., self.window]
             self._contexts[element.name] = StampContext(
-                s=self.s,
+                s=self.axis.s,
                 frequency_hz=self.frequency_hz,
                 values=values,
                 prepared=prepared,
-                omega=self.omega,
-                inverse_omega=self.inverse_omega,
+                omega=self.axis.omega,
+                inverse_omega=self.axis.inverse_omega,
             )
         return self._contexts[element.name]
 
