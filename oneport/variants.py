@@ -2,9 +2,10 @@
 
 A sweep or a Monte Carlo run hands over loop gains of shape (..., n) on one grid; this room
 returns per-variant arrays (count, verdict code, margins, oscillation frequency) computed with
-the same rules as the single check (``nyquist.close_edges``, ``nyquist.count_encirclements``,
-the unwrapping limit, and Foster's test on the load), so a variant's row equals what
-:func:`oneport.check` says of it. No Python loop over variants.
+the same rules as the single check (``nyquist.close_edges``, the phase steps and count of
+``nyquist.count_encirclements``, the unwrapping limit, and Foster's test on the load), so a
+variant's row equals what :func:`oneport.check` says of it. No Python loop over variants:
+one pass over the samples in cache-sized blocks of variants, then per-variant arithmetic.
 """
 
 from __future__ import annotations
@@ -216,7 +217,7 @@ def _sample_pass(device: np.ndarray, load: np.ndarray, measured_load: bool) -> _
         negative = l_block.imag < 0
         change = negative[:, :-1] != negative[:, 1:]
         # flatnonzero and divmod: the indices of nonzero, several times faster.
-        rows, columns = np.divmod(np.flatnonzero(change), change.shape[1])
+        rows, columns = np.divmod(np.flatnonzero(change), max(change.shape[1], 1))
         crossings.append(
             (rows + start, columns, l_block[rows, columns], l_block[rows, columns + 1])
         )
