@@ -204,9 +204,12 @@ def main() -> None:
     loop_count = 20 if arguments.quick else 100
     loop = scikit_rf_loop(frequency_hz, plan, loop_count) * variants / loop_count
     table = result.table
-    stable = float(np.mean(table["verdict_code"] == 0))
+    shares = np.bincount(table["verdict_code"], minlength=3) / variants
     known = table["count_known"]
-    print(f"variants {variants} x {frequency_hz.size} points; {stable:.1%} stable")
+    print(
+        f"variants {variants} x {frequency_hz.size} points; stable {shares[0]:.1%}, unstable"
+        f" {shares[1]:.1%}, inconclusive {shares[2]:.1%}"
+    )
     print(f"sweep (one thread, default)  {seconds:8.2f} s   (best of 2)")
     print(f"sweep, two threads           {two_threads:8.2f} s   (best of 2)")
     print(f"numpy floor, plain           {floor:8.2f} s   sweep / floor = {seconds / floor:5.2f}")
