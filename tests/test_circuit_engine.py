@@ -82,6 +82,43 @@ def test_dc_points_fall_back_to_elimination() -> None:
     assert line.gamma(frequency_hz)[0] == pytest.approx(-0.25, abs=1e-15)
 
 
+@pytest.mark.parametrize(
+    "netlist",
+    [
+        "C1 1 2 1p\nC2 2 0 2p\nR1 1 0 30\n.oneport 1",  # node 2 reached only through capacitors
+        "L1 2 0 1n\nL2 2 0 2n\nR1 1 2 30\n.oneport 1",  # a loop of inductors
+    ],
+)
+def test_closed_form_refuses_at_dc_what_elimination_refuses(netlist: str) -> None:
+    # At 0 Hz these circuits have no unique solution; the closed form must not return its
+    # ω → 0 limit where elimination, the reference path, refuses.
+    circuit = parse_circuit(netlist, source="dc")
+    frequency_hz = np.array([0.0, 1e6, 1e9])
+    with pytest.raises(InputError, match="singular"):
+        circuit.evaluate(frequency_hz, 50.0, {}, method="elimination")
+    with pytest.raises(InputError, match="singular"):
+        circuit.evaluate(frequency_hz, 50.0, {})
+    above = frequency_hz[1:]
+    np.testing.assert_allclose(
+        circuit.evaluate(above, 50.0, {}),
+        circuit.evaluate(above, 50.0, {}, method="elimination"),
+        rtol=0,
+        atol=1e-13,
+    )
+
+
+def test_resistances_cancelling_the_reference_take_the_elimination_answer() -> None:
+    # −50 Ω in parallel with 50 Ω is an open: Γ = 1 would need 0/0 in the closed form. Here
+    # 50 Ω in series with −50 Ω is a short across 20 Ω: Γ = −1 (hand calculation).
+    short = parse_circuit("R1 1 2 50\nR2 2 0 -50\nR3 1 0 20\n.oneport 1", source="short")
+    frequency_hz = np.array([1e9, 2e9])
+    np.testing.assert_allclose(short.gamma(frequency_hz), [-1.0, -1.0], rtol=0, atol=1e-15)
+    cancelling = parse_circuit("R1 1 0 -50\n.oneport 1", source="cancelling")
+    for method in ("elimination", "auto"):
+        with pytest.raises(InputError, match="singular"):
+            cancelling.evaluate(frequency_hz, 50.0, {}, method=method)
+
+
 def test_singular_equations_are_refused_with_frequency_and_variant() -> None:
     circuit = parse_circuit(".set R=-30\nR1 1 0 R\n.oneport 1", source="pole")
     # −50 ohm in a 50 ohm reference puts a pole of Γ on the axis: no unique solution.

@@ -58,11 +58,11 @@ class StampContext:
     inverse_omega: np.ndarray | None = None
 
     def over_omega(self, value: Any) -> Any:
-        """1/(ω·value), real; infinite at 0 Hz (the closed form then defers to elimination).
+        """1/(ω·value), real; not finite at 0 Hz (the closed form then defers to elimination).
 
         Written (1/ω)·(1/value): both reciprocals are of the small factors ((1, n) and
-        (variants, 1)), so the full-size work is one product. The caller sets ``np.errstate``
-        for the division at 0 Hz (the ladder does, once per chunk).
+        (variants, 1)), so the full-size work is one product. Without the engine's 1/ω (NaN at
+        0 Hz), the caller sets ``np.errstate`` for the division there.
         """
         inverse = self.inverse_omega
         if inverse is None:

@@ -108,7 +108,12 @@ def scattering(
 
 @dataclass(frozen=True)
 class _Axis:
-    """A frequency window as a row (1, n): f, s = jω, ω and 1/ω (infinite at 0 Hz)."""
+    """A frequency window as a row (1, n): f, s = jω, ω and 1/ω.
+
+    1/ω is NaN at 0 Hz, not infinite: a lossless reactance there is an open or a short whose
+    0·∞ the closed form cannot settle, so those points come back non-finite and are solved by
+    elimination (which answers, or refuses a circuit that is singular at DC).
+    """
 
     frequency_hz: np.ndarray
     s: np.ndarray
@@ -120,7 +125,7 @@ class _Axis:
         row = frequency_hz[None, :]
         omega = 2.0 * math.pi * row
         with np.errstate(divide="ignore"):
-            inverse = 1.0 / omega
+            inverse = np.where(omega == 0.0, np.nan, 1.0 / omega)
         return cls(row, 1j * omega, omega, inverse)
 
 

@@ -117,7 +117,9 @@ def evaluate_ladder(
         # With c = Z0 for an impedance, 1/Z0 for an admittance, r = real + c and
         # k = 2c/(r² + imaginary²): Γ = (Z − Z0)/(Z + Z0) = 1 − r·k + j·X·k, and
         # Γ = (1 − Y·Z0)/(1 + Y·Z0) = r·k − 1 − j·B·k = r·k − 1 + j·(−B)·k.
-        c = reference_impedance_ohm if form == "z" else 1.0 / reference_impedance_ohm
+        # numpy scalars: a zero denominator (a resistance cancelling Z0) gives inf or NaN under
+        # errstate, for elimination to settle, where Python floats would raise.
+        c = np.float64(reference_impedance_ohm if form == "z" else 1.0 / reference_impedance_ohm)
         r = real + c
         k = (2.0 * c) / (r * r + imaginary * imaginary)
         rk = r * k
@@ -158,11 +160,15 @@ def _reciprocal(real: Any, imaginary: Any) -> tuple[Any, Any]:
     The cases of a or b known to be zero cost one division (of the other part) or none.
     """
     if _is_zero(imaginary):
-        return 1.0 / real, 0.0
+        return _ONE / real, 0.0
     if _is_zero(real):
-        return 0.0, 1.0 / imaginary
+        return 0.0, _ONE / imaginary
     magnitude = real * real + imaginary * imaginary
     return real / magnitude, imaginary / magnitude
+
+
+#: A numpy 1: dividing it by a Python 0.0 gives inf under errstate instead of raising.
+_ONE = np.float64(1.0)
 
 
 def _add(total: Any, value: Any) -> Any:
