@@ -83,8 +83,10 @@ def foster_jump_indices(gamma: np.ndarray) -> tuple[tuple[np.ndarray, ...], np.n
     # Im Z has the sign of Im Γ, Im Y the opposite sign: strictly + to − is a pole of Z,
     # − to + a zero (a change to or from an exact 0 is neither).
     parallel = (before.imag > 0) & (after.imag < 0)
-    series = (before.imag < 0) & (after.imag > 0)
-    keep = (parallel | series) & _reactive_jump(before, parallel) & _reactive_jump(after, parallel)
+    strict = parallel | ((before.imag < 0) & (after.imag > 0))
+    index = tuple(i[strict] for i in index)
+    before, after, parallel = before[strict], after[strict], parallel[strict]
+    keep = _reactive_jump(before, parallel) & _reactive_jump(after, parallel)
     return tuple(i[keep] for i in index), parallel[keep]
 
 

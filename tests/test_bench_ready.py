@@ -612,3 +612,34 @@ def test_return_loss_bound_needs_a_sweep(tmp_path):
     assert code == 2
     assert len(err.strip().splitlines()) == 1
     assert "at least 5" in err
+
+
+def test_foster_candidates_are_strict_sign_changes_of_im_gamma():
+    # The docstring's rule written out interval by interval: Im Z from above +T·Z0 to below
+    # −T·Z0 (a pole of Z), or the same on Im Y·Z0 (a zero), both samples reactive. Samples with
+    # Im Γ exactly 0 start no interval, and a huge |Γ| raises no floating-point warning.
+    from oneport import diagnostics
+
+    gamma = np.array(
+        [
+            *(1e200 + 0j, 0.5 - 0.5j, 0.1 + 0.2j, 0.2 + 0j, -0.3 - 0.1j),  # huge, then a real one
+            *(0.99 + 0.1j, 0.99 - 0.1j, -0.99 - 0.1j, -0.99 + 0.1j),  # a pole, then a zero of Z
+            *(0.0 + 0.9j, 0.0 - 0.9j),
+        ]
+    )
+    threshold, ratio = diagnostics.FOSTER_JUMP_THRESHOLD, diagnostics.FOSTER_REACTIVE_RATIO
+    z = (1 + gamma) / (1 - gamma)
+    expected = []
+    for i in range(gamma.size - 1):
+        a, b = gamma[i].imag, gamma[i + 1].imag
+        if a > 0 > b:
+            x = z[i : i + 2]
+        elif a < 0 < b:
+            x = 1 / z[i : i + 2]
+        else:
+            continue
+        if np.all(np.abs(x.imag) > threshold) and np.all(np.abs(x.imag) >= ratio * np.abs(x.real)):
+            expected.append((i, bool(a > 0)))
+    (index,), parallel = diagnostics.foster_jump_indices(gamma)
+    assert list(zip(index.tolist(), parallel.tolist(), strict=True)) == expected
+    assert (5, True) in expected and (7, False) in expected  # the rule finds both kinds here
