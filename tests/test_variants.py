@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 import oneport
-from oneport import variants
+from oneport import nyquist, variants
 from oneport.variants import VERDICT_CODES, analyse_variants
 
 from helpers import Z0, gamma_of
@@ -54,7 +54,52 @@ def test_every_variant_matches_a_single_check(family):
         else:
             assert np.isnan(analysis.oscillation_frequency_hz[index])
         assert analysis.min_distance[index] == pytest.approx(single.margins.modulus_margin)
+        assert analysis.min_distance_frequency_hz[index] == (
+            single.margins.modulus_margin_frequency_hz
+        )
+        assert analysis.worst_loop_gain[index] == pytest.approx(np.max(np.abs(single.loop_gain)))
+        assert analysis.largest_phase_step_rad[index] == pytest.approx(
+            single.largest_phase_step_rad, rel=1e-12
+        )
+        assert bool(analysis.hidden_resonance[index]) == _load_resonance_at_stake(single)
+        low, high = single.closures
+        assert nyquist.CLOSURE_BASES[analysis.low_closure_code[index]] == low.basis
+        assert nyquist.CLOSURE_BASES[analysis.high_closure_code[index]] == high.basis
     assert {"stable", "unstable"} <= seen  # the family exercises both outcomes
+
+
+def _load_resonance_at_stake(single) -> bool:
+    """The single check's verdict on a resonance hidden in the load where the device has gain."""
+    return any(
+        w.code == "resonance-between-samples"
+        and w.context["count_at_stake"]
+        and w.message.startswith("load")
+        for w in single.warnings
+    )
+
+
+def test_hidden_load_resonances_match_single_checks(family):
+    # Series R-L loads with a parallel tank (5 kΩ, Q = 2000; invented values) between two
+    # samples of the 5 MHz grid; where the device has gain the single check calls the count
+    # at stake (|Γd| is about 2.6, 1.3 and 0.9 at the three resonances).
+    frequency_hz, gamma_device, _ = family
+    s = 2j * np.pi * frequency_hz
+    loads = []
+    for sample in (180, 480, 1260):  # resonances half-way between samples, near 0.9, 2.4, 6.3 GHz
+        omega = np.pi * (frequency_hz[sample] + frequency_hz[sample + 1])
+        inductance = 5000.0 / (2000.0 * omega)
+        tank = 1.0 / (1.0 / 5000.0 + 1.0 / (s * inductance) + s / (omega**2 * inductance))
+        loads.append(gamma_of(30.0 + s * 1e-9 + tank))
+    gamma_load = np.array(loads)
+    analysis = analyse_variants(frequency_hz, gamma_device, gamma_load, Z0)
+    device = oneport.OnePort(frequency_hz, gamma_device, Z0, "device")
+    flags = []
+    for index, gamma in enumerate(gamma_load):
+        single = oneport.check(device, oneport.OnePort(frequency_hz, gamma, Z0, f"load {index}"))
+        flags.append(_load_resonance_at_stake(single))
+        assert VERDICT_CODES[analysis.verdict_code[index]] == single.verdict
+    assert analysis.hidden_resonance.tolist() == flags
+    assert flags[0] and not flags[-1]  # at stake where the device has gain, not where it has none
 
 
 def test_leading_axes_broadcast(family):
