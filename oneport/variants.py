@@ -134,9 +134,9 @@ def analyse_variants(
 
 
 #: Samples (variants × points) per block of the pass over every sample: its working arrays
-#: (about 72 bytes per sample, some 4.7 MB per block) then stay in the processor's caches,
-#: which made the pass about twice as fast as whole-chunk arrays (32,768 and 65,536 measured
-#: best of 16,384 to 1,048,576; benchmarks/README.md).
+#: (about 72 bytes per sample for a netlist load, some 4.7 MB per block) then stay in the
+#: processor's caches: 32,768 and 65,536 were fastest of 16,384 to 1,048,576, the largest
+#: about 1.5–2× slower (benchmarks/README.md).
 BLOCK_SAMPLES = 1 << 16
 
 

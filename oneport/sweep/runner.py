@@ -105,9 +105,10 @@ def run_sweep(
 
     ``scheduler`` (``tcp://host:port``) sends chunks to a running Dask cluster; ``workers``
     > 1 starts a local one. Without either, chunks run here on ``threads`` threads (default
-    one: the analysis works in cache-sized blocks, whose short numpy calls leave threads
-    waiting on the interpreter lock; measured in benchmarks/README.md). Every chunk is computed
-    alone, so the table is the same in every case.
+    one: the netlist's closed form makes many short numpy calls with fresh temporaries, and
+    two threads spent most of their time waiting for the interpreter lock on a 6-element
+    load; measured in benchmarks/README.md). Every chunk is computed alone, so the table is
+    the same in every case.
     """
     bounds = chunk_bounds(plan.variants, frequency_hz.size, chunk_size)
     finished: dict[int, dict[str, np.ndarray]] = {}
