@@ -65,6 +65,15 @@ def closed_form_load(frequency_hz: np.ndarray, p: dict[str, np.ndarray]) -> np.n
     return (z - Z0) / (z + Z0)
 
 
+def sign_only_count(in_band: np.ndarray, f_low: np.ndarray, f_high: np.ndarray) -> np.ndarray:
+    """The count from F's in-band phase change, each edge closed to the real axis on the side
+    of Re F there (a sign-only closure, the floors' stand-in for the check's founded one)."""
+    side = lambda v: np.where(v < 0, -1.0, 1.0)  # noqa: E731
+    low = np.angle(f_low) - np.where(f_low.real > 0, 0, side(f_low.imag) * np.pi)
+    high = np.where(f_high.real > 0, 0, side(f_high.imag) * np.pi) - np.angle(f_high)
+    return np.rint(-(in_band + low + high) / np.pi).astype(int)
+
+
 def numpy_floor(frequency_hz: np.ndarray, plan, chunk: int | None) -> tuple[float, np.ndarray]:
     """Closed-form load, loop gain, unwrapped phase and count, chunked: seconds, counts."""
     gamma_device = device_gamma(frequency_hz)
@@ -76,12 +85,7 @@ def numpy_floor(frequency_hz: np.ndarray, plan, chunk: int | None) -> tuple[floa
         loop = gamma_device * closed_form_load(frequency_hz, values)
         f = 1 - loop
         phase = np.unwrap(np.angle(f), axis=-1)
-        sign_low = np.where(f[:, 0].real > 0, 1, -1)
-        sign_high = np.where(f[:, -1].real > 0, 1, -1)
-        side = lambda v: np.where(v < 0, -1.0, 1.0)  # noqa: E731
-        low = np.angle(f[:, 0]) - np.where(sign_low < 0, side(f[:, 0].imag) * np.pi, 0)
-        high = np.where(sign_high < 0, side(f[:, -1].imag) * np.pi, 0) - np.angle(f[:, -1])
-        counts.append(np.rint(-(phase[:, -1] - phase[:, 0] + low + high) / np.pi).astype(int))
+        counts.append(sign_only_count(phase[:, -1] - phase[:, 0], f[:, 0], f[:, -1]))
     return time.perf_counter() - start, np.concatenate(counts)
 
 
@@ -126,12 +130,7 @@ def tuned_floor(frequency_hz: np.ndarray, plan, rows: int = 32) -> tuple[float, 
         step = np.subtract(theta[:, 1:], theta[:, :-1], out=steps[:size])
         step[step > np.pi] -= 2 * np.pi
         step[step < -np.pi] += 2 * np.pi
-        in_band = step.sum(axis=-1)
-        f_low, f_high = block[:, 0], block[:, -1]
-        side = lambda v: np.where(v < 0, -1.0, 1.0)  # noqa: E731
-        low = np.angle(f_low) - np.where(f_low.real > 0, 0, side(f_low.imag) * np.pi)
-        high = np.where(f_high.real > 0, 0, side(f_high.imag) * np.pi) - np.angle(f_high)
-        counts.append(np.rint(-(in_band + low + high) / np.pi).astype(int))
+        counts.append(sign_only_count(step.sum(axis=-1), block[:, 0], block[:, -1]))
     return time.perf_counter() - start, np.concatenate(counts)
 
 

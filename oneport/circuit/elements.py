@@ -47,7 +47,7 @@ class StampContext:
     omega : ndarray of float or None
         2πf when s is on the imaginary axis (the engine's case); None for a real s.
     inverse_omega : ndarray of float or None
-        1/ω, when the engine has it (infinite at 0 Hz).
+        1/ω, when the engine has it (NaN at 0 Hz).
     """
 
     s: np.ndarray
@@ -58,17 +58,13 @@ class StampContext:
     inverse_omega: np.ndarray | None = None
 
     def over_omega(self, value: Any) -> Any:
-        """1/(ω·value), real; not finite at 0 Hz (the closed form then defers to elimination).
+        """1/(ω·value), real; NaN at 0 Hz (the closed form then defers to elimination).
 
         Written (1/ω)·(1/value): both reciprocals are of the small factors ((1, n) and
-        (variants, 1)), so the full-size work is one product. Without the engine's 1/ω (NaN at
-        0 Hz), the caller sets ``np.errstate`` for the division there.
+        (variants, 1)), so the full-size work is one product. Needs the engine's 1/ω.
         """
-        inverse = self.inverse_omega
-        if inverse is None:
-            assert self.omega is not None
-            inverse = 1.0 / self.omega
-        return inverse * (1.0 / np.asarray(value))
+        assert self.inverse_omega is not None
+        return self.inverse_omega * (1.0 / np.asarray(value))
 
     def times_s(self, value: Any) -> Any:
         """s·value. On the jω axis the product is built from real arrays: numpy's complex
