@@ -3,8 +3,8 @@
 Run by hand: ``python benchmarks/bench_sweep.py`` (add ``--quick`` for a smaller smoke run).
 It times, in one process on the same machine:
 
-1. the sweep (``oneport.sweep.run_sweep``: netlist evaluation + the full per-variant check);
-2. bare numpy floors: the same load in closed form (chunked), the loop gain, its unwrapped
+1. the sweep (``oneport.products.sweep.run_sweep``: netlist evaluation + the full per-variant
+check); 2. bare numpy floors: the same load in closed form (chunked), the loop gain, its unwrapped
    phase and the encirclement count — the unavoidable work — written twice: plainly (complex
    arrays, a million samples per chunk, ``numpy.unwrap``) and tuned with the sweep's own
    techniques (real and imaginary parts apart, cache-sized chunks, in-place buffers);
@@ -25,8 +25,8 @@ import numpy as np
 
 import oneport
 from oneport.circuit import read_circuit
-from oneport.sweep import monte_carlo_plan, run_sweep
-from oneport.sweep.sources import LoopSource, Side
+from oneport.products.sweep import monte_carlo_plan, run_sweep
+from oneport.products.sweep.sources import LoopSource, Side
 
 Z0 = 50.0
 # An invented bias tee in front of a series resonator: six elements, all swept.

@@ -5,10 +5,10 @@ load (paths, scikit-rf Networks or :class:`OnePort` records) and returns a froze
 :class:`CheckResult`; :func:`read_one_port` reads a Touchstone one-port safely.
 """
 
-from .check import check
+from .analysis.result import CheckResult
 from .errors import FileFormatError, InputError, NoOverlapError, OneportError
-from .result import CheckResult
-from .touchstone import OnePort, read_one_port
+from .products.check import check
+from .reading.touchstone import OnePort, read_one_port
 
 __all__ = [
     "CheckResult",

@@ -8,7 +8,7 @@ import pytest
 import skrf
 
 from oneport import InputError, NoOverlapError
-from oneport.alignment import MINIMUM_OVERLAP_POINTS, align, renormalise
+from oneport.reading.alignment import MINIMUM_OVERLAP_POINTS, align, renormalise
 
 from helpers import gamma_of, one_port
 

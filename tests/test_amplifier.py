@@ -8,7 +8,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from oneport.amplifier import analyse_amplifier, plot_amplifier, screen_amplifier
+from oneport.analysis.amplifier import analyse_amplifier, plot_amplifier, screen_amplifier
 from oneport.errors import InputError
 
 from helpers import Z0, one_port, run_cli

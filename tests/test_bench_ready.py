@@ -19,8 +19,9 @@ import pytest
 import skrf
 
 import oneport
-from oneport import OnePort, nyquist
-from oneport.preparation import PortSetup, prepare
+from oneport import OnePort
+from oneport.analysis import nyquist
+from oneport.reading.preparation import PortSetup, prepare
 
 from helpers import Z0, gamma_of, one_port, run_cli, write_touchstone
 from lumped import (
@@ -618,7 +619,7 @@ def test_foster_candidates_are_strict_sign_changes_of_im_gamma():
     # The docstring's rule written out interval by interval: Im Z from above +T·Z0 to below
     # −T·Z0 (a pole of Z), or the same on Im Y·Z0 (a zero), both samples reactive. Samples with
     # Im Γ exactly 0 start no interval, and a huge |Γ| raises no floating-point warning.
-    from oneport import diagnostics
+    from oneport.analysis import diagnostics
 
     gamma = np.array(
         [

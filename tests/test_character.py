@@ -7,7 +7,7 @@ import json
 import numpy as np
 import pytest
 
-from oneport.character import DeviceCharacter, characterise_device, winding_count
+from oneport.analysis.character import DeviceCharacter, characterise_device, winding_count
 from oneport.errors import InputError
 
 from helpers import Z0, gamma_of

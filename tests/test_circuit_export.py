@@ -10,9 +10,9 @@ import numpy as np
 import pytest
 
 from oneport.circuit import read_circuit
-from oneport.circuit.export import frequency_grid
 from oneport.cli import main
-from oneport.touchstone import read_one_port, read_touchstone
+from oneport.products.export import frequency_grid
+from oneport.reading.touchstone import read_one_port, read_touchstone
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "touchstone_examples" / "circuits"
 

@@ -13,7 +13,7 @@ import pytest
 import skrf
 
 from oneport.circuit import Circuit, parse_circuit
-from oneport.touchstone import read_touchstone
+from oneport.reading.touchstone import read_touchstone
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "touchstone_examples" / "circuits"
 TRANSISTOR = EXAMPLES / "transistor.s2p"

@@ -16,17 +16,17 @@ import numpy as np
 import pytest
 import skrf
 
-from oneport.circuit import multiport_from_circuit, parse_circuit
-from oneport.circuit.blocks import interpolate_block
-from oneport.circuit.smith import termination_figure
-from oneport.circuit.terminations import (
+from oneport.analysis.terminations import (
     analyse_terminations,
     negative_fraction,
     observed_gamma,
     stability_circle,
 )
+from oneport.circuit import multiport_from_circuit, parse_circuit
+from oneport.circuit.blocks import interpolate_block
 from oneport.cli import main
-from oneport.touchstone import Multiport, read_touchstone
+from oneport.reading.touchstone import Multiport, read_touchstone
+from oneport.rendering.smith import termination_figure
 
 EXAMPLES = Path(__file__).resolve().parents[1] / "touchstone_examples" / "circuits"
 TRANSISTOR = EXAMPLES / "transistor.s2p"

@@ -20,7 +20,7 @@ from hypothesis import assume, event, given, settings
 from hypothesis import strategies as st
 
 import oneport
-from oneport import nyquist
+from oneport.analysis import nyquist
 
 from lumped import (
     Z0,

@@ -12,7 +12,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from oneport.oscillator import (
+from oneport.products.oscillator import (
     IVDevice,
     Parasitics,
     TunnelDiodeModel,
@@ -20,7 +20,7 @@ from oneport.oscillator import (
     describing_conductance,
     polynomial_current,
 )
-from oneport.touchstone import OnePort
+from oneport.reading.touchstone import OnePort
 
 F0 = 1e9  # tank resonance, Hz
 TANK_C = 10e-12  # junction capacitance, F: with the load's inductor, a tank at F0

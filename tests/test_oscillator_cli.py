@@ -10,7 +10,11 @@ import numpy as np
 import pytest
 
 from oneport.errors import InputError
-from oneport.oscillator import OSCILLATOR_SCHEMA, VERDICT_EXIT_CODES, read_device_description
+from oneport.products.oscillator import (
+    OSCILLATOR_SCHEMA,
+    VERDICT_EXIT_CODES,
+    read_device_description,
+)
 
 from helpers import run_cli
 

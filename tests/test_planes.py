@@ -12,9 +12,9 @@ import pytest
 import skrf
 
 import oneport
-from oneport.alignment import renormalise
 from oneport.errors import InputError
-from oneport.planes import (
+from oneport.reading.alignment import renormalise
+from oneport.reading.planes import (
     NEAR_LOOP_THRESHOLD,
     deembed_fixture,
     differential_reference_impedance,
@@ -70,7 +70,8 @@ def test_renormalise_s_matches_scikit_rf(old, new):
 def test_renormalise_s_of_one_port_is_the_one_port_formula():
     rng = np.random.default_rng(3)
     gamma = _random_s(rng, 1)
-    # source: METHODS §1, Γ' = (Γ − r)/(1 − rΓ) (oneport.alignment.renormalise implements it)
+    # source: METHODS §1, Γ' = (Γ − r)/(1 − rΓ) (oneport.reading.alignment.renormalise implements
+    # it)
     np.testing.assert_allclose(
         renormalise_s(gamma, 50.0, 80.0)[0, 0], renormalise(gamma[0, 0], 50.0, 80.0), atol=1e-14
     )

@@ -10,7 +10,7 @@ import numpy as np
 import pytest
 
 import oneport
-from oneport import plots
+from oneport.rendering import check_plots as plots
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "touchstone_examples"
 
@@ -165,7 +165,8 @@ def test_save_plots_refuses_other_formats(oscillating, tmp_path):
 
 def test_importing_the_rendering_modules_does_not_import_matplotlib():
     code = (
-        "import sys, oneport, oneport.plots, oneport.report, oneport.watch, oneport.cli;"
+        "import sys, oneport, oneport.rendering.check_plots, oneport.rendering.report,"
+        " oneport.products.watch, oneport.cli;"
         " print('matplotlib' in sys.modules)"
     )
     output = subprocess.run(

@@ -9,15 +9,15 @@ import numpy as np
 import pytest
 
 import oneport
-from oneport.errors import InputError
-from oneport.poles import (
+from oneport.analysis.pole_zero import (
     NaturalFrequency,
     PoleZeroResult,
     compare_with_count,
     identify_natural_frequencies,
     with_count_check,
 )
-from oneport.rational import fit_rational
+from oneport.analysis.rational import fit_rational
+from oneport.errors import InputError
 
 from helpers import Z0, gamma_of, run_cli
 

@@ -18,8 +18,9 @@ from hypothesis import assume, example, given, settings
 from hypothesis import strategies as st
 
 import oneport
-from oneport import OnePort, nyquist
-from oneport.alignment import renormalise
+from oneport import OnePort
+from oneport.analysis import nyquist
+from oneport.reading.alignment import renormalise
 
 from helpers import write_touchstone
 from lumped import (

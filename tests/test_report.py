@@ -12,8 +12,8 @@ from pathlib import Path
 import pytest
 
 import oneport
-from oneport.report import write_report
-from oneport.text import verdict_line
+from oneport.rendering.check_text import verdict_line
+from oneport.rendering.report import write_report
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "touchstone_examples"
 HOSTILE = "<script>alert(1)</script>.s1p"

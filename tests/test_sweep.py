@@ -9,10 +9,10 @@ import numpy as np
 import pytest
 
 import oneport
+from oneport.analysis.variants import STABLE, VERDICT_CODES
 from oneport.circuit import read_circuit
-from oneport.sweep import grid_plan, monte_carlo_plan, run_sweep
-from oneport.sweep.sources import LoopSource, Side
-from oneport.variants import STABLE, VERDICT_CODES
+from oneport.products.sweep import grid_plan, monte_carlo_plan, run_sweep
+from oneport.products.sweep.sources import LoopSource, Side
 
 from helpers import Z0, run_cli
 
@@ -167,7 +167,7 @@ def test_dask_cluster_gives_the_local_result(load_circuit):
 
 
 def test_command_line_writes_table_and_summary(tmp_path):
-    from oneport.touchstone import read_one_port
+    from oneport.reading.touchstone import read_one_port
 
     pyarrow_parquet = pytest.importorskip("pyarrow.parquet")
     device = tmp_path / "device.s1p"

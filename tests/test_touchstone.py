@@ -21,7 +21,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from oneport import FileFormatError, OnePort, read_one_port
-from oneport.alignment import renormalise
+from oneport.reading.alignment import renormalise
 
 from helpers import mutate_lines
 

@@ -6,8 +6,8 @@ import numpy as np
 import pytest
 
 import oneport
-from oneport import nyquist, variants
-from oneport.variants import VERDICT_CODES, analyse_variants
+from oneport.analysis import nyquist, variants
+from oneport.analysis.variants import VERDICT_CODES, analyse_variants
 
 from helpers import Z0, gamma_of
 

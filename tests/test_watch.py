@@ -11,7 +11,7 @@ from pathlib import Path
 import pytest
 
 from oneport.commands.watch import watch_folder
-from oneport.watch import FolderWatcher, check_file, run_watch
+from oneport.products.watch import FolderWatcher, check_file, run_watch
 
 from helpers import run_cli
 

@@ -4,8 +4,8 @@ A small netlist (one element per line, SI suffixes, node ``0`` is ground; see
 ``docs/netlist.md``) or the builder API describes R, L, C, transconductances, TEM lines,
 op-amps and Touchstone blocks. :meth:`Circuit.gamma` evaluates the reflection by modified nodal
 analysis vectorised over (parameter sets × frequencies), or by a closed form for series–parallel
-R/L/C one-ports; :func:`one_port_from_circuit` gives a :class:`~oneport.touchstone.OnePort` for
-``oneport check``.
+R/L/C one-ports; :func:`one_port_from_circuit` gives a :class:`~oneport.reading.touchstone.OnePort`
+for ``oneport check``.
 
 Examples
 --------

@@ -1,7 +1,7 @@
 """Touchstone blocks inside a circuit: reading their files and putting them on the grid.
 
-Files are read with :func:`oneport.touchstone.read_touchstone` (safe, strict). A block's data
-are interpolated onto the analysis grid linearly in real and imaginary parts, inside the file's
+Files are read with :func:`oneport.reading.touchstone.read_touchstone` (safe, strict). A block's
+data are interpolated onto the analysis grid linearly in real and imaginary parts, inside the file's
 band only: a grid that leaves the band is refused, never extrapolated.
 """
 
@@ -12,7 +12,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import FileFormatError, InputError
-from ..touchstone import Multiport, read_touchstone
+from ..reading.touchstone import Multiport, read_touchstone
 from ..units import format_frequency
 
 #: Grid points this close (relative) outside a block's band count as inside (rounding).

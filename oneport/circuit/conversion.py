@@ -1,4 +1,5 @@
-"""Circuits as the rest of the package sees them: :class:`~oneport.touchstone.OnePort` records.
+"""Circuits as the rest of the package sees them: :class:`~oneport.reading.touchstone.OnePort`
+records.
 
 ``oneport check`` takes a Touchstone file or a netlist on either side; for a netlist it calls
 :func:`one_port_from_circuit` with the grid and reference impedance the analysis runs in, so the
@@ -15,7 +16,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import InputError
-from ..touchstone import Multiport, OnePort
+from ..reading.touchstone import Multiport, OnePort
 from .model import Circuit
 from .netlist import CIRCUIT_SUFFIXES, read_circuit
 

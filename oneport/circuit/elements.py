@@ -20,7 +20,7 @@ from typing import Any, ClassVar
 
 import numpy as np
 
-from ..touchstone import Multiport
+from ..reading.touchstone import Multiport
 from .values import ValueSpec
 
 #: ``add(row, column, value)``; a row or column of None (ground) is skipped.

@@ -1,7 +1,7 @@
 """``oneport amplifier``: screen a negative-resistance device as a reflection amplifier.
 
-Text rendering of :class:`~oneport.amplifier.AmplifierResult` lives here too; it formats and
-computes nothing.
+Text rendering of :class:`~oneport.analysis.amplifier.AmplifierResult` lives here too; it formats
+and computes nothing.
 """
 
 from __future__ import annotations
@@ -9,7 +9,7 @@ from __future__ import annotations
 import argparse
 from typing import TYPE_CHECKING, Any, TextIO
 
-from ..text import closing_sections, wrap
+from ..rendering.check_text import closing_sections, wrap
 from ..units import format_frequency, parse_decibels
 from .common import (
     add_measurement_impedance_option,
@@ -19,7 +19,7 @@ from .common import (
 )
 
 if TYPE_CHECKING:
-    from ..amplifier import AmplifierResult, GainBand
+    from ..analysis.amplifier import AmplifierResult, GainBand
 
 NAME = "amplifier"
 _HEADLINE = {
@@ -64,7 +64,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Screen, print, optionally plot; return the exit code of the verdict."""
-    from ..amplifier import save_amplifier_plot, screen_amplifier
+    from ..analysis.amplifier import save_amplifier_plot, screen_amplifier
     from ..cli import ExitCode
 
     impedance = measurement_impedance(arguments)

@@ -121,12 +121,12 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the check and print it; return the verdict's exit code."""
-    from ..bound import check_return_loss
-    from ..check import check
+    from ..analysis.small_gain import check_return_loss
     from ..cli import verdict_exit_code
-    from ..preparation import PortSetup
-    from ..result import InputRecord
-    from ..text import render, render_bound, verdict_line
+    from ..products.check import check
+    from ..reading.preparation import PortSetup
+    from ..reading.records import InputRecord
+    from ..rendering.check_text import render, render_bound, verdict_line
 
     device = _side(arguments.device, _device_setup(arguments), "device")
     impedance = measurement_impedance(arguments)
@@ -190,7 +190,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
 def _side(path: str, setup: Any, role: str) -> Any:
     """A netlist path as it is (the check evaluates it), or the prepared Touchstone one-port."""
     from ..circuit import is_circuit_path
-    from ..preparation import PortSetup, prepare
+    from ..reading.preparation import PortSetup, prepare
 
     if not is_circuit_path(path):
         return prepare(path, setup, role)
@@ -204,7 +204,7 @@ def _side(path: str, setup: Any, role: str) -> Any:
 
 def _second_opinion(result: Any) -> Any:
     """The pole–zero identification of F = 1 − L, cross-checked with the count."""
-    from ..poles import identify_natural_frequencies, with_count_check
+    from ..analysis.pole_zero import identify_natural_frequencies, with_count_check
 
     fitted = identify_natural_frequencies(
         result.frequency_hz,
@@ -227,18 +227,18 @@ def _with_second_opinion(text: str, second: Any) -> str:
 
 def _pictures(result: Any, arguments: argparse.Namespace) -> None:
     if arguments.plot:
-        from ..plots import save_plots
+        from ..rendering.check_plots import save_plots
 
         save_plots(result, arguments.plot)
     if arguments.report:
-        from ..report import write_report
+        from ..rendering.report import write_report
 
         write_report(result, arguments.report)
 
 
 def _device_setup(arguments: argparse.Namespace) -> Any:
-    from ..planes import parse_port_pairs
-    from ..preparation import PortSetup
+    from ..reading.planes import parse_port_pairs
+    from ..reading.preparation import PortSetup
 
     pairs: tuple[tuple[int, int], ...] = ()
     if arguments.differential_ports is not None:

@@ -52,7 +52,7 @@ def grid_from_options(arguments: argparse.Namespace, required: bool) -> Any:
         from ..errors import InputError
 
         raise InputError("give both --start and --stop (e.g. 1MHz and 6GHz)")
-    from ..circuit.export import frequency_grid
+    from ..products.export import frequency_grid
     from ..units import parse_quantity
 
     return frequency_grid(

@@ -56,7 +56,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Write the file; return 0 (bad input raises and becomes exit code 2)."""
-    from ..circuit.export import export_circuit, frequency_grid
+    from ..products.export import export_circuit, frequency_grid
     from ..units import format_frequency
 
     start = parse_quantity(arguments.start, "frequency", option="--start")

@@ -47,15 +47,15 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the analysis and print it; return the verdict's exit code."""
-    from ..oscillator import analyse_oscillator
-    from ..oscillator.text import render, verdict_line
+    from ..products.oscillator import analyse_oscillator
+    from ..rendering.oscillator_text import render, verdict_line
 
     below = parse_decibels(arguments.injection_below, option="--injection-below")
     result = analyse_oscillator(
         arguments.device, arguments.load, form=arguments.form, injection_ratio_db=-below
     )
     if arguments.plot:
-        from ..oscillator.plot import plot_oscillator
+        from ..rendering.oscillator_plot import plot_oscillator
 
         plot_oscillator(result, arguments.plot)
     if arguments.json:

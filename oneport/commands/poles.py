@@ -1,7 +1,8 @@
 """``oneport poles``: the natural frequencies a rational fit of F = 1 − Γd·ΓL implies.
 
-Text rendering of :class:`~oneport.poles.PoleZeroResult` (and, with ``--character``, of
-:class:`~oneport.character.DeviceCharacter`) lives here too; it formats and computes nothing.
+Text rendering of :class:`~oneport.analysis.pole_zero.PoleZeroResult` (and, with ``--character``, of
+:class:`~oneport.analysis.character.DeviceCharacter`) lives here too; it formats and computes
+nothing.
 """
 
 from __future__ import annotations
@@ -9,7 +10,7 @@ from __future__ import annotations
 import argparse
 from typing import TYPE_CHECKING, Any, TextIO
 
-from ..text import closing_sections, wrap
+from ..rendering.check_text import closing_sections, wrap
 from ..units import format_frequency
 from .common import (
     add_measurement_impedance_option,
@@ -19,8 +20,8 @@ from .common import (
 )
 
 if TYPE_CHECKING:
-    from ..character import DeviceCharacter
-    from ..poles import NaturalFrequency, PoleZeroResult
+    from ..analysis.character import DeviceCharacter
+    from ..analysis.pole_zero import NaturalFrequency, PoleZeroResult
 
 NAME = "poles"
 _HEADLINE = {
@@ -72,10 +73,14 @@ def _positive_int(text: str) -> int:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Fit, cross-check with the Nyquist count, print; return the verdict's exit code."""
-    from ..alignment import align
-    from ..check import analyse_pair, load_one_port
+    from ..analysis.pole_zero import (
+        DEFAULT_MAX_ORDER,
+        identify_natural_frequencies,
+        with_count_check,
+    )
     from ..cli import verdict_exit_code
-    from ..poles import DEFAULT_MAX_ORDER, identify_natural_frequencies, with_count_check
+    from ..products.check import analyse_pair, load_one_port
+    from ..reading.alignment import align
 
     impedance = measurement_impedance(arguments)
     device = load_one_port(arguments.device, "device")
@@ -92,7 +97,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     result = with_count_check(result, nyquist.encirclements)
     character = None
     if arguments.character:
-        from ..character import characterise_device
+        from ..analysis.character import characterise_device
 
         character = characterise_device(
             pair.frequency_hz,

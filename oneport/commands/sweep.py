@@ -98,9 +98,9 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Plan, run, write the table and print the summary; exit code per the conventions."""
     from ..cli import ExitCode
-    from ..sweep.runner import run_sweep
-    from ..sweep.summary import summarise, summary_dict
-    from ..sweep.table import write_table
+    from ..products.sweep.runner import run_sweep
+    from ..products.sweep.summary import summarise, summary_dict
+    from ..products.sweep.table import write_table
 
     setup = _setup(arguments)
     plan = _plan(arguments, setup)
@@ -125,8 +125,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     if arguments.output and result.completed:
         table_path = str(write_table(result.table, arguments.output))
     if arguments.plot and result.completed:
-        from ..plots import save_figure
-        from ..sweep.plots import plot_sweep
+        from ..rendering.check_plots import save_figure
+        from ..rendering.sweep_plots import plot_sweep
 
         save_figure(plot_sweep(result), arguments.plot)
     if arguments.json:
@@ -143,10 +143,10 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
 
 
 def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
-    from ..alignment import align, renormalise
     from ..circuit import is_circuit_path, read_circuit
-    from ..sweep.sources import LoopSource, Side
-    from ..touchstone import read_one_port
+    from ..products.sweep.sources import LoopSource, Side
+    from ..reading.alignment import align, renormalise
+    from ..reading.touchstone import read_one_port
 
     device_paths = arguments.devices
     device_circuit = None
@@ -233,7 +233,7 @@ def _premise_findings(circuit: Any, role: str, z0: float) -> list[Any]:
     check adds a netlist's own right-half-plane poles, so the two would differ there.
     """
     from ..errors import InputError as _InputError
-    from ..result import Finding
+    from ..findings import Finding
 
     try:
         roots = np.asarray(circuit.natural_frequencies(termination_ohm=z0))
@@ -254,8 +254,8 @@ def _premise_findings(circuit: Any, role: str, z0: float) -> list[Any]:
 
 
 def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
-    from ..sweep.plan import grid_plan, monte_carlo_plan, parse_tolerance, parse_vary
-    from ..sweep.sources import DEVICE_INDEX
+    from ..products.sweep.plan import grid_plan, monte_carlo_plan, parse_tolerance, parse_vary
+    from ..products.sweep.sources import DEVICE_INDEX
 
     known = {name.lower(): name for name in setup["parameters"]}
     if arguments.vary and arguments.tolerance:
@@ -352,7 +352,7 @@ def _render(
     if table_path:
         rows.append(f"  table: {table_path}")
     from ..cautions import CAUTIONS
-    from ..text import closing_sections
+    from ..rendering.check_text import closing_sections
 
     rows += closing_sections(warnings, (), None, CAUTIONS)
     return "\n".join(rows) + "\n"

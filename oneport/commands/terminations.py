@@ -55,17 +55,17 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Analyse, print, optionally plot; return 0 (bad input raises: exit code 2)."""
-    from ..circuit.terminations import analyse_terminations
+    from ..analysis.terminations import analyse_terminations
 
     frequency = parse_quantity(arguments.at, "frequency", option="--at")
     data = _two_port(arguments)
     if arguments.plot is not None:
-        from ..plots import require_folder
+        from ..rendering.check_plots import require_folder
 
         require_folder(_path(arguments.plot))
     result = analyse_terminations(data, frequency, terminated_port=arguments.terminate)
     if arguments.plot is not None:
-        from ..circuit.smith import save_termination_chart
+        from ..rendering.smith import save_termination_chart
 
         save_termination_chart(result, arguments.plot)
     if arguments.json:
@@ -85,8 +85,8 @@ def _path(text: str) -> Any:
 
 def _two_port(arguments: argparse.Namespace) -> Any:
     from ..circuit import is_circuit_path, multiport_from_circuit
-    from ..circuit.export import frequency_grid
-    from ..touchstone import read_touchstone
+    from ..products.export import frequency_grid
+    from ..reading.touchstone import read_touchstone
 
     if not is_circuit_path(arguments.device):
         if arguments.start or arguments.stop or arguments.param:

@@ -64,8 +64,8 @@ def watch_folder(
     The load is read once first, so a bad load stops the command at once (exit 2); after that,
     a file that cannot be checked prints ``oneport: <error>`` and the watch goes on.
     """
-    from ..touchstone import read_one_port
-    from ..watch import FolderWatcher, run_watch
+    from ..products.watch import FolderWatcher, run_watch
+    from ..reading.touchstone import read_one_port
 
     read_one_port(load)
     reports = _report_folder(report_dir)
@@ -98,8 +98,8 @@ def _report_folder(report_dir: str | Path | None) -> Path | None:
 
 def _check_and_print(path: Path, load: str | Path, reports: Path | None, out: TextIO) -> None:
     from ..errors import OneportError
-    from ..text import verdict_line
-    from ..watch import check_file
+    from ..products.watch import check_file
+    from ..rendering.check_text import verdict_line
 
     outcome = check_file(path, load)
     if outcome.result is None:
@@ -107,7 +107,7 @@ def _check_and_print(path: Path, load: str | Path, reports: Path | None, out: Te
         return
     print(f"{path.name}: {verdict_line(outcome.result)}", file=out, flush=True)
     if reports is not None:
-        from ..report import write_report
+        from ..rendering.report import write_report
 
         try:
             write_report(outcome.result, reports / f"{path.name}.html")

@@ -1,0 +1,725 @@
+"""Reflection-amplifier screening: a negative-resistance device behind a circulator.
+
+The gain is |Γd|² (Γd = (R + Z0)/(R − Z0) for a pure −R). Whatever faces the device — the
+circulator port — must keep |Γd·ΓL| < 1 at every frequency for the small-gain bound to
+guarantee no encirclement of +1 (given the device is stable in Z0), so the port's return loss
+must exceed 20·log10|Γd| dB wherever |Γd| > 1. With a finite match the voltage gain lies between
+|Γd|/(1 + |Γd·ΓL|) and |Γd|/(1 − |Γd·ΓL|), the power gain between their squares (METHODS §6).
+With the port's own file, the Nyquist check with the actual load decides.
+
+Computation only, apart from :func:`plot_amplifier` at the end, which draws what a result holds
+(matplotlib imported inside it) and computes nothing.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from ..cautions import CAUTIONS
+from ..errors import InputError
+from ..findings import Finding
+from ..reading.records import InputRecord
+from ..units import format_frequency
+from .result import CheckResult
+
+AMPLIFIER_SCHEMA = "oneport.amplifier/1"
+VERDICTS = ("stable", "not-guaranteed", "unstable", "inconclusive")
+DEFAULT_GAIN_THRESHOLD_DB = 10.0
+#: The bandwidth is where the gain stays within this many dB of its peak.
+BANDWIDTH_DROP_DB = 3.0
+#: Margin (dB) the port's return loss must keep over the gain at a sweep edge for the bound
+#: to be carried beyond the sweep, on top of the gain's rise over the outermost octave.
+EDGE_MARGIN_DB = 1.0
+
+
+@dataclass(frozen=True)
+class GainBand:
+    """A stretch where the gain is at least the threshold (edges interpolated)."""
+
+    start_hz: float
+    stop_hz: float
+    peak_gain_db: float
+    peak_frequency_hz: float
+    starts_at_sweep_edge: bool
+    stops_at_sweep_edge: bool
+
+    def to_dict(self, z0: float) -> dict[str, Any]:
+        """JSON form."""
+        return {
+            "start_hz": self.start_hz,
+            "stop_hz": self.stop_hz,
+            "peak_gain_db": self.peak_gain_db,
+            "peak_frequency_hz": self.peak_frequency_hz,
+            "starts_at_sweep_edge": self.starts_at_sweep_edge,
+            "stops_at_sweep_edge": self.stops_at_sweep_edge,
+            "reference_impedance_ohm": z0,
+        }
+
+
+@dataclass(frozen=True)
+class EdgeBound:
+    """Whether the small-gain bound can be carried beyond one sweep edge."""
+
+    side: str
+    founded: bool
+    margin_db: float | None
+    rise_db: float
+    note: str
+
+
+@dataclass(frozen=True)
+class AmplifierResult:
+    """Everything the screening found, frozen.
+
+    Attributes
+    ----------
+    verdict : str
+        ``stable`` (guaranteed for the stated port match, or stable with the load by the
+        Nyquist count), ``not-guaranteed`` (the small-gain bound fails for the stated match),
+        ``unstable`` (Nyquist count with the load) or ``inconclusive``.
+    basis : str
+        ``small-gain``, ``nyquist`` or ``none`` (no port stated).
+    gain_db, required_return_loss_db : ndarray
+        10·log10|Γd|² per frequency, and max(0, that): the port return loss the small-gain
+        bound needs.
+    port_reflection : ndarray or None
+        |ΓL| of the port per frequency (from the stated return loss or the load).
+    gain_bounds_db : (ndarray, ndarray) or None
+        Lower and upper power-gain bounds; the upper is +inf where |Γd·ΓL| ≥ 1.
+    gain_with_load_db : ndarray or None
+        |Γd/(1 − Γd·ΓL)|² in dB when the load's complex reflection is known.
+    nyquist : CheckResult or None
+        The check with the actual load.
+    """
+
+    verdict: str
+    basis: str
+    reasons: tuple[str, ...]
+    next_steps: tuple[str, ...]
+    premise: str
+    reference_impedance_ohm: float
+    gain_threshold_db: float
+    peak_gain_db: float
+    peak_frequency_hz: float
+    bands: tuple[GainBand, ...]
+    bandwidth: GainBand
+    worst_required_return_loss_db: float
+    worst_frequency_hz: float
+    port_source: str | None
+    port_return_loss_db: float | None
+    port_margin_db: float | None
+    port_margin_frequency_hz: float | None
+    edges: tuple[EdgeBound, ...]
+    nyquist: CheckResult | None
+    warnings: tuple[Finding, ...]
+    cautions: tuple[str, ...]
+    inputs: tuple[InputRecord, ...]
+    frequency_hz: np.ndarray = field(repr=False)
+    gamma_device: np.ndarray = field(repr=False)
+    gain_db: np.ndarray = field(repr=False)
+    required_return_loss_db: np.ndarray = field(repr=False)
+    port_reflection: np.ndarray | None = field(repr=False, default=None)
+    gain_bounds_db: tuple[np.ndarray, np.ndarray] | None = field(repr=False, default=None)
+    gain_with_load_db: np.ndarray | None = field(repr=False, default=None)
+
+    @property
+    def ripple_at_peak_db(self) -> tuple[float, float] | None:
+        """Lower and upper power-gain bounds (dB) at the gain peak; upper +inf if unbounded."""
+        if self.gain_bounds_db is None:
+            return None
+        peak = int(np.argmax(self.gain_db))
+        return float(self.gain_bounds_db[0][peak]), float(self.gain_bounds_db[1][peak])
+
+    @property
+    def guaranteed(self) -> bool | None:
+        """Whether the small-gain bound holds in band and beyond both edges (None: no port)."""
+        if self.port_margin_db is None:
+            return None
+        return self.port_margin_db > 0 and all(edge.founded for edge in self.edges)
+
+    def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
+        """The ``oneport.amplifier/1`` JSON object (docs/json-amplifier.md)."""
+        z0 = self.reference_impedance_ohm
+        data: dict[str, Any] = {
+            "schema": AMPLIFIER_SCHEMA,
+            "verdict": self.verdict,
+            "basis": self.basis,
+            "reasons": list(self.reasons),
+            "next_steps": list(self.next_steps),
+            "premise": self.premise,
+            "small_signal": True,
+            "gain": {
+                "reference_impedance_ohm": z0,
+                "peak_gain_db": self.peak_gain_db,
+                "peak_frequency_hz": self.peak_frequency_hz,
+                "threshold_db": self.gain_threshold_db,
+                "bands_above_threshold": [band.to_dict(z0) for band in self.bands],
+                "bandwidth_3db": {
+                    **self.bandwidth.to_dict(z0),
+                    "bandwidth_hz": self.bandwidth.stop_hz - self.bandwidth.start_hz,
+                },
+            },
+            "stability_requirement": {
+                "reference_impedance_ohm": z0,
+                "worst_required_return_loss_db": self.worst_required_return_loss_db,
+                "worst_frequency_hz": self.worst_frequency_hz,
+            },
+            "port": self._port_dict(),
+            "nyquist": _nyquist_dict(self.nyquist),
+            "warnings": [w.to_dict() for w in self.warnings],
+            "cautions": list(self.cautions),
+            "inputs": [record.to_dict() for record in self.inputs],
+            "frequency_range_hz": [float(self.frequency_hz[0]), float(self.frequency_hz[-1])],
+            "reference_impedance_ohm": z0,
+        }
+        if include_arrays:
+            data["arrays"] = self._arrays()
+        return data
+
+    def _port_dict(self) -> dict[str, Any] | None:
+        if self.port_source is None:
+            return None
+        assert self.port_reflection is not None and self.gain_bounds_db is not None
+        lower, upper = self.gain_bounds_db
+        at_peak = self.ripple_at_peak_db
+        assert at_peak is not None
+        return {
+            "reference_impedance_ohm": self.reference_impedance_ohm,
+            "source": self.port_source,
+            "return_loss_db": self.port_return_loss_db,
+            "small_gain_guaranteed": self.guaranteed,
+            "margin_db": self.port_margin_db,
+            "margin_frequency_hz": self.port_margin_frequency_hz,
+            "ripple_at_peak": {
+                "frequency_hz": self.peak_frequency_hz,
+                "gain_lower_db": at_peak[0],
+                "gain_upper_db": _finite_or_none(at_peak[1]),
+            },
+            "worst_ripple_db": _finite_or_none(float(np.max(upper - lower))),
+            "edges": [
+                {
+                    "side": edge.side,
+                    "founded": edge.founded,
+                    "margin_db": edge.margin_db,
+                    "rise_over_outer_octave_db": edge.rise_db,
+                    "note": edge.note,
+                }
+                for edge in self.edges
+            ],
+        }
+
+    def _arrays(self) -> dict[str, Any]:
+        arrays: dict[str, Any] = {
+            "reference_impedance_ohm": self.reference_impedance_ohm,
+            "frequency_hz": self.frequency_hz.tolist(),
+            "gamma_device": [{"re": v.real, "im": v.imag} for v in self.gamma_device.tolist()],
+            "gain_db": self.gain_db.tolist(),
+            "required_return_loss_db": self.required_return_loss_db.tolist(),
+        }
+        if self.gain_bounds_db is not None:
+            arrays["gain_lower_db"] = self.gain_bounds_db[0].tolist()
+            arrays["gain_upper_db"] = [_finite_or_none(v) for v in self.gain_bounds_db[1].tolist()]
+        if self.gain_with_load_db is not None:
+            arrays["gain_with_load_db"] = self.gain_with_load_db.tolist()
+        return arrays
+
+
+# --------------------------------------------------------------------------------------------
+# Entry points
+
+
+def screen_amplifier(
+    device: Any,
+    *,
+    load: Any = None,
+    port_return_loss_db: float | None = None,
+    gain_threshold_db: float = DEFAULT_GAIN_THRESHOLD_DB,
+    measurement_impedance_ohm: float | None = None,
+) -> AmplifierResult:
+    """Screen a device as a reflection amplifier, with a circulator file or a stated port match.
+
+    Parameters
+    ----------
+    device : path, OnePort or skrf.Network
+        The negative-resistance device.
+    load : path, OnePort or skrf.Network, optional
+        What faces the device (the circulator port): the Nyquist check with it decides.
+    port_return_loss_db : float, optional
+        The port's guaranteed return loss, dB (≥ 0), when no file is given.
+    gain_threshold_db : float
+        Gain (dB) a band must reach to be listed.
+    measurement_impedance_ohm : float, optional
+        The impedance the device was measured in, if its file was renormalised afterwards.
+
+    Returns
+    -------
+    AmplifierResult
+    """
+    from ..products.check import analyse_pair, load_one_port
+    from ..reading.alignment import align, renormalise
+
+    if load is not None and port_return_loss_db is not None:
+        raise InputError("give either a load (circulator file) or a port return loss, not both")
+    device_port = load_one_port(device, "device")
+    if load is None:
+        frequency_hz, gamma = device_port.frequency_hz, device_port.gamma
+        z0 = device_port.reference_impedance_ohm
+        if measurement_impedance_ohm is not None and measurement_impedance_ohm != z0:
+            gamma = renormalise(gamma, z0, measurement_impedance_ohm)
+            z0 = measurement_impedance_ohm
+        return analyse_amplifier(
+            frequency_hz,
+            gamma,
+            z0,
+            gain_threshold_db=gain_threshold_db,
+            port_return_loss_db=port_return_loss_db,
+            inputs=(InputRecord.of("device", device_port, z0),),
+        )
+    load_port = load_one_port(load, "load")
+    pair = align(device_port, load_port, measurement_impedance_ohm)
+    nyquist = analyse_pair(pair, device_port, load_port)
+    return analyse_amplifier(
+        pair.frequency_hz,
+        pair.gamma_device,
+        pair.reference_impedance_ohm,
+        gain_threshold_db=gain_threshold_db,
+        gamma_port=pair.gamma_load,
+        nyquist=nyquist,
+        inputs=nyquist.inputs,
+    )
+
+
+def analyse_amplifier(
+    frequency_hz: np.ndarray,
+    gamma_device: np.ndarray,
+    reference_impedance_ohm: float,
+    *,
+    gain_threshold_db: float = DEFAULT_GAIN_THRESHOLD_DB,
+    port_return_loss_db: float | None = None,
+    gamma_port: np.ndarray | None = None,
+    nyquist: CheckResult | None = None,
+    inputs: tuple[InputRecord, ...] = (),
+) -> AmplifierResult:
+    """Gain, bandwidth, ripple bounds and the port match stability needs, from arrays.
+
+    Parameters
+    ----------
+    frequency_hz : ndarray, shape (n,)
+        Strictly increasing, Hz.
+    gamma_device : ndarray of complex, shape (n,)
+        The device's reflection in ``reference_impedance_ohm``.
+    reference_impedance_ohm : float
+        Z0, Ω.
+    gain_threshold_db : float
+        Threshold for the listed gain bands, dB.
+    port_return_loss_db : float, optional
+        A stated port return loss, dB (constant over frequency).
+    gamma_port : ndarray of complex, shape (n,), optional
+        The port's reflection on the same grid (from its file); exclusive with the above.
+    nyquist : CheckResult, optional
+        The Nyquist check with that port, which then decides the verdict.
+    inputs : tuple of InputRecord
+
+    Returns
+    -------
+    AmplifierResult
+
+    Examples
+    --------
+    A pure −75 Ω in 50 Ω gains ((75 + 50)/(75 − 50))² = 25, 13.98 dB:
+
+    >>> f = np.linspace(0.0, 1e9, 11)
+    >>> result = analyse_amplifier(f, np.full(11, 5.0 + 0j), 50.0, port_return_loss_db=20.0)
+    >>> round(result.peak_gain_db, 2), result.verdict
+    (13.98, 'stable')
+    """
+    frequency_hz, gamma_device, port = _validated(
+        frequency_hz, gamma_device, port_return_loss_db, gamma_port
+    )
+    z0 = float(reference_impedance_ohm)
+    gain_db = 20.0 * np.log10(np.maximum(np.abs(gamma_device), 1e-300))
+    required = np.maximum(gain_db, 0.0)
+    peak = int(np.argmax(gain_db))
+    worst = int(np.argmax(required))
+    source = None if port is None else ("load" if gamma_port is not None else "return-loss")
+    if port is None and gain_db[peak] < 0.0:
+        # No gain anywhere: the bound holds for any passive port, |gamma_port| <= 1.
+        port, source = np.ones(frequency_hz.size), "any-passive-port"
+    bounds = None if port is None else _gain_bounds(gamma_device, port)
+    margin: float | None = None
+    margin_frequency: float | None = None
+    edges: tuple[EdgeBound, ...] = ()
+    if port is not None:
+        slack = -20.0 * np.log10(np.maximum(port, 1e-300)) - gain_db
+        margin, margin_frequency = float(np.min(slack)), float(frequency_hz[np.argmin(slack)])
+        edges = (
+            _edge(frequency_hz, gain_db, slack, "low"),
+            _edge(frequency_hz, gain_db, slack, "high"),
+        )
+    with_load = None
+    if gamma_port is not None:
+        effective = gamma_device / (1.0 - gamma_device * gamma_port)
+        with_load = 20.0 * np.log10(np.maximum(np.abs(effective), 1e-300))
+    partial = _Partial(frequency_hz, gain_db, margin, edges, nyquist)
+    verdict, basis, reasons, steps = _decide(partial)
+    return AmplifierResult(
+        verdict=verdict,
+        basis=basis,
+        reasons=tuple(reasons),
+        next_steps=tuple(steps),
+        premise=_premise(z0, frequency_hz),
+        reference_impedance_ohm=z0,
+        gain_threshold_db=float(gain_threshold_db),
+        peak_gain_db=float(gain_db[peak]),
+        peak_frequency_hz=float(frequency_hz[peak]),
+        bands=tuple(_bands(frequency_hz, gain_db, float(gain_threshold_db))),
+        bandwidth=_bandwidth(frequency_hz, gain_db, peak),
+        worst_required_return_loss_db=float(required[worst]),
+        worst_frequency_hz=float(frequency_hz[worst]),
+        port_source=source,
+        port_return_loss_db=_port_return_loss(port_return_loss_db, port),
+        port_margin_db=margin,
+        port_margin_frequency_hz=margin_frequency,
+        edges=edges,
+        nyquist=nyquist,
+        warnings=tuple(_findings(frequency_hz, gain_db, nyquist)),
+        cautions=CAUTIONS,
+        inputs=inputs,
+        frequency_hz=frequency_hz,
+        gamma_device=gamma_device,
+        gain_db=gain_db,
+        required_return_loss_db=required,
+        port_reflection=port,
+        gain_bounds_db=bounds,
+        gain_with_load_db=with_load,
+    )
+
+
+def _validated(
+    frequency_hz: Any, gamma_device: Any, port_return_loss_db: float | None, gamma_port: Any
+) -> tuple[np.ndarray, np.ndarray, np.ndarray | None]:
+    frequency_hz = np.asarray(frequency_hz, dtype=float)
+    gamma_device = np.asarray(gamma_device, dtype=complex)
+    if frequency_hz.ndim != 1 or gamma_device.shape != frequency_hz.shape or frequency_hz.size < 2:
+        raise InputError(
+            "frequency_hz and gamma_device must be 1-D arrays of one length (at least 2 points)"
+        )
+    if np.any(np.diff(frequency_hz) <= 0):
+        raise InputError("frequency_hz must be strictly increasing")
+    if port_return_loss_db is not None and gamma_port is not None:
+        raise InputError("give either a port return loss or the port's reflection, not both")
+    if port_return_loss_db is not None:
+        if not (np.isfinite(port_return_loss_db) and port_return_loss_db >= 0):
+            raise InputError(
+                f"port return loss {port_return_loss_db!r} dB: a number of dB, 0 or more, is"
+                " needed (e.g. 20dB)"
+            )
+        return (
+            frequency_hz,
+            gamma_device,
+            np.full(frequency_hz.size, 10 ** (-port_return_loss_db / 20)),
+        )
+    if gamma_port is not None:
+        gamma_port = np.asarray(gamma_port, dtype=complex)
+        if gamma_port.shape != frequency_hz.shape:
+            raise InputError("gamma_port must be on the device's frequency grid")
+        return frequency_hz, gamma_device, np.abs(gamma_port)
+    return frequency_hz, gamma_device, None
+
+
+def _gain_bounds(gamma_device: np.ndarray, port: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Power-gain bounds in dB: |Γd|/(1 ± |Γd·ΓL|), squared; +inf where |Γd·ΓL| ≥ 1."""
+    magnitude = np.abs(gamma_device)
+    loop = magnitude * port
+    lower = 20.0 * np.log10(np.maximum(magnitude / (1.0 + loop), 1e-300))
+    with np.errstate(divide="ignore"):
+        upper = np.where(
+            loop < 1.0, 20.0 * np.log10(np.maximum(magnitude, 1e-300) / np.abs(1.0 - loop)), np.inf
+        )
+    return lower, upper
+
+
+def _port_return_loss(stated: float | None, port: np.ndarray | None) -> float | None:
+    """The stated return loss, or the worst (smallest) one of the port file, dB."""
+    if stated is not None:
+        return float(stated)
+    if port is None:
+        return None
+    return float(-20.0 * np.log10(np.maximum(np.max(port), 1e-300)))
+
+
+def _edge(frequency_hz: np.ndarray, gain_db: np.ndarray, slack: np.ndarray, side: str) -> EdgeBound:
+    """Can the bound be carried beyond the edge? Yes at 0 Hz; else if the slack there exceeds
+    the gain's rise towards the edge over the outermost octave plus ``EDGE_MARGIN_DB``."""
+    edge = 0 if side == "low" else frequency_hz.size - 1
+    if side == "low" and frequency_hz[0] == 0.0:
+        margin = float(slack[0])
+        return EdgeBound(side, margin > 0, margin, 0.0, "The sweep includes 0 Hz.")
+    if side == "low":
+        inner = min(
+            int(np.searchsorted(frequency_hz, 2.0 * frequency_hz[0])), frequency_hz.size - 1
+        )
+    else:
+        inner = max(int(np.searchsorted(frequency_hz, 0.5 * frequency_hz[-1])) - 1, 0)
+    rise = max(float(gain_db[edge] - gain_db[inner]), 0.0)
+    margin = float(slack[edge])
+    founded = margin > rise + EDGE_MARGIN_DB
+    where = format_frequency(frequency_hz[edge])
+    note = (
+        f"At {where} the port's return loss"
+        + (
+            f" exceeds the gain by {margin:.1f} dB"
+            if margin >= 0
+            else f" falls {-margin:.1f} dB short of the gain"
+        )
+        + " and the gain"
+        f" rises by {rise:.1f} dB towards the edge over the outermost octave"
+        + ("." if founded else ": the bound cannot be carried beyond the sweep.")
+    )
+    return EdgeBound(side, founded, margin, rise, note)
+
+
+@dataclass(frozen=True)
+class _Partial:
+    frequency_hz: np.ndarray
+    gain_db: np.ndarray
+    margin: float | None
+    edges: tuple[EdgeBound, ...]
+    nyquist: CheckResult | None
+
+
+def _decide(partial: _Partial) -> tuple[str, str, list[str], list[str]]:
+    f, gain_db = partial.frequency_hz, partial.gain_db
+    peak = float(np.max(gain_db))
+    worst = format_frequency(float(f[np.argmax(gain_db)]))
+    if partial.nyquist is not None:
+        return _decide_with_load(partial, peak, worst)
+    if partial.margin is None:
+        return (
+            "inconclusive",
+            "none",
+            [
+                f"No port match was stated. For guaranteed stability the port must have at least"
+                f" {peak:.1f} dB return loss at {worst} (and the gain in dB at every frequency)."
+            ],
+            ["State the port's return loss (--port-return-loss) or give its file (--load)."],
+        )
+    if partial.margin <= 0.0:
+        return (
+            "not-guaranteed",
+            "small-gain",
+            [
+                f"The small-gain bound fails: the port's return loss falls short of the gain by"
+                f" {-partial.margin:.1f} dB. It may or may not oscillate, depending on the port's"
+                " phase; the bound no longer guarantees anything."
+            ],
+            [
+                f"Use a port with at least {peak:.1f} dB return loss (plus margin), or check with"
+                " the actual port file (--load)."
+            ],
+        )
+    unfounded = [edge for edge in partial.edges if not edge.founded]
+    if unfounded:
+        return (
+            "inconclusive",
+            "small-gain",
+            [
+                "The small-gain bound holds across the sweep with"
+                f" {partial.margin:.1f} dB to spare, but not clearly beyond it:",
+                *[edge.note for edge in unfounded],
+            ],
+            ["Extend the sweep until the gain has fallen well below the port's return loss."],
+        )
+    port = "any passive port" if peak < 0.0 else "the stated port match"
+    return (
+        "stable",
+        "small-gain",
+        [
+            f"Guaranteed stable for {port}: |gamma_device * gamma_port| < 1 at every"
+            f" frequency, with {partial.margin:.1f} dB to spare (small-gain bound)."
+        ],
+        [],
+    )
+
+
+def _decide_with_load(
+    partial: _Partial, peak: float, worst: str
+) -> tuple[str, str, list[str], list[str]]:
+    nyquist = partial.nyquist
+    assert nyquist is not None
+    reasons = list(nyquist.reasons)
+    guaranteed = partial.margin is not None and partial.margin > 0
+    if guaranteed:
+        reasons.append(
+            f"The small-gain bound also holds with this port ({partial.margin:.1f} dB to spare)."
+        )
+    else:
+        reasons.append(
+            "The small-gain bound does not hold with this port: the verdict rests on the"
+            " Nyquist count with this particular port, whose phase matters; another unit of"
+            " the same part may not behave the same."
+        )
+    steps = list(nyquist.next_steps)
+    if not guaranteed:
+        steps.append(
+            f"For a guarantee, the port needs at least {peak:.1f} dB return loss at {worst}."
+        )
+    return nyquist.verdict, "nyquist", reasons, steps
+
+
+def _premise(z0: float, frequency_hz: np.ndarray) -> str:
+    band = f"{format_frequency(frequency_hz[0])} to {format_frequency(frequency_hz[-1])}"
+    return (
+        f"The small-gain bound proves stability only if the device is stable terminated in"
+        f" {z0:g} ohm (as a device measured on a VNA without oscillating is) and the port's"
+        f" match holds at every frequency, in and out of band; it is checked over {band}."
+        " It is a small-signal result."
+    )
+
+
+def _bands(frequency_hz: np.ndarray, gain_db: np.ndarray, threshold: float) -> list[GainBand]:
+    above = gain_db >= threshold
+    bands = []
+    index = 0
+    while index < above.size:
+        if not above[index]:
+            index += 1
+            continue
+        stop = index
+        while stop + 1 < above.size and above[stop + 1]:
+            stop += 1
+        bands.append(_band(frequency_hz, gain_db, index, stop, threshold))
+        index = stop + 1
+    return bands
+
+
+def _band(
+    frequency_hz: np.ndarray, gain_db: np.ndarray, first: int, last: int, level: float
+) -> GainBand:
+    start = _crossing(frequency_hz, gain_db, first - 1, level) if first > 0 else frequency_hz[0]
+    stop = (
+        _crossing(frequency_hz, gain_db, last, level)
+        if last < frequency_hz.size - 1
+        else frequency_hz[-1]
+    )
+    peak = first + int(np.argmax(gain_db[first : last + 1]))
+    return GainBand(
+        start_hz=float(start),
+        stop_hz=float(stop),
+        peak_gain_db=float(gain_db[peak]),
+        peak_frequency_hz=float(frequency_hz[peak]),
+        starts_at_sweep_edge=first == 0,
+        stops_at_sweep_edge=last == frequency_hz.size - 1,
+    )
+
+
+def _crossing(frequency_hz: np.ndarray, gain_db: np.ndarray, index: int, level: float) -> float:
+    """Where the gain passes ``level`` between samples ``index`` and ``index + 1`` (linear)."""
+    a, b = gain_db[index], gain_db[index + 1]
+    fraction = (level - a) / (b - a) if b != a else 0.5
+    return float(frequency_hz[index] + fraction * (frequency_hz[index + 1] - frequency_hz[index]))
+
+
+def _bandwidth(frequency_hz: np.ndarray, gain_db: np.ndarray, peak: int) -> GainBand:
+    """The stretch around the peak where the gain stays within 3 dB of it."""
+    level = gain_db[peak] - BANDWIDTH_DROP_DB
+    first = peak
+    while first > 0 and gain_db[first - 1] >= level:
+        first -= 1
+    last = peak
+    while last < gain_db.size - 1 and gain_db[last + 1] >= level:
+        last += 1
+    return _band(frequency_hz, gain_db, first, last, level)
+
+
+def _findings(
+    frequency_hz: np.ndarray, gain_db: np.ndarray, nyquist: CheckResult | None
+) -> list[Finding]:
+    findings = []
+    for index, side in ((0, "low"), (-1, "high")):
+        if gain_db[index] > 0.0 and not (side == "low" and frequency_hz[0] == 0.0):
+            findings.append(
+                Finding(
+                    "gain-at-sweep-edge",
+                    f"The device still has {gain_db[index]:.1f} dB of gain at the {side} edge"
+                    f" ({format_frequency(frequency_hz[index])}): the port must stay matched"
+                    " beyond the sweep too.",
+                    {"frequency_hz": float(frequency_hz[index]), "gain_db": float(gain_db[index])},
+                )
+            )
+    if nyquist is not None:
+        findings += list(nyquist.warnings)
+    return findings
+
+
+def _nyquist_dict(nyquist: CheckResult | None) -> dict[str, Any] | None:
+    if nyquist is None:
+        return None
+    data = nyquist.to_dict()
+    keys = ("schema", "verdict", "reasons", "encirclements", "latch_up")
+    summary = {key: data[key] for key in keys}
+    summary["oscillation_frequencies_hz"] = data["oscillation_frequencies_hz"]
+    summary["margins"] = data["margins"]
+    return summary
+
+
+def _finite_or_none(value: float) -> float | None:
+    return value if np.isfinite(value) else None
+
+
+# --------------------------------------------------------------------------------------------
+# Rendering
+
+
+def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
+    """Gain and the return loss stability needs, against frequency (matplotlib).
+
+    Parameters
+    ----------
+    result : AmplifierResult
+    ax : matplotlib Axes, optional
+        Drawn into; a new figure's axes otherwise.
+
+    Returns
+    -------
+    matplotlib Axes
+    """
+    if ax is None:
+        import matplotlib.pyplot as plt
+
+        _, ax = plt.subplots()
+    f_ghz = result.frequency_hz / 1e9
+    z0 = result.reference_impedance_ohm
+    ax.plot(f_ghz, result.gain_db, label="gain |Γd|²")
+    ax.plot(f_ghz, result.required_return_loss_db, "--", label="return loss needed (small gain)")
+    if result.port_reflection is not None:
+        port_db = -20.0 * np.log10(np.maximum(result.port_reflection, 1e-300))
+        ax.plot(f_ghz, port_db, ":", label="port return loss")
+    if result.gain_bounds_db is not None:
+        lower, upper = result.gain_bounds_db
+        top = np.where(np.isfinite(upper), upper, np.nan)
+        ax.fill_between(f_ghz, lower, top, alpha=0.2, label="gain ripple bounds")
+    if result.gain_with_load_db is not None:
+        ax.plot(f_ghz, result.gain_with_load_db, label="gain with this port")
+    ax.axhline(result.gain_threshold_db, color="grey", linewidth=0.8, label="gain threshold")
+    ax.set_xlabel("frequency (GHz)")
+    ax.set_ylabel(f"dB (Z0 = {z0:g} ohm)")
+    ax.set_title(f"Reflection amplifier: {result.verdict}")
+    ax.legend(loc="best", fontsize="small")
+    return ax
+
+
+def save_amplifier_plot(result: AmplifierResult, path: str | Path) -> None:
+    """Draw :func:`plot_amplifier` into a new figure and save it (format from the suffix)."""
+    from matplotlib.figure import Figure
+
+    figure = Figure(figsize=(8, 5))
+    plot_amplifier(result, figure.subplots())
+    try:
+        figure.savefig(path)
+    except (OSError, ValueError) as error:
+        raise InputError(f"--plot {path}: cannot write the plot ({error})") from error

@@ -1,0 +1,12 @@
+"""Sweeps and tolerance analysis: the single check for thousands of variants at once.
+
+``plan.py`` turns ``--vary`` and ``--tolerance`` into parameter arrays, ``runner.py`` evaluates
+them chunk by chunk (in this process or on a Dask cluster) through
+:func:`oneport.analysis.variants.analyse_variants`, ``table.py`` holds the per-variant table, its
+summary and its files.
+"""
+
+from .plan import SweepPlan, grid_plan, monte_carlo_plan
+from .runner import SweepResult, run_sweep
+
+__all__ = ["SweepPlan", "SweepResult", "grid_plan", "monte_carlo_plan", "run_sweep"]

@@ -1,0 +1,234 @@
+"""Run a sweep chunk by chunk, here or on a Dask cluster, into one per-variant table.
+
+A chunk is the unit of work: a slice of the plan's variants, evaluated by a *variant source*
+(a picklable callable: parameter arrays in, device and load reflections on the common grid
+out) and analysed by :func:`oneport.analysis.variants.analyse_variants`. Memory stays bounded by the
+chunk size; the result is the same whichever way the chunks are run, since each chunk is
+computed alone and the table is assembled in chunk order. Ctrl-C stops after the chunks already
+finished, which stay valid.
+"""
+
+from __future__ import annotations
+
+import itertools
+from collections.abc import Callable, Iterator
+from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from ...analysis.variants import VERDICT_CODES, analyse_variants
+from .plan import SweepPlan
+
+VariantSource = Callable[[dict[str, np.ndarray]], tuple[np.ndarray, np.ndarray]]
+
+#: Complex samples (variants × points) per chunk: 16 MB per complex array (500 variants at
+#: 2,001 points), the fastest of 100 to 2,000 variants per chunk measured here.
+CHUNK_SAMPLES = 1_000_000
+
+
+@dataclass(frozen=True)
+class SweepResult:
+    """The per-variant table (column name → array, one row per variant) and how it ended."""
+
+    plan: SweepPlan
+    frequency_hz: np.ndarray = field(repr=False)
+    reference_impedance_ohm: float
+    table: dict[str, np.ndarray] = field(repr=False)
+    completed: int
+    interrupted: bool
+
+    @property
+    def verdicts(self) -> np.ndarray:
+        """Verdict words of the completed variants."""
+        return np.asarray(VERDICT_CODES, dtype=object)[self.table["verdict_code"]]
+
+
+def chunk_bounds(
+    variants: int, points: int, chunk_size: int | None = None
+) -> list[tuple[int, int]]:
+    """(start, stop) of every chunk."""
+    size = chunk_size or max(1, CHUNK_SAMPLES // max(points, 1))
+    return [(start, min(start + size, variants)) for start in range(0, variants, size)]
+
+
+def run_chunk(
+    source: VariantSource,
+    parameters: dict[str, np.ndarray],
+    frequency_hz: np.ndarray,
+    reference_impedance_ohm: float,
+    dc_sign: int | None,
+) -> dict[str, np.ndarray]:
+    """Evaluate and analyse one chunk; return its table columns."""
+    gamma_device, gamma_load = source(parameters)
+    rows = next(iter(parameters.values())).shape[0] if parameters else 1
+    analysis = analyse_variants(
+        frequency_hz,
+        gamma_device,
+        gamma_load,
+        reference_impedance_ohm,
+        dc_sign,
+        load_poles_known=bool(getattr(source, "load_poles_known", False)),
+    )
+    columns = {name: np.asarray(values) for name, values in parameters.items()}
+    for name in (
+        "verdict_code",
+        "encirclements",
+        "count_known",
+        "latch_up",
+        "oscillation_frequency_hz",
+        "oscillatory_modes",
+        "min_distance",
+        "min_distance_frequency_hz",
+        "worst_loop_gain",
+        "worst_loop_gain_frequency_hz",
+    ):
+        columns[name] = np.broadcast_to(getattr(analysis, name), (rows,)).copy()
+    return columns
+
+
+def run_sweep(
+    plan: SweepPlan,
+    source: VariantSource,
+    frequency_hz: np.ndarray,
+    reference_impedance_ohm: float,
+    *,
+    dc_sign: int | None = None,
+    chunk_size: int | None = None,
+    scheduler: str | None = None,
+    workers: int | None = None,
+    threads: int | None = None,
+    progress: Callable[[int], Any] | None = None,
+) -> SweepResult:
+    """Run every chunk of ``plan``; ``progress(n)`` is called with each finished chunk's size.
+
+    ``scheduler`` (``tcp://host:port``) sends chunks to a running Dask cluster; ``workers``
+    > 1 starts a local one. Without either, chunks run here on ``threads`` threads (default
+    one: the netlist's closed form makes many short numpy calls with fresh temporaries, and
+    two threads spent most of their time waiting for the interpreter lock on a 6-element
+    load; measured in benchmarks/README.md). Every chunk is computed alone, so the table is
+    the same in every case.
+    """
+    bounds = chunk_bounds(plan.variants, frequency_hz.size, chunk_size)
+    finished: dict[int, dict[str, np.ndarray]] = {}
+    interrupted = False
+    try:
+        for index, columns in _execute(
+            plan,
+            source,
+            frequency_hz,
+            reference_impedance_ohm,
+            dc_sign,
+            bounds,
+            scheduler,
+            workers,
+            threads,
+        ):
+            finished[index] = columns
+            if progress is not None:
+                progress(bounds[index][1] - bounds[index][0])
+    except KeyboardInterrupt:
+        interrupted = True
+    # Keep the longest run of finished chunks from the start, so rows stay in plan order.
+    done = 0
+    while done in finished:
+        done += 1
+    parts = [finished[i] for i in range(done)]
+    table = (
+        {name: np.concatenate([part[name] for part in parts]) for name in parts[0]} if parts else {}
+    )
+    completed = bounds[done - 1][1] if done else 0
+    return SweepResult(plan, frequency_hz, reference_impedance_ohm, table, completed, interrupted)
+
+
+def _execute(
+    plan: SweepPlan,
+    source: VariantSource,
+    frequency_hz: np.ndarray,
+    reference_impedance_ohm: float,
+    dc_sign: int | None,
+    bounds: list[tuple[int, int]],
+    scheduler: str | None,
+    workers: int | None,
+    threads: int | None,
+) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
+    arguments = (frequency_hz, reference_impedance_ohm, dc_sign)
+    if scheduler is None and (workers is None or workers <= 1):
+        yield from _execute_here(plan, source, arguments, bounds, threads)
+        return
+    yield from _execute_on_dask(plan, source, arguments, bounds, scheduler, workers)
+
+
+def _execute_here(
+    plan: SweepPlan,
+    source: VariantSource,
+    arguments: tuple[Any, ...],
+    bounds: list[tuple[int, int]],
+    threads: int | None,
+) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
+    """Chunks in this process: on ``threads`` threads (numpy releases the GIL in its loops),
+    with at most two chunks per thread in flight so memory stays bounded."""
+    count = max(1, threads if threads is not None else 1)
+    if count == 1 or len(bounds) == 1:
+        for index, (start, stop) in enumerate(bounds):
+            yield index, run_chunk(source, plan.chunk(start, stop), *arguments)
+        return
+    with ThreadPoolExecutor(max_workers=count) as pool:
+        pending: dict[Future[dict[str, np.ndarray]], int] = {}
+        upcoming = iter(enumerate(bounds))
+        try:
+            for index, (start, stop) in itertools.islice(upcoming, 2 * count):
+                pending[pool.submit(run_chunk, source, plan.chunk(start, stop), *arguments)] = index
+            while pending:
+                done, _ = wait(pending, return_when=FIRST_COMPLETED)
+                for future in done:
+                    index = pending.pop(future)
+                    yield index, future.result()
+                    for next_index, (start, stop) in itertools.islice(upcoming, 1):
+                        chunk = plan.chunk(start, stop)
+                        pending[pool.submit(run_chunk, source, chunk, *arguments)] = next_index
+        finally:
+            for future in pending:
+                future.cancel()
+
+
+def _execute_on_dask(
+    plan: SweepPlan,
+    source: VariantSource,
+    arguments: tuple[Any, ...],
+    bounds: list[tuple[int, int]],
+    scheduler: str | None,
+    workers: int | None,
+) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
+    from ...errors import InputError
+
+    try:
+        from distributed import Client, LocalCluster, as_completed
+    except ImportError:
+        raise InputError(
+            "--scheduler/--workers need Dask: pip install 'oneport[cluster]'"
+        ) from None
+    cluster = None
+    if scheduler is None:
+        cluster = LocalCluster(
+            n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None
+        )
+        client = Client(cluster)
+    else:
+        try:
+            client = Client(scheduler, timeout="10s")
+        except OSError as error:
+            raise InputError(f"--scheduler {scheduler}: cannot reach it ({error})") from None
+    try:
+        shared = client.scatter(source, broadcast=True)
+        futures = {
+            client.submit(run_chunk, shared, plan.chunk(start, stop), *arguments, pure=False): i
+            for i, (start, stop) in enumerate(bounds)
+        }
+        for future in as_completed(futures):
+            yield futures[future], future.result()
+    finally:
+        client.close()
+        if cluster is not None:
+            cluster.close()

@@ -1,0 +1,602 @@
+"""Pictures of a check: the Nyquist plot of L, the loop gain against frequency, a Smith chart.
+
+Rendering only: every function draws what a :class:`~oneport.analysis.result.CheckResult` holds
+(arrays, crossings, bands, predicted frequencies) and computes no analysis. Frequencies are shown in
+GHz, |L| in dB and phases in degrees here and nowhere inside the package.
+
+matplotlib is imported inside the functions, never when ``oneport`` is imported. Figures are
+built as :class:`matplotlib.figure.Figure` objects without ``pyplot``, so they need no display;
+the Agg backend is selected unless the caller already imported ``pyplot`` (an interactive
+session keeps its own backend).
+
+Artists that tests and callers may look for carry a ``gid``: ``"critical-point"`` (the +1
+marker), ``"frequency-arrow"``, ``"crossing-label"``, ``"unit-circle"``, ``"loop-gain-band"``
+(shaded |L| ≥ 1 bands), ``"oscillation-frequency"``, ``"smith-boundary"`` (|Γ| = 1),
+``"load-trace"`` and ``"device-trace"``.
+"""
+
+from __future__ import annotations
+
+import io
+import os
+import sys
+import tempfile
+from collections.abc import Sequence
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from ..errors import InputError
+from ..units import format_frequency
+
+if TYPE_CHECKING:
+    from matplotlib.axes import Axes
+    from matplotlib.figure import Figure
+
+    from ..analysis.result import CheckResult
+
+# A neutral palette of our own: ink for the loop, muted warm and cool tones for the rest.
+_INK = "#26323d"
+_LOAD = "#2f7f86"
+_DEVICE = "#a3502d"
+_CRITICAL = "#c0262d"
+_BAND = "#e3c46a"
+_GRID = "#cfd3d6"
+_MUTED = "#8b949a"
+_GIGAHERTZ = 1e9
+_ARROWS = 6
+_SMITH_RESISTANCES = (0.2, 0.5, 1.0, 2.0, 5.0)
+_SMITH_REACTANCES = (0.2, 0.5, 1.0, 2.0, 5.0)
+_SAVE_FORMATS = {".png": "png", ".svg": "svg"}
+
+
+def radius_compressed(values: np.ndarray) -> np.ndarray:
+    """Map complex points to r' = log10(1 + r) / log10(2), keeping their angle.
+
+    The mapping is monotonic, sends 0 to 0 and keeps the unit circle (and so the critical point
+    +1) where it is, while a loop gain of 100 lands at radius 6.7 instead of 100: large loops
+    and the neighbourhood of +1 fit one picture.
+
+    Parameters
+    ----------
+    values : array_like of complex
+
+    Returns
+    -------
+    ndarray of complex
+        Same angles, compressed radii.
+
+    Examples
+    --------
+    >>> points = radius_compressed(np.array([1.0, -1j, 3.0, 100.0]))
+    >>> np.round(np.abs(points), 3).tolist(), round(float(np.angle(points[1])), 3)
+    ([1.0, 1.0, 2.0, 6.658], -1.571)
+    """
+    values = np.asarray(values, dtype=complex)
+    radius = np.abs(values)
+    scaled = np.log10(1.0 + radius) / np.log10(2.0)
+    return scaled * np.exp(1j * np.angle(values))
+
+
+def plot_nyquist(
+    result: CheckResult, ax: Axes | None = None, compress_radius: bool = False
+) -> Figure:
+    """Draw L(f) = Γd·ΓL in the complex plane around the critical point +1.
+
+    The measured branch (increasing frequency shown by arrows) is drawn solid, its mirror image
+    for negative frequencies thin and dashed; the unit circle is dashed; each crossing of the
+    real axis beyond +1 is marked and labelled with its frequency and direction.
+
+    Parameters
+    ----------
+    result : CheckResult
+    ax : matplotlib Axes, optional
+        Where to draw; a new figure is made when omitted.
+    compress_radius : bool
+        Plot radii as log10(1 + r) / log10(2) (see :func:`radius_compressed`): |L| = 1 and +1 stay
+        fixed, large loops shrink.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        The figure drawn into (``ax.figure`` when ``ax`` was given).
+    """
+    figure, ax = _target(ax, (6.4, 6.0))
+    mapping = _radius_mapping(compress_radius)
+    points = mapping(result.loop_gain)
+    mirror = np.conj(points)
+    ax.plot(mirror.real, mirror.imag, color=_MUTED, linewidth=0.8, linestyle="--", label="f < 0")
+    ax.plot(points.real, points.imag, color=_INK, linewidth=1.4, label="L(f), f > 0")
+    _frequency_arrows(ax, points)
+    _unit_circle(ax)
+    ax.axhline(0.0, color=_GRID, linewidth=0.8, zorder=0)
+    ax.axvline(0.0, color=_GRID, linewidth=0.8, zorder=0)
+    _crossing_labels(ax, result, mapping)
+    _edge_labels(ax, result, points)
+    ax.plot(
+        [1.0],
+        [0.0],
+        linestyle="none",
+        marker="P",
+        markersize=11,
+        color=_CRITICAL,
+        markeredgecolor="white",
+        zorder=5,
+        gid="critical-point",
+        label="critical point +1",
+    )
+    ax.set_aspect("equal", adjustable="datalim")
+    radius_word = "log-compressed radius" if compress_radius else "linear"
+    ax.set_xlabel(f"Re L ({radius_word})")
+    ax.set_ylabel(f"Im L ({radius_word})")
+    ax.legend(loc="best", fontsize="small", framealpha=0.85)
+    ax.set_title(f"Nyquist plot of L = Γd·ΓL\n{_headline(result)}", fontsize="medium")
+    return figure
+
+
+def plot_loop_gain(
+    result: CheckResult,
+    ax: Axes | Sequence[Axes] | None = None,
+    log_frequency: bool = False,
+) -> Figure:
+    """Draw |L| in dB and arg L in degrees against frequency (GHz), one above the other.
+
+    Bands where |L| ≥ 1 are shaded in both panels (their edges are the band edges in GHz);
+    predicted oscillation frequencies are vertical lines.
+
+    Parameters
+    ----------
+    result : CheckResult
+    ax : matplotlib Axes or pair of Axes, optional
+        A pair ``(magnitude_axes, phase_axes)`` is used as given; a single Axes holds the
+        magnitude and gets the phase panel appended below it; a new figure when omitted.
+    log_frequency : bool
+        Logarithmic frequency axis.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+    """
+    magnitude_ax, phase_ax = _stacked_axes(ax)
+    frequency_ghz = result.frequency_hz / _GIGAHERTZ
+    with np.errstate(divide="ignore"):
+        magnitude_db = 20.0 * np.log10(np.abs(result.loop_gain))
+    phase_deg = np.degrees(np.angle(result.loop_gain))
+    magnitude_ax.plot(frequency_ghz, magnitude_db, color=_INK, linewidth=1.3, label="|L|")
+    magnitude_ax.axhline(0.0, color=_CRITICAL, linewidth=0.9, linestyle=":", label="|L| = 1")
+    phase_x, phase_y = _break_phase_wraps(frequency_ghz, phase_deg)
+    phase_ax.plot(phase_x, phase_y, color=_INK, linewidth=1.3, label="arg L")
+    phase_ax.axhline(0.0, color=_CRITICAL, linewidth=0.9, linestyle=":")
+    for panel in (magnitude_ax, phase_ax):
+        _shade_bands(panel, result, label=panel is magnitude_ax)
+        _oscillation_lines(panel, result, label=panel is magnitude_ax)
+        panel.grid(True, color=_GRID, linewidth=0.6)
+        if log_frequency:
+            panel.set_xscale("log")
+    phase_ax.set_ylim(-185.0, 185.0)
+    phase_ax.set_yticks([-180, -90, 0, 90, 180])
+    magnitude_ax.set_ylabel("|L| (dB)")
+    phase_ax.set_ylabel("arg L (deg)")
+    phase_ax.set_xlabel("frequency (GHz)")
+    magnitude_ax.legend(loc="best", fontsize="small", framealpha=0.85)
+    magnitude_ax.set_title(f"Loop gain L = Γd·ΓL\n{_headline(result)}", fontsize="medium")
+    return magnitude_ax.figure  # type: ignore[return-value]
+
+
+def plot_smith(result: CheckResult, ax: Axes | None = None, max_radius: float = 3.0) -> Figure:
+    """A Smith chart with the load's ΓL and the device's 1/Γd over frequency.
+
+    The loop closes (L = 1) where ΓL = 1/Γd, so the designer sees where and how close the two
+    traces meet; the dotted segment joins them at the closest approach to +1. 1/Γd of a
+    negative-resistance device lies outside the unit circle: the view extends to the largest
+    radius either trace reaches, at most ``max_radius``, and the |Γ| = 1 boundary is drawn bold.
+
+    Parameters
+    ----------
+    result : CheckResult
+    ax : matplotlib Axes, optional
+    max_radius : float
+        Largest |Γ| shown (traces beyond it are clipped), at least 1.
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+    """
+    figure, ax = _target(ax, (6.4, 6.4))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        device_inverse = 1.0 / result.gamma_device
+    view = _smith_view_radius(result.gamma_load, device_inverse, max(1.0, max_radius))
+    _smith_grid(ax, view)
+    view_clip = _circle_patch(view, fill=False, linewidth=0.0)
+    ax.add_patch(view_clip)
+    for values, color, label, gid in (
+        (result.gamma_load, _LOAD, "ΓL (load)", "load-trace"),
+        (device_inverse, _DEVICE, "1/Γd (device)", "device-trace"),
+    ):
+        finite = np.where(np.isfinite(values), values, np.nan)
+        (line,) = ax.plot(finite.real, finite.imag, color=color, linewidth=1.5, label=label)
+        line.set_gid(gid)
+        line.set_clip_path(view_clip)
+        _smith_end_markers(ax, finite, color, view_clip)
+    _smith_closest_approach(ax, result, device_inverse, view_clip)
+    ax.text(
+        0.0,
+        0.0,
+        "○ lowest frequency, □ highest",
+        transform=ax.transAxes,
+        fontsize="x-small",
+        color=_MUTED,
+    )
+    ax.set_xlim(-1.05 * view, 1.05 * view)
+    ax.set_ylim(-1.05 * view, 1.05 * view)
+    ax.set_aspect("equal")
+    ax.set_axis_off()
+    ax.legend(loc="upper left", fontsize="small", framealpha=0.85)
+    ax.set_title(
+        f"Smith chart, Z0 = {result.reference_impedance_ohm:g} ohm: the loop closes where"
+        f" ΓL = 1/Γd\n{_headline(result)}",
+        fontsize="medium",
+    )
+    return figure
+
+
+def save_plots(result: CheckResult, path: str | Path) -> Path:
+    """Write the quick look (Nyquist and loop-gain plots in one figure) to ``path``.
+
+    Parameters
+    ----------
+    result : CheckResult
+    path : str or Path
+        Ends in ``.png`` or ``.svg``; the format follows the suffix. The file is written
+        whole or not at all (a temporary file renamed into place).
+
+    Returns
+    -------
+    Path
+        The file written.
+
+    Raises
+    ------
+    InputError
+        For another suffix, or when the file cannot be written.
+    """
+    target, image_format = _image_target(path)
+    write_atomically(target, figure_bytes(quick_look_figure(result), image_format))
+    return target
+
+
+def save_figure(figure: Figure, path: str | Path) -> Path:
+    """Write any figure of the package to ``path`` (``.png`` or ``.svg``), whole or not at all."""
+    target, image_format = _image_target(path)
+    write_atomically(target, figure_bytes(figure, image_format))
+    return target
+
+
+def _image_target(path: str | Path) -> tuple[Path, str]:
+    """The target path and image format, checked before anything is drawn."""
+    target = Path(path)
+    image_format = _SAVE_FORMATS.get(target.suffix.lower())
+    if image_format is None:
+        raise InputError(
+            f"{target}: cannot write plots as {target.suffix or 'a file without suffix'!r};"
+            " give a file name ending in .png or .svg"
+        )
+    require_folder(target)
+    return target, image_format
+
+
+def quick_look_figure(result: CheckResult) -> Figure:
+    """One figure: the (radius-compressed) Nyquist plot beside the loop-gain panels."""
+    figure = _new_figure((13.0, 6.2))
+    grid = figure.add_gridspec(2, 2, width_ratios=(1.0, 1.15))
+    plot_nyquist(result, figure.add_subplot(grid[:, 0]), compress_radius=True)
+    magnitude_ax = figure.add_subplot(grid[0, 1])
+    phase_ax = figure.add_subplot(grid[1, 1], sharex=magnitude_ax)
+    plot_loop_gain(result, (magnitude_ax, phase_ax))
+    return figure
+
+
+def figure_bytes(figure: Figure, image_format: str, dpi: float = 110.0) -> bytes:
+    """The figure rendered as ``"png"`` or ``"svg"`` bytes (no software metadata)."""
+    buffer = io.BytesIO()
+    metadata: dict[str, Any] = {"Software": None} if image_format == "png" else {"Creator": None}
+    figure.savefig(buffer, format=image_format, dpi=dpi, metadata=metadata)
+    return buffer.getvalue()
+
+
+def require_folder(target: Path) -> None:
+    """Fail early, before any rendering, when ``target``'s folder does not exist.
+
+    Raises
+    ------
+    InputError
+        One line naming the file and its missing folder.
+    """
+    folder = target.parent if str(target.parent) else Path(".")
+    if not folder.is_dir():
+        raise InputError(f"{target}: cannot be written (no folder {folder}); make it first")
+
+
+def write_atomically(target: Path, content: bytes) -> None:
+    """Write ``content`` to ``target`` through a temporary file in the same folder.
+
+    An interrupted write leaves any earlier ``target`` as it was, never half a file.
+
+    Raises
+    ------
+    InputError
+        One line naming the file when it cannot be written.
+    """
+    folder = target.parent if str(target.parent) else Path(".")
+    temporary: str | None = None
+    try:
+        handle, temporary = tempfile.mkstemp(dir=folder, prefix=f".{target.name}.", suffix=".tmp")
+        with os.fdopen(handle, "wb") as stream:
+            stream.write(content)
+        os.chmod(temporary, 0o666 & ~_umask())  # mkstemp makes it private; give the usual mode
+        os.replace(temporary, target)
+        temporary = None
+    except OSError as error:
+        raise InputError(f"{target}: cannot be written ({error.strerror or error})") from None
+    finally:
+        if temporary is not None and os.path.exists(temporary):
+            os.unlink(temporary)
+
+
+def _umask() -> int:
+    current = os.umask(0)
+    os.umask(current)
+    return current
+
+
+# --- figure plumbing -----------------------------------------------------------------------
+
+
+def _new_figure(size: tuple[float, float]) -> Figure:
+    import matplotlib
+
+    if "matplotlib.pyplot" not in sys.modules:
+        matplotlib.use("Agg")
+    from matplotlib.figure import Figure
+
+    return Figure(figsize=size, layout="constrained")
+
+
+def _target(ax: Axes | None, size: tuple[float, float]) -> tuple[Figure, Axes]:
+    if ax is None:
+        figure = _new_figure(size)
+        return figure, figure.add_subplot()
+    return ax.figure, ax  # type: ignore[return-value]
+
+
+def _stacked_axes(ax: Axes | Sequence[Axes] | None) -> tuple[Axes, Axes]:
+    if ax is None:
+        figure = _new_figure((7.6, 6.0))
+        magnitude_ax = figure.add_subplot(2, 1, 1)
+        return magnitude_ax, figure.add_subplot(2, 1, 2, sharex=magnitude_ax)
+    if isinstance(ax, Sequence):
+        if len(ax) != 2:
+            raise InputError(f"ax: give one Axes or a pair of Axes, got {len(ax)} Axes")
+        return ax[0], ax[1]
+    from mpl_toolkits.axes_grid1 import make_axes_locatable
+
+    phase_ax = make_axes_locatable(ax).append_axes("bottom", size="100%", pad=0.5, sharex=ax)
+    return ax, phase_ax
+
+
+def _headline(result: CheckResult) -> str:
+    count = "N = ?" if result.encirclements is None else f"N = {result.encirclements}"
+    return f"{result.verdict} ({count}), Z0 = {result.reference_impedance_ohm:g} ohm"
+
+
+def _radius_mapping(compressed: bool) -> Any:
+    if compressed:
+        return radius_compressed
+    return lambda values: np.asarray(values, dtype=complex)
+
+
+# --- Nyquist pieces --------------------------------------------------------------------------
+
+
+def _frequency_arrows(ax: Axes, points: np.ndarray) -> None:
+    """Arrow heads along the branch, evenly spaced by path length, pointing up in frequency."""
+    finite = np.isfinite(points)
+    if points.size < 3 or not finite.all():
+        return
+    path = np.concatenate(([0.0], np.cumsum(np.abs(np.diff(points)))))
+    if path[-1] <= 0.0:
+        return
+    targets = path[-1] * (np.arange(_ARROWS) + 0.5) / _ARROWS
+    # Each arrow spans a few samples either side, so scatter in the data does not turn it.
+    span = max(1, points.size // 200)
+    indices = np.unique(np.clip(np.searchsorted(path, targets), span, points.size - 1 - span))
+    extent = float(np.ptp(points.real) + np.ptp(points.imag)) or 1.0
+    for index in indices:
+        direction = points[index + span] - points[index - span]
+        if direction == 0:
+            continue
+        # A head with a vanishing shaft: a long chord across a sparse stretch would mislead.
+        stop = points[index]
+        start = stop - 1e-4 * extent * direction / abs(direction)
+        arrow = ax.annotate(
+            "",
+            xy=(stop.real, stop.imag),
+            xytext=(start.real, start.imag),
+            arrowprops={
+                "arrowstyle": "-|>",
+                "color": _INK,
+                "shrinkA": 0.0,
+                "shrinkB": 0.0,
+                "mutation_scale": 14,
+            },
+        )
+        arrow.set_gid("frequency-arrow")
+
+
+def _unit_circle(ax: Axes) -> None:
+    angle = np.linspace(0.0, 2.0 * np.pi, 361)
+    (circle,) = ax.plot(
+        np.cos(angle), np.sin(angle), color=_MUTED, linewidth=0.9, linestyle=":", label="|L| = 1"
+    )
+    circle.set_gid("unit-circle")
+
+
+def _edge_labels(ax: Axes, result: CheckResult, points: np.ndarray) -> None:
+    """The lowest and highest analysed frequencies written beside the branch's two ends."""
+    for index in (0, -1):
+        if not np.isfinite(points[index]):
+            continue
+        label = ax.annotate(
+            format_frequency(float(result.frequency_hz[index])),
+            xy=(points[index].real, points[index].imag),
+            xytext=(4, -10),
+            textcoords="offset points",
+            fontsize="x-small",
+            color=_MUTED,
+        )
+        label.set_gid("edge-label")
+
+
+def _crossing_labels(ax: Axes, result: CheckResult, mapping: Any) -> None:
+    for crossing in result.crossings:
+        point = complex(mapping(np.array([crossing.loop_gain]))[0])
+        ax.plot([point.real], [point.imag], marker="o", markersize=5, color=_CRITICAL)
+        direction = "cw" if crossing.direction == "clockwise" else "ccw"
+        doubt = ", within noise" if crossing.within_noise else ""
+        label = ax.annotate(
+            f"{crossing.frequency_hz / _GIGAHERTZ:.4g} GHz ({direction}{doubt})",
+            xy=(point.real, point.imag),
+            xytext=(6, 8),
+            textcoords="offset points",
+            fontsize="small",
+            color=_CRITICAL,
+        )
+        label.set_gid("crossing-label")
+
+
+# --- loop-gain pieces ------------------------------------------------------------------------
+
+
+def _break_phase_wraps(x: np.ndarray, phase_deg: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Insert gaps where the wrapped phase jumps by more than 180°, so no vertical lines appear."""
+    jumps = np.flatnonzero(np.abs(np.diff(phase_deg)) > 180.0) + 1
+    return np.insert(x, jumps, np.nan), np.insert(phase_deg, jumps, np.nan)
+
+
+def _shade_bands(ax: Axes, result: CheckResult, label: bool) -> None:
+    for number, band in enumerate(result.bands):
+        patch = ax.axvspan(
+            band.start_hz / _GIGAHERTZ,
+            band.stop_hz / _GIGAHERTZ,
+            color=_BAND,
+            alpha=0.35,
+            linewidth=0.0,
+            zorder=0,
+            label="|L| ≥ 1" if label and number == 0 else None,
+        )
+        patch.set_gid("loop-gain-band")
+
+
+def _oscillation_lines(ax: Axes, result: CheckResult, label: bool) -> None:
+    for frequency_hz in result.oscillation_frequencies_hz:
+        line = ax.axvline(
+            frequency_hz / _GIGAHERTZ,
+            color=_CRITICAL,
+            linewidth=1.1,
+            linestyle="--",
+            label=f"predicted oscillation {format_frequency(frequency_hz)}" if label else None,
+        )
+        line.set_gid("oscillation-frequency")
+
+
+# --- Smith chart pieces ----------------------------------------------------------------------
+
+
+def _circle_patch(radius: float, center: tuple[float, float] = (0.0, 0.0), **style: Any) -> Any:
+    from matplotlib.patches import Circle
+
+    return Circle(center, radius, **style)
+
+
+def _smith_view_radius(load: np.ndarray, device_inverse: np.ndarray, cap: float) -> float:
+    radii = np.abs(np.concatenate([load, device_inverse]))
+    finite = radii[np.isfinite(radii)]
+    largest = float(finite.max()) if finite.size else 1.0
+    return float(np.clip(1.05 * largest, 1.05, cap))
+
+
+def _smith_grid(ax: Axes, view: float) -> None:
+    """Constant-resistance and constant-reactance circles inside |Γ| ≤ 1, rings outside it."""
+    clip = _circle_patch(1.0, fill=False, linewidth=0.0)
+    ax.add_patch(clip)
+    grid_style: dict[str, Any] = {"fill": False, "edgecolor": _GRID, "linewidth": 0.7, "zorder": 0}
+    for resistance in _SMITH_RESISTANCES:
+        center = (resistance / (1.0 + resistance), 0.0)
+        ax.add_patch(_circle_patch(1.0 / (1.0 + resistance), center, **grid_style))
+    for reactance in _SMITH_REACTANCES:
+        for sign in (1.0, -1.0):
+            arc = _circle_patch(1.0 / reactance, (1.0, sign / reactance), **grid_style)
+            ax.add_patch(arc)
+            arc.set_clip_path(clip)
+    ax.plot([-1.0, 1.0], [0.0, 0.0], color=_GRID, linewidth=0.7, zorder=0)
+    for resistance in (0.0, *_SMITH_RESISTANCES):
+        x = (resistance - 1.0) / (resistance + 1.0)
+        ax.annotate(
+            f"{resistance:g}",
+            (x, 0.0),
+            xytext=(2, 2),
+            textcoords="offset points",
+            fontsize="x-small",
+            color=_MUTED,
+        )
+    for ring in range(2, int(np.floor(view)) + 1):
+        ax.add_patch(_circle_patch(float(ring), linestyle=":", **grid_style))
+        ax.annotate(
+            f"|Γ| = {ring}",
+            (0.0, -ring),
+            xytext=(2, 2),
+            textcoords="offset points",
+            fontsize="x-small",
+            color=_MUTED,
+        )
+    boundary = _circle_patch(1.0, fill=False, edgecolor=_INK, linewidth=1.6, zorder=1)
+    boundary.set_gid("smith-boundary")
+    ax.add_patch(boundary)
+
+
+def _smith_end_markers(ax: Axes, values: np.ndarray, color: str, clip: Any) -> None:
+    finite = np.flatnonzero(np.isfinite(values))
+    if finite.size == 0:
+        return
+    for index, marker in ((finite[0], "o"), (finite[-1], "s")):
+        (dot,) = ax.plot(
+            [values[index].real],
+            [values[index].imag],
+            marker=marker,
+            markersize=5,
+            color=color,
+            linestyle="none",
+        )
+        dot.set_clip_path(clip)
+
+
+def _smith_closest_approach(
+    ax: Axes, result: CheckResult, device_inverse: np.ndarray, clip: Any
+) -> None:
+    frequency_hz = result.margins.modulus_margin_frequency_hz
+    index = int(np.argmin(np.abs(result.frequency_hz - frequency_hz)))
+    load, device = result.gamma_load[index], device_inverse[index]
+    if not np.isfinite(device):
+        return
+    (joint,) = ax.plot(
+        [load.real, device.real],
+        [load.imag, device.imag],
+        color=_CRITICAL,
+        linewidth=1.2,
+        linestyle=":",
+        marker=".",
+        label=f"closest to +1: {format_frequency(frequency_hz)}",
+    )
+    joint.set_gid("closest-approach")
+    joint.set_clip_path(clip)
