@@ -8,36 +8,13 @@ Each subcommand lives in ``oneport/commands/<name>.py``.
 from __future__ import annotations
 
 import argparse
-import enum
 import sys
 from collections.abc import Sequence
 from types import ModuleType
 from typing import NoReturn, TextIO
 
+from .commands.outcome import ExitCode
 from .errors import OneportError
-
-
-class ExitCode(enum.IntEnum):
-    """Exit codes shared by every command."""
-
-    HOLDS = 0
-    INTERNAL_ERROR = 1
-    BAD_INPUT = 2
-    FAILS = 3
-    INCONCLUSIVE = 4
-    INTERRUPTED = 130
-
-
-_VERDICT_CODES = {
-    "stable": ExitCode.HOLDS,
-    "unstable": ExitCode.FAILS,
-    "inconclusive": ExitCode.INCONCLUSIVE,
-}
-
-
-def verdict_exit_code(verdict: str) -> int:
-    """The exit code of a stability verdict (``stable`` 0, ``unstable`` 3, ``inconclusive`` 4)."""
-    return int(_VERDICT_CODES[verdict])
 
 
 class _UsageError(Exception):

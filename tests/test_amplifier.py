@@ -8,8 +8,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from oneport.analysis.amplifier import analyse_amplifier, plot_amplifier, screen_amplifier
+from oneport.analysis.amplifier import analyse_amplifier
 from oneport.errors import InputError
+from oneport.products.amplifier import screen_amplifier
+from oneport.rendering.amplifier_plot import plot_amplifier
 
 from helpers import Z0, one_port, run_cli
 

@@ -9,10 +9,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from oneport.commands.outcome import exit_code
 from oneport.errors import InputError
 from oneport.products.oscillator import (
     OSCILLATOR_SCHEMA,
-    VERDICT_EXIT_CODES,
     read_device_description,
 )
 
@@ -176,7 +176,7 @@ def test_json_contract_and_plot(tmp_path: Path) -> None:
         str(plot),
     )
     data = json.loads(out)
-    assert code == VERDICT_EXIT_CODES[data["verdict"]] == 3
+    assert code == exit_code(data["verdict"]) == 3
     assert data["schema"] == OSCILLATOR_SCHEMA == "oneport.oscillator/1"
     assert data["verdict"] == "hard-excitation" and data["starts_from_noise"] is False
     for key in ("warnings", "cautions", "limits", "inputs", "form", "reasons"):

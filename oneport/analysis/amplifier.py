@@ -7,14 +7,14 @@ must exceed 20·log10|Γd| dB wherever |Γd| > 1. With a finite match the voltag
 |Γd|/(1 + |Γd·ΓL|) and |Γd|/(1 − |Γd·ΓL|), the power gain between their squares (METHODS §6).
 With the port's own file, the Nyquist check with the actual load decides.
 
-Computation only, apart from :func:`plot_amplifier` at the end, which draws what a result holds
-(matplotlib imported inside it) and computes nothing.
+Computation only: arrays in, a frozen :class:`AmplifierResult` out. The product that reads files
+is :func:`oneport.products.amplifier.screen_amplifier`; the pictures are in
+:mod:`oneport.rendering.amplifier_plot`.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from pathlib import Path
 from typing import Any
 
 import numpy as np
@@ -226,71 +226,6 @@ class AmplifierResult:
         if self.gain_with_load_db is not None:
             arrays["gain_with_load_db"] = self.gain_with_load_db.tolist()
         return arrays
-
-
-# --------------------------------------------------------------------------------------------
-# Entry points
-
-
-def screen_amplifier(
-    device: Any,
-    *,
-    load: Any = None,
-    port_return_loss_db: float | None = None,
-    gain_threshold_db: float = DEFAULT_GAIN_THRESHOLD_DB,
-    measurement_impedance_ohm: float | None = None,
-) -> AmplifierResult:
-    """Screen a device as a reflection amplifier, with a circulator file or a stated port match.
-
-    Parameters
-    ----------
-    device : path, OnePort or skrf.Network
-        The negative-resistance device.
-    load : path, OnePort or skrf.Network, optional
-        What faces the device (the circulator port): the Nyquist check with it decides.
-    port_return_loss_db : float, optional
-        The port's guaranteed return loss, dB (≥ 0), when no file is given.
-    gain_threshold_db : float
-        Gain (dB) a band must reach to be listed.
-    measurement_impedance_ohm : float, optional
-        The impedance the device was measured in, if its file was renormalised afterwards.
-
-    Returns
-    -------
-    AmplifierResult
-    """
-    from ..products.check import analyse_pair, load_one_port
-    from ..reading.alignment import align, renormalise
-
-    if load is not None and port_return_loss_db is not None:
-        raise InputError("give either a load (circulator file) or a port return loss, not both")
-    device_port = load_one_port(device, "device")
-    if load is None:
-        frequency_hz, gamma = device_port.frequency_hz, device_port.gamma
-        z0 = device_port.reference_impedance_ohm
-        if measurement_impedance_ohm is not None and measurement_impedance_ohm != z0:
-            gamma = renormalise(gamma, z0, measurement_impedance_ohm)
-            z0 = measurement_impedance_ohm
-        return analyse_amplifier(
-            frequency_hz,
-            gamma,
-            z0,
-            gain_threshold_db=gain_threshold_db,
-            port_return_loss_db=port_return_loss_db,
-            inputs=(InputRecord.of("device", device_port, z0),),
-        )
-    load_port = load_one_port(load, "load")
-    pair = align(device_port, load_port, measurement_impedance_ohm)
-    nyquist = analyse_pair(pair, device_port, load_port)
-    return analyse_amplifier(
-        pair.frequency_hz,
-        pair.gamma_device,
-        pair.reference_impedance_ohm,
-        gain_threshold_db=gain_threshold_db,
-        gamma_port=pair.gamma_load,
-        nyquist=nyquist,
-        inputs=nyquist.inputs,
-    )
 
 
 def analyse_amplifier(
@@ -669,57 +604,3 @@ def _nyquist_dict(nyquist: CheckResult | None) -> dict[str, Any] | None:
 
 def _finite_or_none(value: float) -> float | None:
     return value if np.isfinite(value) else None
-
-
-# --------------------------------------------------------------------------------------------
-# Rendering
-
-
-def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
-    """Gain and the return loss stability needs, against frequency (matplotlib).
-
-    Parameters
-    ----------
-    result : AmplifierResult
-    ax : matplotlib Axes, optional
-        Drawn into; a new figure's axes otherwise.
-
-    Returns
-    -------
-    matplotlib Axes
-    """
-    if ax is None:
-        import matplotlib.pyplot as plt
-
-        _, ax = plt.subplots()
-    f_ghz = result.frequency_hz / 1e9
-    z0 = result.reference_impedance_ohm
-    ax.plot(f_ghz, result.gain_db, label="gain |Γd|²")
-    ax.plot(f_ghz, result.required_return_loss_db, "--", label="return loss needed (small gain)")
-    if result.port_reflection is not None:
-        port_db = -20.0 * np.log10(np.maximum(result.port_reflection, 1e-300))
-        ax.plot(f_ghz, port_db, ":", label="port return loss")
-    if result.gain_bounds_db is not None:
-        lower, upper = result.gain_bounds_db
-        top = np.where(np.isfinite(upper), upper, np.nan)
-        ax.fill_between(f_ghz, lower, top, alpha=0.2, label="gain ripple bounds")
-    if result.gain_with_load_db is not None:
-        ax.plot(f_ghz, result.gain_with_load_db, label="gain with this port")
-    ax.axhline(result.gain_threshold_db, color="grey", linewidth=0.8, label="gain threshold")
-    ax.set_xlabel("frequency (GHz)")
-    ax.set_ylabel(f"dB (Z0 = {z0:g} ohm)")
-    ax.set_title(f"Reflection amplifier: {result.verdict}")
-    ax.legend(loc="best", fontsize="small")
-    return ax
-
-
-def save_amplifier_plot(result: AmplifierResult, path: str | Path) -> None:
-    """Draw :func:`plot_amplifier` into a new figure and save it (format from the suffix)."""
-    from matplotlib.figure import Figure
-
-    figure = Figure(figsize=(8, 5))
-    plot_amplifier(result, figure.subplots())
-    try:
-        figure.savefig(path)
-    except (OSError, ValueError) as error:
-        raise InputError(f"--plot {path}: cannot write the plot ({error})") from error

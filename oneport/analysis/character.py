@@ -399,11 +399,12 @@ def _forms(
     z0: float,
     terminations: tuple[TerminationModes, ...],
 ) -> tuple[FormCount, ...]:
-    from ..products.check import check
+    from ..reading.alignment import align
+    from .judgement import analyse_pair
 
     device = OnePort(frequency_hz, gamma_device, z0, source="device (arrays)")
     load = OnePort(frequency_hz, gamma_load, z0, source="load (arrays)")
-    reflection = check(device, load)
+    reflection = analyse_pair(align(device, load), device, load)
     with np.errstate(divide="ignore", invalid="ignore"):
         z_device = z0 * (1 + gamma_device) / (1 - gamma_device)
         z_load = z0 * (1 + gamma_load) / (1 - gamma_load)

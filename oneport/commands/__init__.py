@@ -1,8 +1,9 @@
 """One module per subcommand, each with ``add_parser(subparsers)`` and ``run(arguments, out)``.
 
-``run`` returns an exit code (``oneport.cli.ExitCode``); it may raise ``OneportError`` for bad
-input, which the CLI turns into one line on stderr. Commands import their heavy dependencies
-inside ``run`` so that ``oneport --help`` stays quick.
+``run`` parses the options, calls one product function and one renderer, and returns the exit
+code of the verdict from :mod:`oneport.commands.outcome` (the one verdict → exit-code map). It may
+raise ``OneportError`` for bad input, which the CLI turns into one line on stderr. Commands import
+their heavy dependencies inside ``run`` so that ``oneport --help`` stays quick.
 """
 
 from __future__ import annotations

@@ -64,8 +64,9 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Screen, print, optionally plot; return the exit code of the verdict."""
-    from ..analysis.amplifier import save_amplifier_plot, screen_amplifier
-    from ..cli import ExitCode
+    from ..products.amplifier import screen_amplifier
+    from ..rendering.amplifier_plot import save_amplifier_plot
+    from .outcome import exit_code
 
     impedance = measurement_impedance(arguments)
     return_loss = None
@@ -87,13 +88,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         print(verdict_line(result), file=out)
     else:
         out.write(render(result))
-    codes = {
-        "stable": ExitCode.HOLDS,
-        "not-guaranteed": ExitCode.FAILS,
-        "unstable": ExitCode.FAILS,
-        "inconclusive": ExitCode.INCONCLUSIVE,
-    }
-    return int(codes[result.verdict])
+    return exit_code(result.verdict)
 
 
 def verdict_line(result: AmplifierResult) -> str:

@@ -16,6 +16,7 @@ from .common import (
     measurement_impedance,
     write_json,
 )
+from .outcome import exit_code
 
 NAME = "check"
 
@@ -122,7 +123,6 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the check and print it; return the verdict's exit code."""
     from ..analysis.small_gain import check_return_loss
-    from ..cli import verdict_exit_code
     from ..products.check import check
     from ..reading.preparation import PortSetup
     from ..reading.records import InputRecord
@@ -184,7 +184,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         print(line, file=out)
     else:
         out.write(text)
-    return verdict_exit_code(result.verdict)
+    return exit_code(result.verdict)
 
 
 def _side(path: str, setup: Any, role: str) -> Any:

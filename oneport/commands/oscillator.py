@@ -64,4 +64,6 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         print(verdict_line(result), file=out)
     else:
         out.write(render(result))
-    return result.exit_code
+    from .outcome import exit_code
+
+    return exit_code(result.verdict)

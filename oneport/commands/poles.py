@@ -18,6 +18,7 @@ from .common import (
     measurement_impedance,
     write_json,
 )
+from .outcome import exit_code
 
 if TYPE_CHECKING:
     from ..analysis.character import DeviceCharacter
@@ -78,7 +79,6 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         identify_natural_frequencies,
         with_count_check,
     )
-    from ..cli import verdict_exit_code
     from ..products.check import analyse_pair, load_one_port
     from ..reading.alignment import align
 
@@ -114,7 +114,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         print(verdict_line(result), file=out)
     else:
         out.write(render(result, character))
-    return verdict_exit_code(result.verdict)
+    return exit_code(result.verdict)
 
 
 def verdict_line(result: PoleZeroResult) -> str:

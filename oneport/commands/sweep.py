@@ -97,10 +97,10 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Plan, run, write the table and print the summary; exit code per the conventions."""
-    from ..cli import ExitCode
     from ..products.sweep.runner import run_sweep
     from ..products.sweep.summary import summarise, summary_dict
     from ..products.sweep.table import write_table
+    from .outcome import exit_code
 
     setup = _setup(arguments)
     plan = _plan(arguments, setup)
@@ -135,11 +135,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         write_json(data, out)
     else:
         out.write(_render(result, summary, table_path, arguments.quiet, setup["warnings"]))
-    if result.interrupted:
-        return ExitCode.INTERRUPTED
-    return {"stable": ExitCode.HOLDS, "unstable": ExitCode.FAILS}.get(
-        summary.verdict, ExitCode.INCONCLUSIVE
-    )
+    return exit_code(summary.verdict, interrupted=result.interrupted)
 
 
 def _setup(arguments: argparse.Namespace) -> dict[str, Any]:

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
@@ -18,7 +19,7 @@ from ..errors import InputError
 from ..findings import Finding
 from . import planes
 from .alignment import interpolate, renormalise
-from .touchstone import Multiport, OnePort, read_one_port, read_touchstone
+from .touchstone import Multiport, OnePort, one_port_from_network, read_one_port, read_touchstone
 
 
 @dataclass(frozen=True)
@@ -199,3 +200,16 @@ def _with_record(port: OnePort, multiport: Multiport) -> OnePort:
         number_format=multiport.number_format,
         version=multiport.version,
     )
+
+
+def load_one_port(source: Any, role: str) -> OnePort:
+    """A :class:`OnePort` from a path, ``OnePort``, ``PreparedPort`` or scikit-rf ``Network``."""
+    if isinstance(source, PreparedPort):
+        return source.one_port
+    if isinstance(source, OnePort):
+        return source
+    if isinstance(source, str | Path):
+        return read_one_port(source)
+    if hasattr(source, "s") and hasattr(source, "f") and hasattr(source, "z0"):
+        return one_port_from_network(source, description=f"{role} network")
+    raise TypeError(f"{role}: expected a path, a OnePort or a scikit-rf Network, got {source!r}")

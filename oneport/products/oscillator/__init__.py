@@ -26,7 +26,6 @@ from .manifest import (
 )
 from .result import (
     OSCILLATOR_SCHEMA,
-    VERDICT_EXIT_CODES,
     VERDICTS,
     OperatingPoint,
     OscillatorResult,
@@ -35,7 +34,6 @@ from .result import (
 __all__ = [
     "OSCILLATOR_SCHEMA",
     "VERDICTS",
-    "VERDICT_EXIT_CODES",
     "DriveLevelDevice",
     "IVDevice",
     "OperatingPoint",

@@ -17,16 +17,15 @@ from ...findings import Finding, complex_json
 from ...reading.records import InputRecord
 
 OSCILLATOR_SCHEMA = "oneport.oscillator/1"
-#: The verdicts, each with its exit code (CONVENTIONS: 0 holds, 3 fails, 4 inconclusive).
-VERDICT_EXIT_CODES = {
-    "settles": 0,
-    "hard-excitation": 3,
-    "mode-jumping": 3,
-    "no-oscillation": 3,
-    "outside-data": 4,
-    "inconclusive": 4,
-}
-VERDICTS = tuple(VERDICT_EXIT_CODES)
+#: The verdict words (docs/oscillator.md); the command line maps them to exit codes.
+VERDICTS = (
+    "settles",
+    "hard-excitation",
+    "mode-jumping",
+    "no-oscillation",
+    "outside-data",
+    "inconclusive",
+)
 
 
 @dataclass(frozen=True)
@@ -221,7 +220,7 @@ class OscillatorResult:
     Attributes
     ----------
     verdict : str
-        One of :data:`VERDICTS` (docs/oscillator.md); ``exit_code`` maps it.
+        One of :data:`VERDICTS` (docs/oscillator.md).
     operating_points : tuple of OperatingPoint
         All solutions inside the data, by amplitude.
     starts_from_noise : bool
@@ -257,11 +256,6 @@ class OscillatorResult:
     load_gamma: np.ndarray = field(repr=False)
     load_immittance: np.ndarray = field(repr=False)
     device_traces: tuple[DeviceTrace, ...] = field(repr=False)
-
-    @property
-    def exit_code(self) -> int:
-        """0 settles; 3 hard excitation, mode jumping, no oscillation; 4 outside data, undecided."""
-        return VERDICT_EXIT_CODES[self.verdict]
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
         """The ``oneport.oscillator/1`` JSON object (plain Python types only)."""

@@ -1,0 +1,72 @@
+"""The amplifier product: a device (and what faces it) as the user names them, screened as a
+reflection amplifier (:mod:`oneport.analysis.amplifier` does the arithmetic)."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from ..analysis.amplifier import DEFAULT_GAIN_THRESHOLD_DB, AmplifierResult, analyse_amplifier
+from ..analysis.judgement import analyse_pair
+from ..errors import InputError
+from ..reading.alignment import align, renormalise
+from ..reading.preparation import load_one_port
+from ..reading.records import InputRecord
+
+
+def screen_amplifier(
+    device: Any,
+    *,
+    load: Any = None,
+    port_return_loss_db: float | None = None,
+    gain_threshold_db: float = DEFAULT_GAIN_THRESHOLD_DB,
+    measurement_impedance_ohm: float | None = None,
+) -> AmplifierResult:
+    """Screen a device as a reflection amplifier, with a circulator file or a stated port match.
+
+    Parameters
+    ----------
+    device : path, OnePort or skrf.Network
+        The negative-resistance device.
+    load : path, OnePort or skrf.Network, optional
+        What faces the device (the circulator port): the Nyquist check with it decides.
+    port_return_loss_db : float, optional
+        The port's guaranteed return loss, dB (≥ 0), when no file is given.
+    gain_threshold_db : float
+        Gain (dB) a band must reach to be listed.
+    measurement_impedance_ohm : float, optional
+        The impedance the device was measured in, if its file was renormalised afterwards.
+
+    Returns
+    -------
+    AmplifierResult
+    """
+
+    if load is not None and port_return_loss_db is not None:
+        raise InputError("give either a load (circulator file) or a port return loss, not both")
+    device_port = load_one_port(device, "device")
+    if load is None:
+        frequency_hz, gamma = device_port.frequency_hz, device_port.gamma
+        z0 = device_port.reference_impedance_ohm
+        if measurement_impedance_ohm is not None and measurement_impedance_ohm != z0:
+            gamma = renormalise(gamma, z0, measurement_impedance_ohm)
+            z0 = measurement_impedance_ohm
+        return analyse_amplifier(
+            frequency_hz,
+            gamma,
+            z0,
+            gain_threshold_db=gain_threshold_db,
+            port_return_loss_db=port_return_loss_db,
+            inputs=(InputRecord.of("device", device_port, z0),),
+        )
+    load_port = load_one_port(load, "load")
+    pair = align(device_port, load_port, measurement_impedance_ohm)
+    nyquist = analyse_pair(pair, device_port, load_port)
+    return analyse_amplifier(
+        pair.frequency_hz,
+        pair.gamma_device,
+        pair.reference_impedance_ohm,
+        gain_threshold_db=gain_threshold_db,
+        gamma_port=pair.gamma_load,
+        nyquist=nyquist,
+        inputs=nyquist.inputs,
+    )

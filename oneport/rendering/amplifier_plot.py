@@ -1,0 +1,65 @@
+"""Pictures of a reflection-amplifier screening: gain and the return loss stability needs.
+
+Rendering only (matplotlib imported inside the functions): it draws what an
+:class:`~oneport.analysis.amplifier.AmplifierResult` holds and computes nothing.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from ..analysis.amplifier import AmplifierResult
+from ..errors import InputError
+
+
+def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
+    """Gain and the return loss stability needs, against frequency (matplotlib).
+
+    Parameters
+    ----------
+    result : AmplifierResult
+    ax : matplotlib Axes, optional
+        Drawn into; a new figure's axes otherwise.
+
+    Returns
+    -------
+    matplotlib Axes
+    """
+    if ax is None:
+        import matplotlib.pyplot as plt
+
+        _, ax = plt.subplots()
+    f_ghz = result.frequency_hz / 1e9
+    z0 = result.reference_impedance_ohm
+    ax.plot(f_ghz, result.gain_db, label="gain |Γd|²")
+    ax.plot(f_ghz, result.required_return_loss_db, "--", label="return loss needed (small gain)")
+    if result.port_reflection is not None:
+        port_db = -20.0 * np.log10(np.maximum(result.port_reflection, 1e-300))
+        ax.plot(f_ghz, port_db, ":", label="port return loss")
+    if result.gain_bounds_db is not None:
+        lower, upper = result.gain_bounds_db
+        top = np.where(np.isfinite(upper), upper, np.nan)
+        ax.fill_between(f_ghz, lower, top, alpha=0.2, label="gain ripple bounds")
+    if result.gain_with_load_db is not None:
+        ax.plot(f_ghz, result.gain_with_load_db, label="gain with this port")
+    ax.axhline(result.gain_threshold_db, color="grey", linewidth=0.8, label="gain threshold")
+    ax.set_xlabel("frequency (GHz)")
+    ax.set_ylabel(f"dB (Z0 = {z0:g} ohm)")
+    ax.set_title(f"Reflection amplifier: {result.verdict}")
+    ax.legend(loc="best", fontsize="small")
+    return ax
+
+
+def save_amplifier_plot(result: AmplifierResult, path: str | Path) -> None:
+    """Draw :func:`plot_amplifier` into a new figure and save it (format from the suffix)."""
+    from matplotlib.figure import Figure
+
+    figure = Figure(figsize=(8, 5))
+    plot_amplifier(result, figure.subplots())
+    try:
+        figure.savefig(path)
+    except (OSError, ValueError) as error:
+        raise InputError(f"--plot {path}: cannot write the plot ({error})") from error
