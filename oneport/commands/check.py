@@ -217,7 +217,7 @@ def _second_opinion(result: Any) -> Any:
 
 def _with_second_opinion(text: str, second: Any) -> str:
     """The check's report with the fit's section inserted before the premise."""
-    from .poles import second_opinion_lines
+    from ..rendering.poles_text import second_opinion_lines
 
     section = "\n".join(second_opinion_lines(second)) + "\n\n"
     marker = "Premise\n"

@@ -99,7 +99,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Plan, run, write the table and print the summary; exit code per the conventions."""
     from ..products.sweep.runner import run_sweep
     from ..products.sweep.summary import summarise, summary_dict
-    from ..products.sweep.table import write_table
+    from ..rendering.sweep_table import write_table
+    from ..rendering.sweep_text import render
     from .outcome import exit_code
 
     setup = _setup(arguments)
@@ -125,7 +126,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     if arguments.output and result.completed:
         table_path = str(write_table(result.table, arguments.output))
     if arguments.plot and result.completed:
-        from ..rendering.check_plots import save_figure
+        from ..rendering.figures import save_figure
         from ..rendering.sweep_plots import plot_sweep
 
         save_figure(plot_sweep(result), arguments.plot)
@@ -134,7 +135,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         data["warnings"] = [finding.to_dict() for finding in setup["warnings"]]
         write_json(data, out)
     else:
-        out.write(_render(result, summary, table_path, arguments.quiet, setup["warnings"]))
+        out.write(render(result, summary, table_path, arguments.quiet, setup["warnings"]))
     return exit_code(summary.verdict, interrupted=result.interrupted)
 
 
@@ -308,47 +309,3 @@ def _progress(total: int) -> tuple[Any, Any]:
 
     bar = tqdm(total=total, unit="variant", file=sys.stderr)
     return bar.update, bar.close
-
-
-def _render(
-    result: Any, summary: Any, table_path: str | None, quiet: bool, warnings: list[Any]
-) -> str:
-    from ..units import format_frequency
-
-    headline = {
-        "stable": "ALL STABLE (small-signal)",
-        "unstable": "SOME VARIANTS UNSTABLE",
-        "inconclusive": "INCONCLUSIVE for some variants",
-    }[summary.verdict]
-    line = (
-        f"{headline}: {summary.stable_fraction:.1%} stable, {summary.unstable_fraction:.1%}"
-        f" unstable, {summary.inconclusive_fraction:.1%} inconclusive of {summary.completed}"
-        f" variants; Z0 = {result.reference_impedance_ohm:g} ohm"
-    )
-    if quiet:
-        return line + "\n"
-    rows = [line, ""]
-    if summary.interrupted:
-        rows.append(f"  interrupted: {summary.completed} of {summary.variants} variants finished")
-    rows.append(
-        f"  band {format_frequency(result.frequency_hz[0])}-"
-        f"{format_frequency(result.frequency_hz[-1])}, {result.frequency_hz.size} points"
-    )
-    for name, text in result.plan.description.items():
-        rows.append(f"  {name}: {text}")
-    if summary.stable_bounds:
-        rows.append("  stable variants span (not necessarily one connected region):")
-        for name, (low, high) in summary.stable_bounds.items():
-            rows.append(f"    {name}: {low:.4g} to {high:.4g}")
-    if summary.worst_row is not None:
-        values = ", ".join(
-            f"{name}={result.table[name][summary.worst_row]:.4g}" for name in result.plan.values
-        )
-        rows.append(f"  worst variant (row {summary.worst_row}; {values}): {summary.worst_reason}")
-    if table_path:
-        rows.append(f"  table: {table_path}")
-    from ..cautions import CAUTIONS
-    from ..rendering.check_text import closing_sections
-
-    rows += closing_sections(warnings, (), None, CAUTIONS)
-    return "\n".join(rows) + "\n"

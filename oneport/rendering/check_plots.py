@@ -17,10 +17,6 @@ marker), ``"frequency-arrow"``, ``"crossing-label"``, ``"unit-circle"``, ``"loop
 
 from __future__ import annotations
 
-import io
-import os
-import sys
-import tempfile
 from collections.abc import Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -29,6 +25,8 @@ import numpy as np
 
 from ..errors import InputError
 from ..units import format_frequency
+from .figures import figure_bytes, image_target, new_figure
+from .files import write_atomically
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
@@ -48,7 +46,6 @@ _GIGAHERTZ = 1e9
 _ARROWS = 6
 _SMITH_RESISTANCES = (0.2, 0.5, 1.0, 2.0, 5.0)
 _SMITH_REACTANCES = (0.2, 0.5, 1.0, 2.0, 5.0)
-_SAVE_FORMATS = {".png": "png", ".svg": "svg"}
 
 
 def radius_compressed(values: np.ndarray) -> np.ndarray:
@@ -261,34 +258,14 @@ def save_plots(result: CheckResult, path: str | Path) -> Path:
     InputError
         For another suffix, or when the file cannot be written.
     """
-    target, image_format = _image_target(path)
+    target, image_format = image_target(path)
     write_atomically(target, figure_bytes(quick_look_figure(result), image_format))
     return target
 
 
-def save_figure(figure: Figure, path: str | Path) -> Path:
-    """Write any figure of the package to ``path`` (``.png`` or ``.svg``), whole or not at all."""
-    target, image_format = _image_target(path)
-    write_atomically(target, figure_bytes(figure, image_format))
-    return target
-
-
-def _image_target(path: str | Path) -> tuple[Path, str]:
-    """The target path and image format, checked before anything is drawn."""
-    target = Path(path)
-    image_format = _SAVE_FORMATS.get(target.suffix.lower())
-    if image_format is None:
-        raise InputError(
-            f"{target}: cannot write plots as {target.suffix or 'a file without suffix'!r};"
-            " give a file name ending in .png or .svg"
-        )
-    require_folder(target)
-    return target, image_format
-
-
 def quick_look_figure(result: CheckResult) -> Figure:
     """One figure: the (radius-compressed) Nyquist plot beside the loop-gain panels."""
-    figure = _new_figure((13.0, 6.2))
+    figure = new_figure((13.0, 6.2))
     grid = figure.add_gridspec(2, 2, width_ratios=(1.0, 1.15))
     plot_nyquist(result, figure.add_subplot(grid[:, 0]), compress_radius=True)
     magnitude_ax = figure.add_subplot(grid[0, 1])
@@ -297,82 +274,19 @@ def quick_look_figure(result: CheckResult) -> Figure:
     return figure
 
 
-def figure_bytes(figure: Figure, image_format: str, dpi: float = 110.0) -> bytes:
-    """The figure rendered as ``"png"`` or ``"svg"`` bytes (no software metadata)."""
-    buffer = io.BytesIO()
-    metadata: dict[str, Any] = {"Software": None} if image_format == "png" else {"Creator": None}
-    figure.savefig(buffer, format=image_format, dpi=dpi, metadata=metadata)
-    return buffer.getvalue()
-
-
-def require_folder(target: Path) -> None:
-    """Fail early, before any rendering, when ``target``'s folder does not exist.
-
-    Raises
-    ------
-    InputError
-        One line naming the file and its missing folder.
-    """
-    folder = target.parent if str(target.parent) else Path(".")
-    if not folder.is_dir():
-        raise InputError(f"{target}: cannot be written (no folder {folder}); make it first")
-
-
-def write_atomically(target: Path, content: bytes) -> None:
-    """Write ``content`` to ``target`` through a temporary file in the same folder.
-
-    An interrupted write leaves any earlier ``target`` as it was, never half a file.
-
-    Raises
-    ------
-    InputError
-        One line naming the file when it cannot be written.
-    """
-    folder = target.parent if str(target.parent) else Path(".")
-    temporary: str | None = None
-    try:
-        handle, temporary = tempfile.mkstemp(dir=folder, prefix=f".{target.name}.", suffix=".tmp")
-        with os.fdopen(handle, "wb") as stream:
-            stream.write(content)
-        os.chmod(temporary, 0o666 & ~_umask())  # mkstemp makes it private; give the usual mode
-        os.replace(temporary, target)
-        temporary = None
-    except OSError as error:
-        raise InputError(f"{target}: cannot be written ({error.strerror or error})") from None
-    finally:
-        if temporary is not None and os.path.exists(temporary):
-            os.unlink(temporary)
-
-
-def _umask() -> int:
-    current = os.umask(0)
-    os.umask(current)
-    return current
-
-
 # --- figure plumbing -----------------------------------------------------------------------
-
-
-def _new_figure(size: tuple[float, float]) -> Figure:
-    import matplotlib
-
-    if "matplotlib.pyplot" not in sys.modules:
-        matplotlib.use("Agg")
-    from matplotlib.figure import Figure
-
-    return Figure(figsize=size, layout="constrained")
 
 
 def _target(ax: Axes | None, size: tuple[float, float]) -> tuple[Figure, Axes]:
     if ax is None:
-        figure = _new_figure(size)
+        figure = new_figure(size)
         return figure, figure.add_subplot()
     return ax.figure, ax  # type: ignore[return-value]
 
 
 def _stacked_axes(ax: Axes | Sequence[Axes] | None) -> tuple[Axes, Axes]:
     if ax is None:
-        figure = _new_figure((7.6, 6.0))
+        figure = new_figure((7.6, 6.0))
         magnitude_ax = figure.add_subplot(2, 1, 1)
         return magnitude_ax, figure.add_subplot(2, 1, 2, sharex=magnitude_ax)
     if isinstance(ax, Sequence):

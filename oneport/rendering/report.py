@@ -86,7 +86,7 @@ def write_report(result: CheckResult, path: str | Path, title: str | None = None
     InputError
         When the file cannot be written (one line naming it).
     """
-    from .check_plots import require_folder, write_atomically
+    from .files import require_folder, write_atomically
 
     target = Path(path)
     require_folder(target)
@@ -306,7 +306,7 @@ def _figures(result: CheckResult) -> str:
 
 
 def _figure(figure: Figure, caption: str) -> str:
-    from .check_plots import figure_bytes
+    from .figures import figure_bytes
 
     encoded = base64.b64encode(figure_bytes(figure, "png")).decode("ascii")
     return (

@@ -3,7 +3,7 @@
 Rendering only: it draws what a :class:`~oneport.analysis.terminations.TerminationsResult`
 holds (the stability circle, its negative side, the best termination) and computes no
 analysis. matplotlib is imported inside the functions; files are written through
-:func:`oneport.rendering.check_plots.save_figure` (``.png`` or ``.svg``, whole or not at all).
+:func:`oneport.rendering.figures.save_figure` (``.png`` or ``.svg``, whole or not at all).
 
 Artists carry a ``gid`` for tests and callers: ``"passive-boundary"`` (|Γ_T| = 1),
 ``"stability-circle"``, ``"negative-region"`` and ``"best-termination"``.
@@ -64,7 +64,7 @@ def termination_figure(result: TerminationsResult) -> Figure:
 
 def save_termination_chart(result: TerminationsResult, path: str | Path) -> Path:
     """Write :func:`termination_figure` to ``path`` (``.png`` or ``.svg``)."""
-    from .check_plots import save_figure
+    from .figures import save_figure
 
     return save_figure(termination_figure(result), path)
 

@@ -2,8 +2,9 @@
 
 ``plan.py`` turns ``--vary`` and ``--tolerance`` into parameter arrays, ``runner.py`` evaluates
 them chunk by chunk (in this process or on a Dask cluster) through
-:func:`oneport.analysis.variants.analyse_variants`, ``table.py`` holds the per-variant table, its
-summary and its files.
+:func:`oneport.analysis.variants.analyse_variants` into one per-variant table, ``sources.py``
+says where a variant's reflections come from and ``summary.py`` condenses the table. Writing
+the table and drawing it are rendering (``oneport.rendering.sweep_table``, ``sweep_plots``).
 """
 
 from .plan import SweepPlan, grid_plan, monte_carlo_plan

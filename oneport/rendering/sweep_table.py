@@ -7,8 +7,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ...analysis.variants import VERDICT_CODES
-from ...errors import InputError
+from ..analysis.variants import VERDICT_CODES
+from ..errors import InputError
 
 #: Rows above which CSV is refused (Parquet holds them in a fraction of the space).
 CSV_ROW_LIMIT = 200_000

@@ -1,0 +1,105 @@
+"""Plain-text report of a reflection-amplifier screening.
+
+Rendering only: it formats what an :class:`~oneport.analysis.amplifier.AmplifierResult` holds
+and computes nothing.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from ..units import format_frequency
+from .check_text import closing_sections, wrap
+
+if TYPE_CHECKING:
+    from ..analysis.amplifier import AmplifierResult, GainBand
+
+_HEADLINE = {
+    "stable": "STABLE",
+    "not-guaranteed": "NOT GUARANTEED",
+    "unstable": "UNSTABLE",
+    "inconclusive": "INCONCLUSIVE",
+}
+
+
+def verdict_line(result: AmplifierResult) -> str:
+    """One line: verdict and its basis, peak gain, port, Z0."""
+    basis = {
+        "small-gain": "small-gain bound",
+        "nyquist": "Nyquist count with the load",
+        "none": "no port stated",
+    }[result.basis]
+    port = ""
+    if result.port_source == "return-loss":
+        port = f"; port {result.port_return_loss_db:.1f} dB return loss"
+    elif result.port_source == "load":
+        port = f"; port file, worst return loss {result.port_return_loss_db:.1f} dB"
+    return (
+        f"{_HEADLINE[result.verdict]} ({basis}): peak gain {result.peak_gain_db:.2f} dB at"
+        f" {format_frequency(result.peak_frequency_hz)}{port};"
+        f" Z0 = {result.reference_impedance_ohm:g} ohm"
+    )
+
+
+def render(result: AmplifierResult) -> str:
+    """The full text report."""
+    parts = [verdict_line(result), ""]
+    parts += [wrap(reason, "  ") for reason in result.reasons]
+    parts += ["", *_gain(result), "", *_requirement(result)]
+    if result.nyquist is not None:
+        nyquist = result.nyquist
+        count = "?" if nyquist.encirclements is None else str(nyquist.encirclements)
+        parts += ["", "Nyquist check with the load", f"  {nyquist.verdict}, N = {count}"]
+    parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
+    return "\n".join(parts) + "\n"
+
+
+def _gain(result: AmplifierResult) -> list[str]:
+    z0 = result.reference_impedance_ohm
+    bandwidth = result.bandwidth
+    rows = [
+        f"Gain |gamma_device|^2 (Z0 = {z0:g} ohm)",
+        f"  peak {result.peak_gain_db:.2f} dB at {format_frequency(result.peak_frequency_hz)}",
+        f"  -3 dB band {_span(bandwidth)}, bandwidth"
+        f" {format_frequency(bandwidth.stop_hz - bandwidth.start_hz)}",
+    ]
+    if not result.bands:
+        rows.append(f"  no band reaches {result.gain_threshold_db:g} dB")
+    for band in result.bands:
+        rows.append(
+            f"  >= {result.gain_threshold_db:g} dB: {_span(band)}, peak {band.peak_gain_db:.2f} dB"
+            f" at {format_frequency(band.peak_frequency_hz)}"
+        )
+    return rows
+
+
+def _requirement(result: AmplifierResult) -> list[str]:
+    rows = [
+        "Port match for guaranteed stability (small-gain bound |gamma_device * gamma_port| < 1)",
+        f"  return loss needed: {result.worst_required_return_loss_db:.2f} dB at"
+        f" {format_frequency(result.worst_frequency_hz)} (the gain in dB at each frequency)",
+    ]
+    if result.port_margin_db is not None and result.port_margin_frequency_hz is not None:
+        source = {
+            "return-loss": "stated",
+            "load": "from the port file",
+            "any-passive-port": "any passive port",
+        }[result.port_source or ""]
+        rows.append(
+            f"  port return loss {result.port_return_loss_db:.2f} dB ({source}): margin"
+            f" {result.port_margin_db:+.2f} dB at"
+            f" {format_frequency(result.port_margin_frequency_hz)}"
+        )
+        rows += [wrap(edge.note, "  ") for edge in result.edges]
+    ripple = result.ripple_at_peak_db
+    if ripple is not None:
+        lower, upper = ripple
+        top = "unbounded" if upper == float("inf") else f"{upper:.2f} dB"
+        rows.append(f"  gain at the peak with this match: {lower:.2f} dB to {top}")
+    return rows
+
+
+def _span(band: GainBand) -> str:
+    low = format_frequency(band.start_hz) + (" (sweep edge)" if band.starts_at_sweep_edge else "")
+    high = format_frequency(band.stop_hz) + (" (sweep edge)" if band.stops_at_sweep_edge else "")
+    return f"{low} to {high}"
