@@ -111,6 +111,7 @@ def files():
         gamma_of_admittance(load_admittance(load_f)),
         [f"load: {LOAD_R_OHM:g} ohm in parallel with {LOAD_L_H * 1e9:g} nH (shunt, DC return)"],
     )
+    out["load.cir"] = _load_netlist()
     device_f = np.linspace(*DEVICE_SWEEP)
     levels = []
     for power_dbm in LEVELS_DBM:
@@ -130,6 +131,20 @@ def files():
     out["iv_table.toml"] = _iv_manifest(table=True)
     out["hard_excitation.toml"] = _quintic_manifest()
     return out
+
+
+def _load_netlist():
+    """The same load as a netlist: the resistor and the shunt inductor at the port."""
+    return "\n".join(
+        [
+            f"* {ORIGIN}",
+            "* The oscillator's load: a resistor and a shunt inductor (the DC return) at the port.",
+            f"RL 1 0 {LOAD_R_OHM:g}",
+            f"LL 1 0 {LOAD_L_H * 1e9:g}n",
+            ".oneport 1",
+            "",
+        ]
+    )
 
 
 def _drive_manifest(levels):

@@ -173,21 +173,24 @@ def choose_form(description: DeviceDescription, requested: str | None) -> tuple[
     """Kurokawa's form for this device, and the reason given for it."""
     if requested is not None and requested != "auto":
         if requested not in _AMPLITUDE:
-            raise InputError(f"form: {requested!r} is not one of 'admittance', 'impedance', 'auto'")
+            raise InputError(f"form: {requested!r} is not one of admittance, impedance, auto")
         return requested, "as requested"
     if description.form != "auto":
         return description.form, f"as the manifest states (form = {description.form})"
     if isinstance(description, IVDevice):
         return "admittance", (
             "an I-V curve is a voltage-controlled conductance: its describing function depends"
-            " on the junction voltage amplitude, so the admittance form (G_T, B_T, port voltage)"
-            " suits it"
+            " on the junction voltage amplitude, so the admittance form (total conductance and"
+            " susceptance, port voltage) suits it"
         )
     if description.quantity == "peak_current_a":
-        return "impedance", "the drive levels are port current amplitudes (R_T, X_T, port current)"
+        return "impedance", (
+            "the drive levels are port current amplitudes (total resistance and reactance, port"
+            " current)"
+        )
     return "admittance", (
         "the default for voltage-controlled (N-type) devices such as tunnel diodes; state"
-        " form = 'impedance' in the manifest for a current-controlled (S-type) device"
+        ' form = "impedance" in the manifest for a current-controlled (S-type) device'
     )
 
 

@@ -30,7 +30,7 @@ import numpy as np
 
 from ...errors import FileFormatError, InputError
 from ...reading.touchstone import OnePort, read_one_port
-from ...units import parse_quantity
+from ...units import format_engineering, parse_quantity
 from .describing import CurrentFunction, TunnelDiodeModel, polynomial_current, table_current
 
 KINDS = ("drive-levels", "iv-curve")
@@ -397,9 +397,7 @@ def _curve(
     if present[0] == "polynomial_coefficients":
         _allowed(iv, ("polynomial_coefficients",), "iv", where)
         coefficients = _number_list(iv, "polynomial_coefficients", where)
-        summary = "polynomial in (V - V0), coefficients " + ", ".join(
-            f"{c:g}" for c in coefficients
-        )
+        summary = _polynomial_summary(coefficients)
         return "polynomial", polynomial_current(coefficients, bias), summary, None, None
     model = iv["model"]
     if model != "tunnel-diode":
@@ -412,15 +410,38 @@ def _curve(
     }
     tunnel = TunnelDiodeModel(**values)
     summary = (
-        f"tunnel-diode model: Ip = {tunnel.peak_current_a:g} A, Vp = {tunnel.peak_voltage_v:g} V,"
-        f" Is = {tunnel.saturation_current_a:g} A, Ve = {tunnel.emission_voltage_v:g} V"
+        f"tunnel-diode model: Ip = {format_engineering(tunnel.peak_current_a, 'A')},"
+        f" Vp = {format_engineering(tunnel.peak_voltage_v, 'V')},"
+        f" Is = {format_engineering(tunnel.saturation_current_a, 'A')},"
+        f" Ve = {format_engineering(tunnel.emission_voltage_v, 'V')}"
     )
     if tunnel.excess_current_a:
         summary += (
-            f", Ix = {tunnel.excess_current_a:g} A, K = {tunnel.excess_exponent_per_v:g} /V,"
-            f" Vv = {tunnel.valley_voltage_v:g} V"
+            f", Ix = {format_engineering(tunnel.excess_current_a, 'A')},"
+            f" K = {tunnel.excess_exponent_per_v:.4g} /V,"
+            f" Vv = {format_engineering(tunnel.valley_voltage_v, 'V')}"
         )
     return "tunnel-diode", tunnel.current, summary, None, None
+
+
+def _polynomial_summary(coefficients: tuple[float, ...]) -> str:
+    """``i = 0.002 v - v³ + 8 v⁵`` for the manifest's coefficients, v = V - V0 in V, i in A."""
+    powers = "⁰¹²³⁴⁵⁶⁷⁸⁹"
+    terms = []
+    for power, coefficient in enumerate(coefficients):
+        if coefficient == 0:
+            continue
+        exponent = "".join(powers[int(d)] for d in str(power)) if power > 1 else ""
+        variable = "" if power == 0 else f"v{exponent}"
+        size = abs(coefficient)
+        number = "" if (size == 1 and power) else f"{size:.4g}" + (" " if power else "")
+        sign = "-" if coefficient < 0 else "+"
+        terms.append((sign, f"{number}{variable}"))
+    if not terms:
+        return "polynomial about the bias: i = 0 A"
+    text = ("-" if terms[0][0] == "-" else "") + terms[0][1]
+    text += "".join(f" {sign} {term}" for sign, term in terms[1:])
+    return f"polynomial about the bias: i = {text} (i in A, v = V - V0 in V)"
 
 
 def read_iv_table(path: Path, label: str) -> tuple[np.ndarray, np.ndarray, str]:

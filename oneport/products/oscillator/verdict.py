@@ -28,7 +28,7 @@ import numpy as np
 
 from ...findings import Finding
 from ...reading.alignment import AlignedPair
-from ...units import format_frequency, format_power
+from ...units import format_engineering, format_frequency, format_power
 from .lines import COUNT_GRID_POINTS, COUNT_GRID_SPAN, NETLIST_GRID_POINTS
 from .manifest import DeviceDescription, DriveLevelDevice, IVDevice
 from .result import LevelCount, OperatingPoint
@@ -62,8 +62,8 @@ def decide(
     if start_up.latch_up:
         reasons.append(
             "The count is odd: one natural frequency is real, so the bias point runs away"
-            " (latch-up) before any oscillation can settle; the operating points above assume a"
-            " bias that holds."
+            " (latch-up) before any oscillation can settle"
+            + ("; the operating points above assume a bias that holds." if points else ".")
         )
         steps.append(
             "Do not apply full bias into this load: keep the bias network's DC resistance below"
@@ -203,9 +203,9 @@ def findings(
     pair: AlignedPair,
 ) -> list[Finding]:
     """Data-specific warnings (codes are documented in docs/oscillator.md)."""
-    result = list(start_up.warnings)
+    result = list(start_up.warnings)  # the small-signal count's doubts about the data
     dropped = pair.device_points_dropped_below + pair.device_points_dropped_above
-    if dropped:
+    if dropped and not any(w.code == "device-points-outside-load-band" for w in result):
         result.append(
             Finding(
                 "device-points-outside-load-band",
@@ -323,16 +323,19 @@ def limits(loop: Loop, description: DeviceDescription, *, netlist_load: bool) ->
     """What the method cannot see, stated in every result."""
     low, high = loop.device.parameter_range
     band = loop.device.frequency_hz
-    quantity = {
+    quantity, unit = {
         "incident_power_dbm": ("incident power", "dBm"),
         "peak_voltage_v": ("peak voltage at the port", "V"),
         "peak_current_a": ("peak current into the port", "A"),
         "junction_peak_voltage_v": ("peak voltage across the junction", "V"),
     }[loop.device.parameter_quantity]
+    if unit == "dBm":
+        span = f"{format_plain(low)} dBm to {format_plain(high)} dBm"
+    else:
+        span = f"{format_engineering(low, unit)} to {format_engineering(high, unit)}"
     stated = [
-        f"Solutions are sought only inside the data: {quantity[0]} from {format_plain(low)} to"
-        f" {format_plain(high)} {quantity[1]}, {format_frequency(band[0])} to"
-        f" {format_frequency(band[-1])}.",
+        f"Solutions are sought only inside the data: {quantity} from {span},"
+        f" {format_frequency(band[0])} to {format_frequency(band[-1])}.",
         "Kurokawa's conditions assume a slowly varying amplitude at one frequency (a"
         " high-Q loop); stability indices and decay rates are local figures near each point, and"
         " single-frequency analysis cannot see competition between modes.",
