@@ -320,6 +320,34 @@ def test_injection_below_out_of_range_is_one_line(value: str) -> None:
     assert err.startswith("oneport: --injection-below: ")
 
 
+@pytest.mark.parametrize(
+    ("old", "new", "key"),
+    [
+        ('series_inductance_h = "0.4nH"', "series_inductance_h = 1e308", "parasitics."),
+        ('junction_capacitance_f = "1.5pF"', "junction_capacitance_f = 1e308", "parasitics."),
+        ("series_resistance_ohm = 3", "series_resistance_ohm = 1e-308", "parasitics."),
+        ("amplitude_max_v = 0.12", "amplitude_max_v = 5e-324", "amplitude_"),
+        (
+            "amplitude_max_v = 0.12",
+            "amplitude_max_v = 0.12\namplitude_min_v = 1e-300",
+            "amplitude_",
+        ),
+        ("emission_voltage_v = 0.03", "emission_voltage_v = 1e-308", "iv:"),
+        ("peak_voltage_v = 0.065", "peak_voltage_v = 5e-324", "iv:"),
+        ("peak_current_a = 0.002", "peak_current_a = 1e308", "iv:"),
+    ],
+)
+def test_values_no_device_has_are_one_line(tmp_path: Path, old: str, new: str, key: str) -> None:
+    # Each of these overflowed somewhere in the analysis (an infinite admittance, a zero
+    # amplitude): now refused before any computing.
+    text = (EXAMPLES / "tunnel_diode.toml").read_text()
+    assert old in text
+    path = manifest(tmp_path, text.replace(old, new))
+    code, out, err = run_cli("oscillator", str(path), "--load", str(EXAMPLES / "load.s1p"))
+    assert code == 2 and out == "" and err.count("\n") == 1
+    assert err.startswith(f"oneport: {path}: {key}")
+
+
 def test_text_report_puts_the_verdict_first_and_cautions_last(tmp_path: Path) -> None:
     shutil.copy(EXAMPLES / "load.s1p", tmp_path / "load.s1p")
     code, out, _ = run_cli(

@@ -77,12 +77,14 @@ def plot_oscillator(result: OscillatorResult, ax: Axes | Sequence[Axes] | None =
 def _legend_handles(result: OscillatorResult) -> list[Any]:
     from matplotlib.lines import Line2D
 
-    return [
+    handles = [
         Line2D([], [], color=_LOAD, label="load, along frequency"),
         Line2D([], [], color=_DEVICE, label="device, along amplitude (arrows: increasing)"),
-        Line2D([], [], linestyle="none", **_marker_style(True), label="stable operating point"),
-        Line2D([], [], linestyle="none", **_marker_style(False), label="unstable operating point"),
     ]
+    for stable, label in ((True, "stable operating point"), (False, "unstable operating point")):
+        if any(_stable(point) == stable for point in result.operating_points):
+            handles.append(Line2D([], [], linestyle="none", **_marker_style(stable), label=label))
+    return handles
 
 
 def _view_radius(result: OscillatorResult) -> float:

@@ -38,7 +38,11 @@ _KIND = {"drive-levels": "drive-level files", "iv-curve": "I-V description"}
 def verdict_line(result: OscillatorResult) -> str:
     """One line: the verdict and the stable points."""
     listed = "; ".join(_point_summary(p) for p in _stable(result))
-    return _HEADLINE[result.verdict] + (f": {listed}" if listed else "")
+    if not listed:
+        return _HEADLINE[result.verdict]
+    if result.verdict in ("settles", "hard-excitation", "mode-jumping"):
+        return f"{_HEADLINE[result.verdict]}: {listed}"
+    return f"{_HEADLINE[result.verdict]} (stable in the data: {listed})"
 
 
 def summary_line(result: OscillatorResult) -> str:

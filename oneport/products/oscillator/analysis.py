@@ -412,9 +412,11 @@ def _linearised(description: IVDevice, amplitude_v: float) -> Any:
     if parasitics.series_inductance_h:
         circuit.inductor("LS", node, "ls", parasitics.series_inductance_h)
         node = "ls"
-    if conductance:
+    # Below 1 fS the junction conducts nothing a 50 ohm loop could see: left open.
+    conducts = abs(conductance) >= 1e-15
+    if conducts:
         circuit.resistor("RJ", node, "0", 1.0 / conductance)
-    if parasitics.junction_capacitance_f or not conductance:
+    if parasitics.junction_capacitance_f or not conducts:
         # A junction with neither conductance nor capacitance is open: 1 aF stands for it.
         circuit.capacitor("CJ", node, "0", parasitics.junction_capacitance_f or 1e-18)
     return circuit.port("port")
@@ -451,7 +453,12 @@ def _operating_point(loop: Loop, figures: KurokawaFigures, ratio: float) -> Oper
     level = _LEVEL[loop.device.parameter_quantity]
     variable = amplitude if figures.stability_variable == "form" else level
     immittance_unit = "S" if loop.form == "admittance" else "ohm"
-    variable_unit = {"incident_power": "dBm", "port_peak_current": "A"}.get(variable, "V")
+    variable_unit = {"incident_power": "W", "port_peak_current": "A"}.get(variable, "V")
+    index = figures.stability_index
+    if variable == "incident_power":
+        # S was taken per dBm of the level; per watt it is S·dp/dP = S·10/(ln 10·P), the same
+        # sign (SI inside the result).
+        index *= 10.0 / (math.log(10.0) * _si(loop.device, figures.parameter))
     return OperatingPoint(
         frequency_hz=figures.frequency_hz,
         amplitude=figures.amplitude,
@@ -463,7 +470,7 @@ def _operating_point(loop: Loop, figures: KurokawaFigures, ratio: float) -> Oper
         load_power_w=0.5 * load_admittance.real * voltage**2,
         device_added_power_w=-0.5 * device_admittance.real * voltage**2,
         kurokawa_stable=figures.stable,
-        stability_index=figures.stability_index,
+        stability_index=index,
         stability_index_unit=f"{immittance_unit}^2*s/{variable_unit}",
         stability_variable=variable,
         crossing_angle_rad=figures.crossing_angle_rad,
