@@ -489,3 +489,44 @@ def test_two_resonances_give_two_stable_points_and_mode_jumping() -> None:
     assert [p.amplitude for p in result.operating_points] == pytest.approx(
         [amplitude] * 2, rel=1e-6
     )
+
+
+# --- the solver stays inside the data ---------------------------------------------------------
+
+
+def test_refinement_never_leaves_the_data() -> None:
+    # Regression: an unconstrained Newton-type solver started in brackets far from any root
+    # stepped to negative junction amplitudes, where a describing function has no meaning
+    # ("amplitude_v must be positive", 11 of 12 shipped pairs). Every evaluation of the device
+    # line must now lie inside the data's levels and frequencies.
+    from oneport.products.oscillator.analysis import _device_line
+    from oneport.products.oscillator.lines import DeviceLine, LoadLine
+    from oneport.products.oscillator.manifest import read_device_description
+    from oneport.products.oscillator.solve import Loop, operating_points
+    from oneport.reading.touchstone import read_one_port
+
+    examples = Path(__file__).resolve().parent.parent / "touchstone_examples"
+    description = read_device_description(examples / "oscillator" / "tunnel_diode.toml")
+    line, pair, _ = _device_line(description, read_one_port(examples / "stable" / "load.s1p"))
+    seen: list[tuple[np.ndarray, np.ndarray]] = []
+
+    def admittance(parameter: np.ndarray, frequency: np.ndarray) -> np.ndarray:
+        seen.append((np.asarray(parameter), np.asarray(frequency)))
+        return line.admittance(parameter, frequency)
+
+    watched = DeviceLine(
+        line.parameter_quantity,
+        line.parameter_grid,
+        line.frequency_hz,
+        line.reference_impedance_ohm,
+        admittance,
+        line.port_voltage,
+    )
+    load = LoadLine.from_samples(pair.frequency_hz, pair.gamma_load, pair.reference_impedance_ohm)
+    operating_points(Loop(watched, load, "admittance"))
+    low, high = line.parameter_range
+    assert len(seen) > 100
+    assert min(float(np.min(p)) for p, _ in seen) >= low
+    assert max(float(np.max(p)) for p, _ in seen) <= high
+    assert min(float(np.min(f)) for _, f in seen) >= line.frequency_hz[0]
+    assert max(float(np.max(f)) for _, f in seen) <= line.frequency_hz[-1]
