@@ -127,3 +127,38 @@ def format_frequency(frequency_hz: float) -> str:
 def to_decibels(magnitude: float) -> float:
     """A linear magnitude (voltage-like ratio) in dB; ``-inf`` for zero."""
     return 20.0 * math.log10(magnitude) if magnitude > 0 else -math.inf
+
+
+def format_engineering(value: float, unit: str, digits: int = 4) -> str:
+    """A quantity with an SI prefix for reading: ``0.09712, "V" -> '97.12 mV'``.
+
+    Examples
+    --------
+    >>> format_engineering(0.09712, "V")
+    '97.12 mV'
+    >>> format_engineering(2.62e-5, "W", digits=3)
+    '26.2 µW'
+    """
+    magnitude = abs(value)
+    if not math.isfinite(value) or magnitude == 0:
+        return f"{value:.{digits}g} {unit}"
+    for scale, prefix in ((1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "µ")):
+        if magnitude >= scale * (1 - 0.5 * 10.0**-digits):
+            return f"{value / scale:.{digits}g} {prefix}{unit}"
+    for scale, prefix in ((1e-9, "n"), (1e-12, "p"), (1e-15, "f")):
+        if magnitude >= scale:
+            return f"{value / scale:.{digits}g} {prefix}{unit}"
+    return f"{value:.{digits}g} {unit}"
+
+
+def format_power(watts: float) -> str:
+    """A power in W with an SI prefix, and in dBm when positive.
+
+    Examples
+    --------
+    >>> format_power(1e-3)
+    '1 mW (0.0 dBm)'
+    """
+    if not watts > 0:
+        return format_engineering(watts, "W", digits=3)
+    return f"{format_engineering(watts, 'W', digits=3)} ({10 * math.log10(watts / 1e-3):.1f} dBm)"

@@ -17,15 +17,17 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         NAME,
         help="where an oscillator settles: operating points and Kurokawa stability",
         description="Large-signal operating points of a negative-resistance device into a load:"
-        " every solution of gamma_device(A, f) * gamma_load(f) = 1 in the data, its frequency,"
-        " amplitude and power, Kurokawa's stability, start-up from noise and a verdict."
-        " DEVICE is a TOML manifest: drive-level Touchstone files or an I-V description"
-        " (docs/oscillator.md).",
+        " every point inside the data where the device's reflection times the load's is 1, its"
+        " frequency, amplitude and power, Kurokawa's stability, start-up from noise (the"
+        " small-signal Nyquist count) and a verdict. DEVICE is a TOML manifest: drive-level"
+        " Touchstone files or an I-V description (docs/oscillator.md).",
         epilog="example: oneport oscillator touchstone_examples/oscillator/drive_levels.toml"
         " --load touchstone_examples/oscillator/load.s1p --plot operating_points.png",
     )
     command.add_argument("device", help="the device manifest (TOML): drive levels or I-V curve")
-    command.add_argument("--load", required=True, help="the load's Touchstone one-port")
+    command.add_argument(
+        "--load", required=True, help="the load: a Touchstone one-port or a netlist (.cir)"
+    )
     command.add_argument(
         "--form",
         choices=("auto", "admittance", "impedance"),
@@ -37,10 +39,10 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         "--injection-below",
         metavar="DB",
         default="20dB",
-        help="how far the injected power lies below the oscillator's, for the stated"
-        " injection-locking range (default 20dB, i.e. P_inj/P_osc = -20 dB)",
+        help="how far the injected power lies below the oscillator's, 0dB to 100dB, for the"
+        " stated injection-locking range (default 20dB)",
     )
-    command.add_argument("--plot", metavar="FILE", help="write the device-line/load-locus plot")
+    command.add_argument("--plot", metavar="FILE", help="write the plot (.png or .svg)")
     add_output_options(command)
     return command
 
@@ -48,22 +50,29 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the analysis and print it; return the verdict's exit code."""
     from ..products.oscillator import analyse_oscillator
+    from ..products.oscillator.analysis import injection_ratio_below
     from ..rendering.oscillator_text import render, verdict_line
+    from .outcome import exit_code
 
     below = parse_decibels(arguments.injection_below, option="--injection-below")
+    injection_ratio_below(below, "--injection-below")  # refused before any work
+    target = None
+    if arguments.plot is not None:
+        from ..rendering.figures import image_target
+
+        target, _ = image_target(arguments.plot)  # checked before any work
     result = analyse_oscillator(
-        arguments.device, arguments.load, form=arguments.form, injection_ratio_db=-below
+        arguments.device, arguments.load, form=arguments.form, injection_below_db=below
     )
-    if arguments.plot:
+    if target is not None:
+        from ..rendering.figures import save_figure
         from ..rendering.oscillator_plot import plot_oscillator
 
-        plot_oscillator(result, arguments.plot)
+        save_figure(plot_oscillator(result), target)
     if arguments.json:
         write_json(result.to_dict(include_arrays=arguments.include_arrays), out)
     elif arguments.quiet:
         print(verdict_line(result), file=out)
     else:
         out.write(render(result))
-    from .outcome import exit_code
-
     return exit_code(result.verdict)

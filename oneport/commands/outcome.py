@@ -35,6 +35,7 @@ VERDICT_EXIT_CODES: dict[str, ExitCode] = {
     "hard-excitation": ExitCode.FAILS,
     "mode-jumping": ExitCode.FAILS,
     "no-oscillation": ExitCode.FAILS,
+    "latch-up": ExitCode.FAILS,
     "outside-data": ExitCode.INCONCLUSIVE,
 }
 

@@ -1,42 +1,35 @@
-"""Amplitudes and powers for reading, shared by the reasons and the text report.
+"""Complex quantities and table cells for reading, shared by the oscillator's text and HTML.
 
-Display only: values arrive in SI units (V, A, W) and leave as short strings.
+Display only: values arrive in SI units (Ω, linear reflections) and leave as short strings in
+the trade's notation: an impedance as R + jX ohm, a reflection as magnitude and angle.
 """
 
 from __future__ import annotations
 
 import math
 
-
-def format_engineering(value: float, unit: str) -> str:
-    """``0.09712 -> '97.12 mV'`` style: four significant digits with an SI prefix.
-
-    Examples
-    --------
-    >>> format_engineering(0.09712, "V")
-    '97.12 mV'
-    """
-    magnitude = abs(value)
-    for scale, prefix in ((1.0, ""), (1e-3, "m"), (1e-6, "u"), (1e-9, "n")):
-        if magnitude >= scale:
-            return f"{value / scale:.4g} {prefix}{unit}"
-    return f"{value:.3g} {unit}"
+from ..products.oscillator.wording import format_plain
 
 
-def format_amplitude(value: float, quantity: str) -> str:
-    """A peak amplitude named by its quantity (``peak_voltage_v`` or ``peak_current_a``)."""
-    unit = "A" if quantity.endswith("_a") else "V"
-    return f"{format_engineering(value, unit)} pk"
-
-
-def format_power(watts: float) -> str:
-    """A power in W and dBm.
+def format_impedance(value: complex) -> str:
+    """An impedance as ``R + jX ohm``.
 
     Examples
     --------
-    >>> format_power(1e-3)
-    '1 mW (0.0 dBm)'
+    >>> format_impedance(complex(27.41, -36.72))
+    '27.4 - j36.7 ohm'
     """
-    if watts <= 0:
-        return format_engineering(watts, "W")
-    return f"{format_engineering(watts, 'W')} ({10 * math.log10(watts / 1e-3):.1f} dBm)"
+    sign = "-" if value.imag < 0 else "+"
+    return f"{format_plain(value.real)} {sign} j{format_plain(abs(value.imag))} ohm"
+
+
+def format_reflection(value: complex) -> str:
+    """A reflection coefficient as magnitude and angle: ``0.352 ∠ 98.1°``.
+
+    Examples
+    --------
+    >>> format_reflection(complex(0.0, -0.5))
+    '0.5 ∠ -90°'
+    """
+    angle = math.degrees(math.atan2(value.imag, value.real))
+    return f"{format_plain(abs(value))} ∠ {format_plain(angle)}°"

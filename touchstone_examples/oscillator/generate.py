@@ -28,8 +28,8 @@ LOAD_L_H, LOAD_R_OHM = 3.3e-9, 180.0
 # Hard-excitation example (invented): i = g1 v - g3 v^3 + g5 v^5 about its bias.
 QUINTIC = (0.0, 2e-3, 0.0, -1.0, 0.0, 8.0)
 
-LOAD_SWEEP = (0.5e9, 4.0e9, 701)  # Hz, linear
-DEVICE_SWEEP = (1.2e9, 3.2e9, 301)
+LOAD_SWEEP = (10e6, 4.0e9, 799)  # Hz, linear: 5 MHz steps from 10 MHz
+DEVICE_SWEEP = (10e6, 3.2e9, 320)  # 10 MHz steps from 10 MHz
 LEVELS_DBM = tuple(float(p) for p in np.arange(-38.0, -4.0, 3.0))  # -38 ... -5 dBm
 THETA_SAMPLES = 512
 
@@ -111,6 +111,7 @@ def files():
         gamma_of_admittance(load_admittance(load_f)),
         [f"load: {LOAD_R_OHM:g} ohm in parallel with {LOAD_L_H * 1e9:g} nH (shunt, DC return)"],
     )
+    out["load.cir"] = _load_netlist()
     device_f = np.linspace(*DEVICE_SWEEP)
     levels = []
     for power_dbm in LEVELS_DBM:
@@ -130,6 +131,20 @@ def files():
     out["iv_table.toml"] = _iv_manifest(table=True)
     out["hard_excitation.toml"] = _quintic_manifest()
     return out
+
+
+def _load_netlist():
+    """The same load as a netlist: the resistor and the shunt inductor at the port."""
+    return "\n".join(
+        [
+            f"* {ORIGIN}",
+            "* The oscillator's load: a resistor and a shunt inductor (the DC return) at the port.",
+            f"RL 1 0 {LOAD_R_OHM:g}",
+            f"LL 1 0 {LOAD_L_H * 1e9:g}n",
+            ".oneport 1",
+            "",
+        ]
+    )
 
 
 def _drive_manifest(levels):

@@ -3,12 +3,15 @@
 From a device measured at several drive levels (Touchstone one-ports listed in a TOML
 manifest) or a quasi-static I–V description with lumped parasitics, and a load one-port,
 :func:`analyse_oscillator` finds every operating point Γd(A, f)·ΓL(f) = 1 inside the data, its
-frequency, amplitude and power, Kurokawa's stability index and decay rate, whether the circuit
-starts from noise, and a verdict word (docs/oscillator.md).
+frequency, amplitude and power, Kurokawa's stability and decay rate, whether the circuit
+starts from noise (the small-signal Nyquist count, by the check's own judgement), and a verdict
+word (docs/oscillator.md).
 
 Rooms: ``manifest`` (reading), ``describing`` (describing functions and I–V curves), ``lines``
 (smooth device and load lines), ``solve`` (roots and Kurokawa's figures), ``verdict``,
-``analysis`` (the flow), ``result`` (frozen results, JSON), ``text`` and ``plot`` (rendering).
+``analysis`` (the flow), ``result`` (frozen results, JSON), ``wording`` (the quantities' words
+and units, shared with the renderers). It may not print, plot or exit: the text and figure are
+in :mod:`oneport.rendering`.
 """
 
 from .analysis import analyse_oscillator, choose_form
@@ -27,6 +30,7 @@ from .manifest import (
 from .result import (
     OSCILLATOR_SCHEMA,
     VERDICTS,
+    LevelCount,
     OperatingPoint,
     OscillatorResult,
 )
@@ -36,6 +40,7 @@ __all__ = [
     "VERDICTS",
     "DriveLevelDevice",
     "IVDevice",
+    "LevelCount",
     "OperatingPoint",
     "OscillatorResult",
     "Parasitics",

@@ -1,52 +1,70 @@
 """The oscillator analysis: device description and load to operating points and a verdict.
 
-Data flow: read (``manifest``, :func:`oneport.reading.touchstone.read_one_port`) → align the load to
-the device's grid and measurement impedance (:mod:`oneport.reading.alignment`) → smooth lines
-(``lines``) → operating points and start-up estimates (``solve``) → verdict, warnings and limits
-(here) → frozen :class:`~oneport.products.oscillator.result.OscillatorResult`. It never prints,
-plots or exits.
+Data flow: read (``manifest``; the load through :mod:`oneport.reading` or, for a netlist,
+:func:`netlist_load`) → align the load to the device's grid and measurement impedance
+(:mod:`oneport.reading.alignment`) → smooth lines (``lines``) → operating points and Kurokawa's
+figures (``solve``) → the small-signal Nyquist count at the smallest and the largest level, by
+the check's own judgement (:func:`oneport.check`) → verdict, warnings and limits (``verdict``) →
+frozen :class:`~oneport.products.oscillator.result.OscillatorResult`. It never prints, plots or
+exits.
 """
 
 from __future__ import annotations
 
+import math
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
 from ...cautions import CAUTIONS
 from ...errors import InputError
 from ...reading.alignment import AlignedPair, align, renormalise
+from ...reading.preparation import load_one_port
 from ...reading.records import InputRecord
-from ...reading.touchstone import OnePort, read_one_port
-from .lines import DeviceLine, LoadLine, drive_level_line, iv_line
+from ...reading.touchstone import OnePort
+from .describing import describing_conductance
+from .lines import (
+    COUNT_GRID_POINTS,
+    COUNT_GRID_SPAN,
+    NETLIST_GRID_POINTS,
+    DeviceLine,
+    LoadLine,
+    drive_level_line,
+    iv_line,
+)
 from .manifest import DeviceDescription, DriveLevelDevice, IVDevice, read_device_description
 from .result import (
     DeviceTrace,
+    LevelCount,
     OperatingPoint,
     OscillatorResult,
     Pulling,
-    StartUpEstimate,
+    unit_suffix,
 )
-from .solve import (
-    MARGINAL_SINE,
-    GrowthEstimate,
-    KurokawaFigures,
-    Loop,
-    growth_estimates,
-    kurokawa_figures,
-    operating_points,
-)
+from .solve import MARGINAL_SINE, KurokawaFigures, Loop, kurokawa_figures, operating_points
 from .verdict import decide, findings, limits
 
-_UNITS = {"admittance": ("peak_voltage_v",), "impedance": ("peak_current_a",)}
+#: The form's port amplitude.
+_AMPLITUDE = {"admittance": "port_peak_voltage", "impedance": "port_peak_current"}
+#: The device's level variable, from the name the lines use (which names its unit).
+_LEVEL = {
+    "incident_power_dbm": "incident_power",
+    "peak_voltage_v": "port_peak_voltage",
+    "peak_current_a": "port_peak_current",
+    "junction_peak_voltage_v": "junction_peak_voltage",
+}
+#: How far the injected power may lie below the oscillator's, dB (the locking estimate assumes
+#: weak injection: P_inj ≤ P_osc).
+INJECTION_BELOW_RANGE_DB = (0.0, 100.0)
 
 
 def analyse_oscillator(
     device: str | Path | DeviceDescription,
-    load: str | Path | OnePort,
+    load: Any,
     *,
     form: str | None = None,
-    injection_ratio_db: float = -20.0,
+    injection_below_db: float = 20.0,
 ) -> OscillatorResult:
     """Where does this device settle into that load, and is the operating point stable?
 
@@ -54,24 +72,27 @@ def analyse_oscillator(
     ----------
     device : path or DriveLevelDevice or IVDevice
         A device manifest (TOML, docs/oscillator.md) or a description already read.
-    load : path or OnePort
-        The load's Touchstone one-port; it is renormalised to the device's measurement
-        impedance and interpolated onto the device's grid.
+    load : path, OnePort, scikit-rf Network or Circuit
+        The load's Touchstone one-port, renormalised to the device's measurement impedance and
+        interpolated onto the device's grid; or a netlist (``.cir`` path or
+        :class:`oneport.circuit.Circuit`), evaluated there.
     form : {"admittance", "impedance"}, optional
         Kurokawa's form; default: the manifest's ``form``, else chosen to suit the device.
-    injection_ratio_db : float
-        P_inj/P_osc (dB) at which the injection-locking half-range is stated.
+    injection_below_db : float
+        How far the injected power lies below the oscillator's, dB (0 to 100), for the stated
+        injection-locking range.
 
     Returns
     -------
     OscillatorResult
     """
+    injection_ratio = injection_ratio_below(injection_below_db, "injection_below_db")
     description = (
         device
         if isinstance(device, DriveLevelDevice | IVDevice)
         else read_device_description(device)
     )
-    load_port = load if isinstance(load, OnePort) else read_one_port(load)
+    load_port, load_for_count = _load(load, description)
     line, pair, device_input = _device_line(description, load_port)
     load_line = LoadLine.from_samples(
         pair.frequency_hz, pair.gamma_load, pair.reference_impedance_ohm
@@ -82,31 +103,31 @@ def analyse_oscillator(
     if (form in (None, "auto")) and description.form == "auto":
         loop, solutions, reason = _suit_form(loop, solutions, reason)
         chosen = loop.form
-    points = tuple(_operating_point(loop, figures, injection_ratio_db) for figures in solutions)
+    points = tuple(_operating_point(loop, figures, injection_ratio) for figures in solutions)
     low, high = line.parameter_range
-    start_up = tuple(_estimate(e) for e in growth_estimates(loop, low))
-    at_top = tuple(_estimate(e) for e in growth_estimates(loop, high))
-    starts = any(estimate.grows for estimate in start_up)
+    start_up = _count(description, line, low, load_for_count, pair, modes=True)
+    at_top = _count(description, line, high, load_for_count, pair, modes=False)
     verdict, reasons, next_steps = decide(loop, points, start_up, at_top, description)
+    quantity = _LEVEL[line.parameter_quantity]
     return OscillatorResult(
         verdict=verdict,
         reasons=tuple(reasons),
         next_steps=tuple(next_steps),
         form=chosen,
         form_reason=reason,
-        amplitude_quantity=_UNITS[chosen][0],
-        drive_quantity=line.parameter_quantity,
-        drive_range=(low, high),
+        amplitude_quantity=_AMPLITUDE[chosen],
+        drive_quantity=quantity,
+        drive_range=(_si(line, low), _si(line, high)),
         operating_points=points,
-        starts_from_noise=starts,
+        starts_from_noise=start_up.grows,
         start_up=start_up,
-        growth_at_largest_level=at_top,
+        at_largest_level=at_top,
         frequency_range_hz=(float(pair.frequency_hz[0]), float(pair.frequency_hz[-1])),
         reference_impedance_ohm=pair.reference_impedance_ohm,
         device_input=device_input,
         load_input=InputRecord.of("load", load_port, pair.reference_impedance_ohm),
-        warnings=tuple(findings(loop, points, at_top, description, pair)),
-        limits=limits(loop, description),
+        warnings=tuple(findings(loop, points, start_up, at_top, description, pair)),
+        limits=limits(loop, description, netlist_load=load_for_count is not load_port),
         cautions=CAUTIONS,
         load_frequency_hz=pair.frequency_hz,
         load_gamma=pair.gamma_load,
@@ -115,25 +136,61 @@ def analyse_oscillator(
     )
 
 
+def injection_ratio_below(below_db: float, name: str) -> float:
+    """P_inj/P_osc (linear) for an injection ``below_db`` dB below the oscillator's power.
+
+    The one rule for the option and the keyword: a finite number of dB from 0 to 100.
+
+    Raises
+    ------
+    InputError
+        One line naming ``name`` and the bad value.
+    """
+    low, high = INJECTION_BELOW_RANGE_DB
+    if not (math.isfinite(below_db) and low <= below_db <= high):
+        raise InputError(
+            f"{name}: {below_db:g} dB is not accepted; give how far the injected power lies below"
+            f" the oscillator's, {low:g} dB to {high:g} dB (the locking estimate assumes weak"
+            " injection)"
+        )
+    return float(10.0 ** (-below_db / 10.0))
+
+
+def netlist_load(
+    load: str | Path | Any, frequency_hz: np.ndarray, reference_impedance_ohm: float
+) -> OnePort:
+    """A load netlist evaluated on the device's grid in the device's measurement impedance.
+
+    The one place the oscillator turns a netlist load into data; it stands in for the shared
+    preparation of device and load sides that every command will use.
+    """
+    from ...circuit import one_port_from_circuit
+
+    return one_port_from_circuit(load, frequency_hz, reference_impedance_ohm)
+
+
 def choose_form(description: DeviceDescription, requested: str | None) -> tuple[str, str]:
     """Kurokawa's form for this device, and the reason given for it."""
     if requested is not None and requested != "auto":
-        if requested not in _UNITS:
-            raise InputError(f"form: {requested!r} is not one of 'admittance', 'impedance', 'auto'")
+        if requested not in _AMPLITUDE:
+            raise InputError(f"form: {requested!r} is not one of admittance, impedance, auto")
         return requested, "as requested"
     if description.form != "auto":
-        return description.form, f"as the manifest states (form = {description.form!r})"
+        return description.form, f"as the manifest states (form = {description.form})"
     if isinstance(description, IVDevice):
         return "admittance", (
             "an I-V curve is a voltage-controlled conductance: its describing function depends"
-            " on the junction voltage amplitude, so the admittance form (G_T, B_T, port voltage)"
-            " suits it"
+            " on the junction voltage amplitude, so the admittance form (total conductance and"
+            " susceptance, port voltage) suits it"
         )
     if description.quantity == "peak_current_a":
-        return "impedance", "the drive levels are port current amplitudes (R_T, X_T, port current)"
+        return "impedance", (
+            "the drive levels are port current amplitudes (total resistance and reactance, port"
+            " current)"
+        )
     return "admittance", (
         "the default for voltage-controlled (N-type) devices such as tunnel diodes; state"
-        " form = 'impedance' in the manifest for a current-controlled (S-type) device"
+        ' form = "impedance" in the manifest for a current-controlled (S-type) device'
     )
 
 
@@ -151,14 +208,46 @@ def _suit_form(
     again = [kurokawa_figures(other, s.parameter, s.frequency_hz) for s in solutions]
     if not all(figures.amplitude_slope > 0 for figures in again):
         return loop, solutions, reason
-    quantity = _UNITS[loop.form][0]
+    words = {"admittance": "peak voltage at the port", "impedance": "peak current into the port"}
     return (
         other,
         again,
         (
-            f"{reason}; but at an operating point the {quantity.replace('_', ' ')} falls as the"
+            f"{reason}; but at an operating point the {words[loop.form]} falls as the"
             f" device's level rises, so the {other.form} form, whose amplitude rises, is used"
         ),
+    )
+
+
+def _load(load: Any, description: DeviceDescription) -> tuple[OnePort, Any]:
+    """The load as data on the device's footing, and the load as the small-signal count takes
+    it (a netlist stays a netlist there, so that its own natural frequencies are counted)."""
+    from ...circuit import Circuit, is_circuit_path
+
+    if not (isinstance(load, Circuit) or (isinstance(load, str | Path) and is_circuit_path(load))):
+        port = load_one_port(load, "load")
+        return port, port
+    grid, z0 = _netlist_footing(description)
+    return netlist_load(load, grid, z0), load
+
+
+def _netlist_footing(description: DeviceDescription) -> tuple[np.ndarray, float]:
+    """The grid and reference impedance a netlist load is evaluated on."""
+    if isinstance(description, DriveLevelDevice):
+        first = description.ports[0]
+        return first.frequency_hz, description.measurement_impedance_ohm or (
+            first.reference_impedance_ohm
+        )
+    start, stop = description.frequency_start_hz, description.frequency_stop_hz
+    if start is None or stop is None:
+        raise InputError(
+            f"{description.source}: frequency_start_hz, frequency_stop_hz: a netlist load has no"
+            " frequency grid of its own; state the band to search in the manifest (e.g."
+            ' frequency_start_hz = "1GHz", frequency_stop_hz = "3GHz")'
+        )
+    return (
+        np.linspace(start, stop, NETLIST_GRID_POINTS),
+        description.reference_impedance_ohm or 50.0,
     )
 
 
@@ -182,14 +271,16 @@ def _drive_levels(
     if z0 != first.reference_impedance_ohm:
         gamma = renormalise(gamma, first.reference_impedance_ohm, z0)
     line = drive_level_line(description.quantity, description.levels, pair.frequency_hz, gamma, z0)
+    quantity = _LEVEL[description.quantity]
+    levels = [_si(line, float(level)) for level in description.levels]
     record: dict[str, object] = {
         "role": "device",
         "kind": "drive-levels",
         "path": description.source,
         "sha256": description.sha256,
         "name": description.name,
-        "level_quantity": description.quantity,
-        "levels": description.levels.tolist(),
+        "level_quantity": quantity,
+        f"levels_{unit_suffix(quantity)}": levels,
         "files": [{"path": p.source, "sha256": p.sha256} for p in description.ports],
         "points": first.points,
         "frequency_range_hz": [float(first.frequency_hz[0]), float(first.frequency_hz[-1])],
@@ -198,6 +289,8 @@ def _drive_levels(
             "as_analysed": z0,
         },
     }
+    if quantity == "incident_power":
+        record["levels_dbm"] = description.levels.tolist()  # as the manifest gives them
     return line, pair, record
 
 
@@ -245,7 +338,105 @@ def _iv(description: IVDevice, load: OnePort) -> tuple[DeviceLine, AlignedPair, 
     return line, pair, record
 
 
-def _operating_point(loop: Loop, figures: KurokawaFigures, ratio_db: float) -> OperatingPoint:
+def _count(
+    description: DeviceDescription,
+    line: DeviceLine,
+    level: float,
+    load: Any,
+    pair: AlignedPair,
+    *,
+    modes: bool,
+) -> LevelCount:
+    """The check's judgement of the loop with the device held at ``level`` (its lowest or
+    highest), and, where the count is positive and ``modes`` is asked, the modes it establishes
+    with their growth rates (a rational fit of F, kept only when it agrees with the count)."""
+    from ..check import check
+
+    if isinstance(description, DriveLevelDevice):
+        index = 0 if level <= float(description.levels[0]) else description.levels.size - 1
+        result = check(
+            description.ports[index],
+            load,
+            measurement_impedance_ohm=description.measurement_impedance_ohm,
+        )
+    else:
+        circuit = _linearised(description, level)
+        grid = None if isinstance(load, OnePort) else _count_grid(pair.frequency_hz)
+        result = check(
+            circuit, load, measurement_impedance_ohm=pair.reference_impedance_ohm, frequency_hz=grid
+        )
+    found: tuple[Any, ...] = ()
+    located: bool | None = None
+    if modes and result.verdict == "unstable" and result.encirclements:
+        from ...analysis.pole_zero import identify_natural_frequencies
+
+        fit = identify_natural_frequencies(
+            result.frequency_hz,
+            1.0 - result.loop_gain,
+            reference_impedance_ohm=result.reference_impedance_ohm,
+        )
+        trusted = tuple(m for m in fit.natural_frequencies if m.rhp and m.trusted)
+        located = sum(m.multiplicity for m in trusted) == result.encirclements
+        found = trusted if located else ()
+    return LevelCount(
+        drive_level=_si(line, level),
+        drive_quantity=_LEVEL[line.parameter_quantity],
+        verdict=result.verdict,
+        encirclements=result.encirclements,
+        latch_up=result.latch_up,
+        natural_frequencies=found,
+        modes_located=located,
+        oscillation_frequencies_hz=tuple(float(f) for f in result.oscillation_frequencies_hz),
+        reasons=result.reasons,
+        # Steps that name another command's options (the check's DC facts) do not apply here.
+        next_steps=tuple(step for step in result.next_steps if "--" not in step),
+        warnings=result.warnings,
+    )
+
+
+def _linearised(description: IVDevice, amplitude_v: float) -> Any:
+    """The I–V description held at one junction amplitude, as a lumped circuit: Rs + sLs in
+    series with (1/G1(A) ∥ Cj). Its natural frequencies terminated in Z0 are exact, so the
+    check counts any the description itself has in the right half plane (Z = N + P)."""
+    from ...circuit import Circuit
+
+    conductance = float(
+        describing_conductance(description.current, description.bias_voltage_v, amplitude_v)
+    )
+    parasitics = description.parasitics
+    circuit = Circuit(f"{description.source} held at {amplitude_v:g} V junction peak")
+    node = "port"
+    if parasitics.series_resistance_ohm:
+        circuit.resistor("RS", node, "rs", parasitics.series_resistance_ohm)
+        node = "rs"
+    if parasitics.series_inductance_h:
+        circuit.inductor("LS", node, "ls", parasitics.series_inductance_h)
+        node = "ls"
+    # Below 1 fS the junction conducts nothing a 50 ohm loop could see: left open.
+    conducts = abs(conductance) >= 1e-15
+    if conducts:
+        circuit.resistor("RJ", node, "0", 1.0 / conductance)
+    if parasitics.junction_capacitance_f or not conducts:
+        # A junction with neither conductance nor capacitance is open: 1 aF stands for it.
+        circuit.capacitor("CJ", node, "0", parasitics.junction_capacitance_f or 1e-18)
+    return circuit.port("port")
+
+
+def _count_grid(band_hz: np.ndarray) -> np.ndarray:
+    """Where both sides are netlists: a geometric grid around the band (see COUNT_GRID_SPAN)."""
+    low, high = COUNT_GRID_SPAN
+    top = float(band_hz[-1])
+    return np.geomspace(top * low, top * high, COUNT_GRID_POINTS)
+
+
+def _si(line: DeviceLine, level: float) -> float:
+    """A level of the line in SI: W for an incident power in dBm, else as it is (V or A)."""
+    if line.parameter_quantity == "incident_power_dbm":
+        return float(1e-3 * 10.0 ** (level / 10.0))
+    return float(level)
+
+
+def _operating_point(loop: Loop, figures: KurokawaFigures, ratio: float) -> OperatingPoint:
     p, f = np.array(figures.parameter), np.array(figures.frequency_hz)
     voltage = float(loop.device.port_voltage(p, f))
     device_admittance = complex(loop.device.admittance(p, f))
@@ -258,24 +449,31 @@ def _operating_point(loop: Loop, figures: KurokawaFigures, ratio_db: float) -> O
         or frequencies[-1] - figures.frequency_hz < frequencies[-1] - frequencies[-2]
     )
     shift = loop.device.dc_current_shift
-    quantity = _UNITS[loop.form][0]
-    variable = quantity if figures.stability_variable == "form" else loop.device.parameter_quantity
+    amplitude = _AMPLITUDE[loop.form]
+    level = _LEVEL[loop.device.parameter_quantity]
+    variable = amplitude if figures.stability_variable == "form" else level
     immittance_unit = "S" if loop.form == "admittance" else "ohm"
-    variable_unit = {"v": "V", "a": "A", "dbm": "dBm"}[variable.rsplit("_", 1)[1]]
+    variable_unit = {"incident_power": "W", "port_peak_current": "A"}.get(variable, "V")
+    index = figures.stability_index
+    if variable == "incident_power":
+        # S was taken per dBm of the level; per watt it is S·dp/dP = S·10/(ln 10·P), the same
+        # sign (SI inside the result).
+        index *= 10.0 / (math.log(10.0) * _si(loop.device, figures.parameter))
     return OperatingPoint(
         frequency_hz=figures.frequency_hz,
         amplitude=figures.amplitude,
-        amplitude_quantity=quantity,
-        drive_parameter=figures.parameter,
-        drive_quantity=loop.device.parameter_quantity,
+        amplitude_quantity=amplitude,
+        drive_level=_si(loop.device, figures.parameter),
+        drive_quantity=level,
         port_peak_voltage_v=voltage,
         port_peak_current_a=voltage * abs(device_admittance),
         load_power_w=0.5 * load_admittance.real * voltage**2,
         device_added_power_w=-0.5 * device_admittance.real * voltage**2,
         kurokawa_stable=figures.stable,
-        stability_index=figures.stability_index,
+        stability_index=index,
         stability_index_unit=f"{immittance_unit}^2*s/{variable_unit}",
         stability_variable=variable,
+        crossing_angle_rad=figures.crossing_angle_rad,
         decay_rate_per_s=figures.decay_rate_per_s,
         marginal=abs(figures.tangency) < MARGINAL_SINE,
         near_data_edge=near_edge,
@@ -285,11 +483,11 @@ def _operating_point(loop: Loop, figures: KurokawaFigures, ratio_db: float) -> O
         load_impedance_ohm=complex(loop.load.impedance(f)),
         reference_impedance_ohm=loop.device.reference_impedance_ohm,
         dc_current_shift_a=None if shift is None else float(shift(p)),
-        pulling=pulling(loop, figures.parameter, figures.frequency_hz, ratio_db),
+        pulling=pulling(loop, figures.parameter, figures.frequency_hz, ratio),
     )
 
 
-def pulling(loop: Loop, parameter: float, frequency_hz: float, ratio_db: float) -> Pulling:
+def pulling(loop: Loop, parameter: float, frequency_hz: float, injection_ratio: float) -> Pulling:
     """External Q of the load at f0 in the loop's form, and the locking half-range it implies.
 
     Q_ext = (ω0/(2·R_L))·dX_L/dω (impedance form; (ω0/(2·G_L))·dB_L/dω in the admittance
@@ -310,20 +508,23 @@ def pulling(loop: Loop, parameter: float, frequency_hz: float, ratio_db: float) 
 
     q = quality(load)
     coefficient = frequency_hz / q if 0 < q < float("inf") else None
-    half_range = None if coefficient is None else coefficient * 10 ** (ratio_db / 20)
-    return Pulling(q, loop.form, coefficient, ratio_db, half_range, abs(quality(total)))
-
-
-def _estimate(estimate: GrowthEstimate) -> StartUpEstimate:
-    return StartUpEstimate(estimate.frequency_hz, estimate.growth_rate_per_s, estimate.parameter)
+    half_range = None if coefficient is None else coefficient * math.sqrt(injection_ratio)
+    return Pulling(q, loop.form, coefficient, injection_ratio, half_range, abs(quality(total)))
 
 
 def _traces(
-    loop: Loop, points: tuple[OperatingPoint, ...], start_up: tuple[StartUpEstimate, ...]
+    loop: Loop, points: tuple[OperatingPoint, ...], start_up: LevelCount
 ) -> tuple[DeviceTrace, ...]:
-    """The device line at each operating frequency (else each start-up crossing, else mid-band)."""
+    """The device line at each operating frequency (else each start-up mode, else mid-band)."""
     band = loop.device.frequency_hz
-    candidates = sorted(p.frequency_hz for p in points) or sorted(e.frequency_hz for e in start_up)
+    candidates = sorted(p.frequency_hz for p in points) or sorted(
+        f
+        for f in (
+            *(m.frequency_hz for m in start_up.natural_frequencies if not m.real),
+            *start_up.oscillation_frequencies_hz,
+        )
+        if band[0] <= f <= band[-1]
+    )
     frequencies: list[float] = []
     for frequency in candidates or [float(band[band.size // 2])]:
         if not frequencies or frequency - frequencies[-1] > 1e-3 * (band[-1] - band[0]):
@@ -338,7 +539,7 @@ def _traces(
         traces.append(
             DeviceTrace(
                 frequency_hz=frequency,
-                drive_parameter=levels,
+                drive_level=np.array([_si(loop.device, float(level)) for level in levels]),
                 amplitude=loop.amplitude(levels, f),
                 inverse_gamma_device=inverse,
                 negative_device_immittance=-loop.device_immittance(levels, f),

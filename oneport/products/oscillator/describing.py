@@ -15,10 +15,13 @@ it reads no files.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
+
+from ...errors import InputError
 
 #: Equally spaced samples of θ over one period for the describing-function integral.
 THETA_SAMPLES = 256
@@ -50,6 +53,12 @@ def describing_conductance(
     ndarray
         G1(A) in S, the shape of ``amplitude_v``.
 
+    Raises
+    ------
+    InputError
+        An amplitude that is not above 0 V (the analysis never asks for one: its solver stays
+        inside the data).
+
     Examples
     --------
     A cubic i = −g1·v + g3·v³ gives G1(A) = −g1 + (3/4)·g3·A²:
@@ -60,7 +69,10 @@ def describing_conductance(
     """
     amplitude = np.asarray(amplitude_v, dtype=float)
     if np.any(~(amplitude > 0)):
-        raise ValueError(f"amplitude_v must be positive, was {amplitude_v!r}")
+        worst = float(np.min(amplitude)) if np.all(np.isfinite(amplitude)) else math.nan
+        raise InputError(
+            f"amplitude_v: {worst:g} V; the describing function needs peak amplitudes above 0 V"
+        )
     cosine = np.cos(2.0 * np.pi * np.arange(samples) / samples)
     voltage = bias_voltage_v + amplitude[..., np.newaxis] * cosine
     fundamental = 2.0 * np.mean(current(voltage) * cosine, axis=-1)

@@ -25,6 +25,13 @@ from .manifest import IVDevice
 IV_SCAN_ROWS = 161
 #: At least this many scan rows for drive-level data (levels subdivided evenly).
 DRIVE_SCAN_ROWS = 64
+#: Frequency points of the grid an I–V description is searched on when the load is a netlist.
+NETLIST_GRID_POINTS = 1001
+#: The small-signal count of an I–V description against a netlist load runs on a geometric
+#: grid from this fraction of the band's top to this multiple of it (both sides are defined at
+#: every frequency, so the contour can close where the loop has settled), with this many points.
+COUNT_GRID_SPAN = (1e-4, 100.0)
+COUNT_GRID_POINTS = 2001
 
 Surface = Callable[[np.ndarray, np.ndarray], np.ndarray]
 

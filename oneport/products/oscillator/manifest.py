@@ -350,7 +350,7 @@ def _iv_device(
     stop = _quantity(data, "frequency_stop_hz", "frequency", where)
     if start is not None and stop is not None and not start < stop:
         raise where.error("frequency_stop_hz", f"{stop:g} Hz must be above frequency_start_hz")
-    return IVDevice(
+    device = IVDevice(
         current=current,
         curve_kind=curve_kind,
         curve_summary=summary,
@@ -367,6 +367,8 @@ def _iv_device(
         table_sha256=None if table is None else table[1],
         **common,
     )
+    _check_model(device, where)
+    return device
 
 
 def _curve(
@@ -397,9 +399,7 @@ def _curve(
     if present[0] == "polynomial_coefficients":
         _allowed(iv, ("polynomial_coefficients",), "iv", where)
         coefficients = _number_list(iv, "polynomial_coefficients", where)
-        summary = "polynomial in (V - V0), coefficients " + ", ".join(
-            f"{c:g}" for c in coefficients
-        )
+        summary = _polynomial_summary(coefficients)
         return "polynomial", polynomial_current(coefficients, bias), summary, None, None
     model = iv["model"]
     if model != "tunnel-diode":
@@ -411,16 +411,76 @@ def _curve(
         for index, key in enumerate(_TUNNEL_KEYS)
     }
     tunnel = TunnelDiodeModel(**values)
+    from ...units import format_engineering
+
     summary = (
-        f"tunnel-diode model: Ip = {tunnel.peak_current_a:g} A, Vp = {tunnel.peak_voltage_v:g} V,"
-        f" Is = {tunnel.saturation_current_a:g} A, Ve = {tunnel.emission_voltage_v:g} V"
+        f"tunnel-diode model: Ip = {format_engineering(tunnel.peak_current_a, 'A')},"
+        f" Vp = {format_engineering(tunnel.peak_voltage_v, 'V')},"
+        f" Is = {format_engineering(tunnel.saturation_current_a, 'A')},"
+        f" Ve = {format_engineering(tunnel.emission_voltage_v, 'V')}"
     )
     if tunnel.excess_current_a:
         summary += (
-            f", Ix = {tunnel.excess_current_a:g} A, K = {tunnel.excess_exponent_per_v:g} /V,"
-            f" Vv = {tunnel.valley_voltage_v:g} V"
+            f", Ix = {format_engineering(tunnel.excess_current_a, 'A')},"
+            f" K = {tunnel.excess_exponent_per_v:.4g} /V,"
+            f" Vv = {format_engineering(tunnel.valley_voltage_v, 'V')}"
         )
     return "tunnel-diode", tunnel.current, summary, None, None
+
+
+#: Junction peak amplitudes an I–V description may span, V.
+AMPLITUDE_RANGE_V = (1e-12, 1e3)
+#: Largest current magnitude an I–V curve may reach over its swing, A.
+LARGEST_CURRENT_A = 1e6
+#: Parasitic values: 0, or a magnitude in these bounds (those of docs/netlist.md's R, L and C).
+PARASITIC_BOUNDS = {
+    "series_resistance_ohm": (1e-12, 1e15),
+    "series_inductance_h": (1e-18, 1e3),
+    "junction_capacitance_f": (1e-21, 1e3),
+}
+
+
+def _check_model(device: IVDevice, where: _Where) -> None:
+    """Refuse amplitudes and curves no device has, before any arithmetic overflows on them:
+    amplitudes outside AMPLITUDE_RANGE_V, currents beyond LARGEST_CURRENT_A (or not finite)
+    anywhere in the swing V0 ± amplitude_max_v."""
+    low, high = AMPLITUDE_RANGE_V
+    for key, value in (
+        ("amplitude_min_v", device.amplitude_min_v),
+        ("amplitude_max_v", device.amplitude_max_v),
+    ):
+        if not low <= value <= high:
+            raise where.error(key, f"{value:g} V is not accepted; give {low:g} V to {high:g} V")
+    swing = device.bias_voltage_v + device.amplitude_max_v * np.linspace(-1.0, 1.0, 257)
+    with np.errstate(all="ignore"):
+        current = np.asarray(device.current(swing), dtype=float)
+    worst = float(np.max(np.abs(current))) if np.all(np.isfinite(current)) else math.inf
+    if not (math.isfinite(float(np.max(np.abs(swing)))) and worst <= LARGEST_CURRENT_A):
+        raise where.error(
+            "iv",
+            f"the curve reaches {worst:g} A within the swing (bias_voltage_v ± amplitude_max_v);"
+            f" a device's current stays within ±{LARGEST_CURRENT_A:g} A: check the values",
+        )
+
+
+def _polynomial_summary(coefficients: tuple[float, ...]) -> str:
+    """``i = 0.002 v - v³ + 8 v⁵`` for the manifest's coefficients, v = V - V0 in V, i in A."""
+    powers = "⁰¹²³⁴⁵⁶⁷⁸⁹"
+    terms = []
+    for power, coefficient in enumerate(coefficients):
+        if coefficient == 0:
+            continue
+        exponent = "".join(powers[int(d)] for d in str(power)) if power > 1 else ""
+        variable = "" if power == 0 else f"v{exponent}"
+        size = abs(coefficient)
+        number = "" if (size == 1 and power) else f"{size:.4g}" + (" " if power else "")
+        sign = "-" if coefficient < 0 else "+"
+        terms.append((sign, f"{number}{variable}"))
+    if not terms:
+        return "polynomial about the bias: i = 0 A"
+    text = ("-" if terms[0][0] == "-" else "") + terms[0][1]
+    text += "".join(f" {sign} {term}" for sign, term in terms[1:])
+    return f"polynomial about the bias: i = {text} (i in A, v = V - V0 in V)"
 
 
 def read_iv_table(path: Path, label: str) -> tuple[np.ndarray, np.ndarray, str]:
@@ -492,6 +552,11 @@ def _parasitics(data: dict[str, Any], where: _Where) -> Parasitics:
         value = _quantity(table, key, kind, where, prefix="parasitics.")
         if value is not None and value < 0:
             raise where.error(f"parasitics.{key}", f"{value:g} is negative; give a value >= 0")
+        low, high = PARASITIC_BOUNDS[key]
+        if value and not low <= value <= high:
+            raise where.error(
+                f"parasitics.{key}", f"{value:g} is not accepted; give 0 or {low:g} to {high:g}"
+            )
         values[key] = value or 0.0
     return Parasitics(**values)
 

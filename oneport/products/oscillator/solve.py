@@ -4,20 +4,19 @@ With the total immittance W(p, f) of the loop in the chosen form (admittance: Y_
 G_T + jB_T, amplitude = port peak voltage; impedance: Z_T = Zd + ZL, R_T + jX_T, amplitude =
 port peak current), an operating point is W = 0 (equivalently Γd·ΓL = 1). All solutions in the
 data are sought: the real and imaginary parts of W are sampled on a (level, frequency) grid,
-every cell where both change sign is a bracket, and each bracket is refined with
-``scipy.optimize.root`` on the two real equations; converged points inside the data are kept
-once. At each point, with A the form's port amplitude,
+every cell where both change sign is a bracket, and each bracket is refined on the two real
+equations by a bounded solver whose trial points never leave the data (the device line has
+no meaning outside it); converged points are kept once. At each point, with A the form's port
+amplitude,
 
     S = (∂Re W/∂A)(∂Im W/∂ω) − (∂Im W/∂A)(∂Re W/∂ω)  > 0  (stable),
 
 and amplitude perturbations decay at A0·S/|∂W/∂ω|². Derivatives are central differences on the
 smooth (spline or analytic) lines. A level parameter p other than A is converted exactly: with
 A = a(p, ω), ∂W/∂A = (∂W/∂p)/(∂a/∂p) and ∂W/∂ω|_A = ∂W/∂ω|_p − (∂W/∂A)(∂a/∂ω); the sign of S
-survives the change of variable (S_p = S_A·∂a/∂p), the rate does not. Start-up is judged by a
-Newton step from the jω axis at the smallest level: σ ≈ Im(W/(∂W/∂ω)) where the step has no
-frequency correction, Re(W/(∂W/∂ω)) = 0 — for Im W = 0 this is −Re W·(∂Im W/∂ω)/|∂W/∂ω|², the
-crossing estimate of METHODS §4, and it stays meaningful in a form that suits the device less.
-This room computes only.
+survives the change of variable (S_p = S_A·∂a/∂p), the rate does not. Whether the circuit
+starts from noise is not judged here: that is the small-signal Nyquist count's (the analysis
+calls the check's judgement). This room computes only.
 """
 
 from __future__ import annotations
@@ -35,6 +34,8 @@ RESIDUAL_TOLERANCE = 1e-8
 #: |S| / (|∂W/∂A|·|∂W/∂ω|) below this: the lines meet nearly tangentially (marginal).
 MARGINAL_SINE = 1e-3
 _MAXIMUM_REFINEMENTS = 400
+_MAXIMUM_EVALUATIONS = 200  # per refinement
+_NOT_FINITE = 1e30  # stands for a residual at a pole of W
 _STEP_FRACTION = 1e-3  # central-difference step as a fraction of the local grid step
 
 
@@ -116,6 +117,8 @@ class KurokawaFigures:
     tangency : float
         S/(|∂W/∂A|·|∂W/∂ω|), the sine of the angle at which the device line and the load locus
         cross; near zero the verdict is marginal.
+    crossing_angle_rad : float
+        That angle, arg(conj(∂W/∂A)·∂W/∂ω), rad: S > 0 exactly when it lies in (0, π).
     amplitude_slope : float
         ∂A/∂p: the form's amplitude per unit of level parameter.
     residual : float
@@ -130,28 +133,9 @@ class KurokawaFigures:
     stability_variable: str
     decay_rate_per_s: float | None
     tangency: float
+    crossing_angle_rad: float
     amplitude_slope: float
     residual: float
-
-
-@dataclass(frozen=True)
-class GrowthEstimate:
-    """A Newton estimate of a natural frequency near the jω axis at one level.
-
-    Attributes
-    ----------
-    parameter : float
-        The level (the device's level parameter).
-    frequency_hz : float
-        Where the Newton step from jω is a pure growth: Re(W/(∂W/∂ω)) = 0, which in a high-Q
-        loop is where Im W = 0.
-    growth_rate_per_s : float
-        σ ≈ Im(W/(∂W/∂ω)); positive: the mode grows at this level.
-    """
-
-    parameter: float
-    frequency_hz: float
-    growth_rate_per_s: float
 
 
 def operating_points(loop: Loop) -> list[KurokawaFigures]:
@@ -189,35 +173,50 @@ def _brackets(values: np.ndarray) -> np.ndarray:
 
 
 def _refine(loop: Loop, cell: tuple[float, float, float, float]) -> tuple[float, float] | None:
-    """Newton-type refinement (scipy.optimize.root, hybr) from the cell's centre."""
-    from scipy.optimize import root
+    """Refine a bracket to a root of W, searching only inside the data.
+
+    The device line is defined on the data's levels and frequencies and nowhere else (an I–V
+    describing function has no meaning at a negative amplitude; a spline beyond the last level
+    or frequency extrapolates), so every trial point must stay inside that box: a bounded
+    trust-region least-squares solve (scipy.optimize.least_squares, ``trf``, whose iterates
+    and finite-difference steps respect the bounds) from the cell's centre, in coordinates
+    scaled by the cell. A root the box does not hold ends on its edge with a residual above
+    the tolerance and is dropped.
+    """
+    from scipy.optimize import least_squares
 
     p_low, p_high, f_low, f_high = cell
     p_centre, f_centre = (p_low + p_high) / 2, (f_low + f_high) / 2
     p_step, f_step = p_high - p_low, f_high - f_low
+    low, high = loop.device.parameter_range
+    frequencies = loop.device.frequency_hz
+    lower = np.array([(low - p_centre) / p_step, (frequencies[0] - f_centre) / f_step])
+    upper = np.array([(high - p_centre) / p_step, (frequencies[-1] - f_centre) / f_step])
 
-    def equations(x: np.ndarray) -> list[float]:
+    def equations(x: np.ndarray) -> np.ndarray:
         value = complex(
             loop.total(np.array(p_centre + x[0] * p_step), np.array(f_centre + x[1] * f_step))
         )
         value *= loop.scale
         if not np.isfinite(value):
-            return [1e30, 1e30]
-        return [value.real, value.imag]
+            return np.array([_NOT_FINITE, _NOT_FINITE])
+        return np.array([value.real, value.imag])
 
     with np.errstate(all="ignore"):
-        solution = root(equations, np.zeros(2), method="hybr", options={"xtol": 1e-12})
-    parameter = float(p_centre + solution.x[0] * p_step)
-    frequency = float(f_centre + solution.x[1] * f_step)
-    residual = math.hypot(*equations(solution.x))
-    low, high = loop.device.parameter_range
-    p_slack, f_slack = 1e-9 * (high - low), 1e-9 * frequency
-    inside = (low - p_slack <= parameter <= high + p_slack) and (
-        loop.device.frequency_hz[0] - f_slack <= frequency <= loop.device.frequency_hz[-1] + f_slack
-    )
-    if residual > RESIDUAL_TOLERANCE or not inside:
+        solution = least_squares(
+            equations,
+            np.zeros(2),
+            bounds=(lower, upper),
+            method="trf",
+            xtol=1e-12,
+            ftol=1e-15,
+            gtol=1e-15,
+            max_nfev=_MAXIMUM_EVALUATIONS,
+        )
+    x = np.clip(solution.x, lower, upper)
+    if math.hypot(*equations(x)) > RESIDUAL_TOLERANCE:
         return None
-    return parameter, frequency
+    return float(p_centre + x[0] * p_step), float(f_centre + x[1] * f_step)
 
 
 def _inside(point: tuple[float, float], cell: tuple[float, float, float, float]) -> bool:
@@ -235,11 +234,13 @@ def _same(
 def kurokawa_figures(loop: Loop, parameter: float, frequency_hz: float) -> KurokawaFigures:
     """S, the decay rate and the amplitude at (p, f), in the form's port amplitude."""
     p_step, f_step = _steps(loop, parameter, frequency_hz)
+    frequencies = loop.device.frequency_hz
+    box = (*loop.device.parameter_range, float(frequencies[0]), float(frequencies[-1]))
     total, d_parameter, d_frequency = _derivatives(
-        loop.total, parameter, frequency_hz, p_step, f_step
+        loop.total, parameter, frequency_hz, p_step, f_step, box
     )
     amplitude, a_parameter, a_frequency = _derivatives(
-        loop.amplitude, parameter, frequency_hz, p_step, f_step
+        loop.amplitude, parameter, frequency_hz, p_step, f_step, box
     )
     slope = float(np.real(a_parameter))
     d_omega_level = d_frequency / (2 * np.pi)
@@ -263,6 +264,7 @@ def kurokawa_figures(loop: Loop, parameter: float, frequency_hz: float) -> Kurok
         stability_variable=variable,
         decay_rate_per_s=rate,
         tangency=index / size if size > 0 else 0.0,
+        crossing_angle_rad=float(np.angle(np.conj(d_amplitude) * d_omega)),
         amplitude_slope=slope,
         residual=abs(complex(total)) * loop.scale,
     )
@@ -271,50 +273,6 @@ def kurokawa_figures(loop: Loop, parameter: float, frequency_hz: float) -> Kurok
 def _index(d_amplitude: complex, d_omega: complex) -> float:
     """S = Re'·Im_ω − Im'·Re_ω = Im(conj(∂W/∂A)·∂W/∂ω)."""
     return float(np.imag(np.conj(d_amplitude) * d_omega))
-
-
-def growth_estimates(loop: Loop, parameter: float) -> list[GrowthEstimate]:
-    """Newton estimates σ ≈ Im(W/W_ω) where Re(W/W_ω) = 0 along frequency at one level.
-
-    One Newton step from s = jω towards the nearby natural frequency is
-    δs = −W/(dW/ds) = −j·W/W_ω (W_ω = ∂W/∂ω); it is a pure growth where Re(W/W_ω) = 0, which
-    for Im W = 0 and a slowly varying Re W is the crossing of the reactive part (METHODS §4).
-    Only rising crossings count: near a natural frequency W/W_ω ≈ ω − ω_z, near a pole of W it
-    falls (≈ −(ω − ω_p)); sign changes through a stationary point of W are left out.
-    """
-    from scipy.optimize import brentq
-
-    frequencies = loop.device.frequency_hz
-    level = np.array(parameter)
-    step = _STEP_FRACTION * float(np.min(np.diff(frequencies)))
-
-    def ratio(f: np.ndarray) -> np.ndarray:
-        value = loop.total(level, f)
-        derivative = (loop.total(level, f + step) - loop.total(level, f - step)) / (
-            2 * step * 2 * np.pi
-        )
-        with np.errstate(divide="ignore", invalid="ignore"):
-            result: np.ndarray = value / derivative
-        return result
-
-    def correction(f: float) -> float:
-        return float(np.real(ratio(np.array(f))))
-
-    samples = np.real(ratio(frequencies))
-    estimates = []
-    # Near a natural frequency ω_z, W/W_ω ≈ ω − ω_z: its real part rises through zero. Near a
-    # pole of W it is ≈ −(ω − ω_p) and falls: those crossings are not modes.
-    for index in np.flatnonzero((samples[:-1] < 0) & (samples[1:] >= 0)):  # a zero on a sample too
-        low, high = frequencies[index], frequencies[index + 1]
-        crossing = float(high)
-        if samples[index + 1] != 0 and correction(high) > 0 > correction(low):
-            crossing = brentq(correction, low, high, xtol=1e-9 * (high - low))
-        ends = max(abs(samples[index]), abs(samples[index + 1]))
-        if abs(correction(crossing)) > 1e-6 * ends:
-            continue  # through infinity (a stationary point of W), not a zero
-        sigma = float(np.imag(ratio(np.array(crossing))))
-        estimates.append(GrowthEstimate(parameter, float(crossing), sigma))
-    return estimates
 
 
 def _steps(loop: Loop, parameter: float, frequency_hz: float) -> tuple[float, float]:
@@ -329,18 +287,24 @@ def _steps(loop: Loop, parameter: float, frequency_hz: float) -> tuple[float, fl
 
 
 def _derivatives(
-    function: Surface, parameter: float, frequency_hz: float, p_step: float, f_step: float
+    function: Surface,
+    parameter: float,
+    frequency_hz: float,
+    p_step: float,
+    f_step: float,
+    box: tuple[float, float, float, float],
 ) -> tuple[complex, complex, complex]:
-    """Value and central differences in p and f of function(p, f)."""
+    """Value and differences in p and f of function(p, f), central inside the data and
+    one-sided at its edges: the device line is not evaluated outside ``box`` (p_low, p_high,
+    f_low, f_high), where it has no meaning (an I–V curve at a negative amplitude)."""
 
     def at(p: float, f: float) -> complex:
         return complex(function(np.array(p), np.array(f)))
 
+    p_low, p_high, f_low, f_high = box
+    below, above = max(parameter - p_step, p_low), min(parameter + p_step, p_high)
+    left, right = max(frequency_hz - f_step, f_low), min(frequency_hz + f_step, f_high)
     value = at(parameter, frequency_hz)
-    d_parameter = (at(parameter + p_step, frequency_hz) - at(parameter - p_step, frequency_hz)) / (
-        2 * p_step
-    )
-    d_frequency = (at(parameter, frequency_hz + f_step) - at(parameter, frequency_hz - f_step)) / (
-        2 * f_step
-    )
+    d_parameter = (at(above, frequency_hz) - at(below, frequency_hz)) / (above - below)
+    d_frequency = (at(parameter, right) - at(parameter, left)) / (right - left)
     return value, d_parameter, d_frequency
