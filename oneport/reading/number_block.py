@@ -105,12 +105,12 @@ def read_number_block(name: str, raw: bytes, start: int, stop: int, first_line: 
         pieces.append(_Piece(position, end, line, commented, int(per_line.sum())))
         line += piece.count(b"\n")
         position = end
-    values = np.empty(sum(piece.numbers for piece in pieces))
+    values = np.empty(sum(part.numbers for part in pieces))
     filled = 0
-    for piece in pieces:
-        if piece.numbers:
-            values[filled : filled + piece.numbers] = _convert(name, raw, piece)
-            filled += piece.numbers
+    for part in pieces:
+        if part.numbers:
+            values[filled : filled + part.numbers] = _convert(name, raw, part)
+            filled += part.numbers
     block = NumberBlock(
         values=values,
         lines=np.concatenate(lines) if lines else np.empty(0, dtype=np.int64),

@@ -31,7 +31,7 @@ from typing import Any
 
 import numpy as np
 
-from ..errors import FileFormatError
+from ..errors import FileFormatError, printable
 from ..findings import Finding
 from .files import read_user_bytes, text_bytes
 from .number_block import NumberBlock, read_number_block
@@ -571,7 +571,7 @@ def _warnings(
         found.append(
             Finding(
                 NO_OPTION_LINE,
-                f"{name} has no option line, so it was read with the Touchstone"
+                f"{printable(name)} has no option line, so it was read with the Touchstone"
                 " specification's defaults: GHz, S parameters, magnitude and angle (MA),"
                 " R 50 ohm. If the file holds anything else, add its option line"
                 " (e.g. # GHz S RI R 50).",
@@ -621,11 +621,12 @@ def _port_impedance_finding(
         described = f" (|Z| {magnitudes.min():.4g} to {magnitudes.max():.4g} ohm)"
     return Finding(
         PORT_IMPEDANCE_COMMENTS,
-        f"{name} gives per-frequency port impedances in '! Port Impedance' comments ({where})"
-        f"{described}. Comments carry no data in the Touchstone specification, so they were"
-        f" not used: the data were read referred to {used} ohm as the file's option line or"
-        " [Reference] says, and every figure is referred to that. If the data are referred to"
-        " the commented impedances instead, renormalise the file to one real impedance first.",
+        f"{printable(name)} gives per-frequency port impedances in '! Port Impedance' comments"
+        f" ({where}){described}. Comments carry no data in the Touchstone specification, so"
+        f" they were not used: the data were read referred to {used} ohm as the file's option"
+        " line or [Reference] says, and every figure is referred to that. If the data are"
+        " referred to the commented impedances instead, renormalise the file to one real"
+        " impedance first.",
         {
             "path": name,
             "lines": len(marked),
