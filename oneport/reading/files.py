@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import codecs
 import io
+import math
 import os
 import stat
 from pathlib import Path
@@ -128,7 +129,7 @@ def _refuse_special(name: str, status: os.stat_result, what: str, limit: int) ->
     if not stat.S_ISREG(status.st_mode):
         raise FileFormatError(name, f"is not a regular file; give {what}")
     if status.st_size > limit:
-        raise FileFormatError(name, _too_large(status.st_size, limit))
+        raise FileFormatError(name, _too_large(status.st_size, limit, growing=False))
 
 
 def _read_bounded(name: str, stream: io.FileIO, size: int, limit: int) -> bytes:
@@ -140,16 +141,18 @@ def _read_bounded(name: str, stream: io.FileIO, size: int, limit: int) -> bytes:
         parts.append(part)
         total += len(part)
         if total > limit:
-            raise FileFormatError(name, _too_large(total, limit))
+            raise FileFormatError(name, _too_large(total, limit, growing=True))
         want = min(_READ_STEP, limit + 1 - total)
     return parts[0] if len(parts) == 1 else b"".join(parts)
 
 
-def _too_large(size: int, limit: int) -> str:
+def _too_large(size: int, limit: int, growing: bool) -> str:
+    suggestion = math.ceil(max(2 * limit, 1.1 * size) / 1e6)
+    more = " and growing" if growing else ""
     return (
-        f"is {_megabytes(size)} or more, above the {_megabytes(limit)} limit on input files;"
+        f"is {_megabytes(size)}{more}, above the {_megabytes(limit)} limit on input files;"
         f" raise it with the environment variable {SIZE_LIMIT_VARIABLE}"
-        f" (e.g. {SIZE_LIMIT_VARIABLE}={max(2 * limit // 10**6, 1)})"
+        f" (e.g. {SIZE_LIMIT_VARIABLE}={suggestion})"
     )
 
 
