@@ -89,7 +89,10 @@ def read_number_block(name: str, raw: bytes, start: int, stop: int, first_line: 
         The line and token of the first thing that is not a finite plain number.
     """
     pieces: list[_Piece] = []
-    lines, counts = [], []
+    most = raw.count(b"\n", start, stop) + 1  # lines in the block, at most
+    lines = np.empty(most, dtype=np.int64)
+    counts = np.empty(most, dtype=np.int32)
+    held = 0
     comments: list[tuple[int, str]] = []
     line, position = first_line, start
     while position < stop:
@@ -100,8 +103,9 @@ def read_number_block(name: str, raw: bytes, start: int, stop: int, first_line: 
             piece = _without_comments(piece, line, comments)
         per_line = _numbers_per_line(name, piece, line)
         holding = np.flatnonzero(per_line)
-        lines.append(holding + line)
-        counts.append(per_line[holding])
+        lines[held : held + holding.size] = holding + line
+        counts[held : held + holding.size] = per_line[holding]
+        held += holding.size
         pieces.append(_Piece(position, end, line, commented, int(per_line.sum())))
         line += piece.count(b"\n")
         position = end
@@ -112,10 +116,7 @@ def read_number_block(name: str, raw: bytes, start: int, stop: int, first_line: 
             values[filled : filled + part.numbers] = _convert(name, raw, part)
             filled += part.numbers
     block = NumberBlock(
-        values=values,
-        lines=np.concatenate(lines) if lines else np.empty(0, dtype=np.int64),
-        counts=np.concatenate(counts) if counts else np.empty(0, dtype=np.int64),
-        comments=tuple(comments),
+        values=values, lines=lines[:held], counts=counts[:held], comments=tuple(comments)
     )
     _require_finite(name, raw, start, first_line, block)
     return block

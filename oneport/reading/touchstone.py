@@ -162,7 +162,8 @@ def read_one_port(path: str | Path) -> OnePort:
     FileFormatError
         One line naming the file, the line where possible, the problem and what is accepted.
     """
-    return parse_one_port(read_user_bytes(path, _WHAT), str(path))
+    name = str(path)
+    return _one_port(_parse(name, [read_user_bytes(path, _WHAT)], required_ports=1), name)
 
 
 def parse_one_port(raw: bytes, source: str) -> OnePort:
@@ -170,7 +171,10 @@ def parse_one_port(raw: bytes, source: str) -> OnePort:
 
     Used where the bytes judged must be the bytes read (the folder watcher).
     """
-    parsed = _parse(source, raw, required_ports=1)
+    return _one_port(_parse(source, [raw], required_ports=1), source)
+
+
+def _one_port(parsed: _Parsed, source: str) -> OnePort:
     header = parsed.header
     return OnePort(
         frequency_hz=parsed.frequency_hz,
@@ -194,7 +198,7 @@ def read_touchstone(path: str | Path) -> Multiport:
     :func:`read_one_port` apply; noise data in two-port files are skipped.
     """
     name = str(path)
-    parsed = _parse(name, read_user_bytes(path, _WHAT), required_ports=None)
+    parsed = _parse(name, [read_user_bytes(path, _WHAT)], required_ports=None)
     header = parsed.header
     return Multiport(
         frequency_hz=parsed.frequency_hz,
@@ -236,8 +240,13 @@ def one_port_from_network(network: Any, description: str = "network") -> OnePort
 # --- the whole file ------------------------------------------------------------------------------
 
 
-def _parse(name: str, raw: bytes, required_ports: int | None) -> _Parsed:
-    """Check the whole file and return its header, frequencies (Hz) and S, shape (p, p, n)."""
+def _parse(name: str, content: list[bytes], required_ports: int | None) -> _Parsed:
+    """Check the whole file and return its header, frequencies (Hz) and S, shape (p, p, n).
+
+    ``content`` holds the file's bytes and is emptied here, so that, once the numbers are
+    parsed, the text of a large file is freed before they are converted (peak memory).
+    """
+    raw = content.pop()
     sha256 = hashlib.sha256(raw).hexdigest()
     raw = text_bytes(name, raw, _WHAT)
     if not raw or raw.isspace():
@@ -255,6 +264,7 @@ def _parse(name: str, raw: bytes, required_ports: int | None) -> _Parsed:
         block = read_number_block(name, raw, offset, stop, line)
         if stop < len(raw):
             read_after_data(name, raw, stop, line + raw.count(b"\n", offset, stop), header)
+    del raw
     ports = _port_count(name, header, suffix_ports, required_ports)
     if not block.values.size:
         raise FileFormatError(name, "has no data lines; expected lines of: frequency, values")
@@ -514,8 +524,12 @@ def _complex_pairs(number_format: str, table: np.ndarray) -> np.ndarray:
         return values
     magnitude = first if number_format == "ma" else 10.0 ** (first / 20.0)
     angle = second * (np.pi / 180.0)
-    values.real = magnitude * np.cos(angle)
-    values.imag = magnitude * np.sin(angle)
+    part = np.cos(angle)
+    part *= magnitude
+    values.real = part
+    np.sin(angle, out=part)
+    part *= magnitude
+    values.imag = part
     return values
 
 
