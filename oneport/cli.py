@@ -14,7 +14,7 @@ from types import ModuleType
 from typing import NoReturn, TextIO
 
 from .commands.outcome import ExitCode
-from .errors import OneportError
+from .errors import OneportError, printable
 
 
 class _UsageError(Exception):
@@ -87,12 +87,13 @@ def main(
             return ExitCode.BAD_INPUT
         return int(modules[arguments.command].run(arguments, out))
     except _UsageError as error:
-        print(str(error), file=err)
+        print(printable(str(error)), file=err)
         return ExitCode.BAD_INPUT
     except OneportError as error:
         if arguments is not None and getattr(arguments, "traceback", False):
             raise
-        print(f"oneport: {error}", file=err)
+        # Paths inside messages may hold control characters: never let them reach the terminal.
+        print(f"oneport: {printable(str(error))}", file=err)
         return ExitCode.BAD_INPUT
     except KeyboardInterrupt:
         print("oneport: interrupted", file=err)

@@ -6,7 +6,10 @@ mode puts this folder on ``sys.path`` for the test files beside it.
 
 from __future__ import annotations
 
+import contextlib
 import io
+import signal
+from collections.abc import Iterator
 from pathlib import Path
 
 import numpy as np
@@ -43,6 +46,25 @@ def run_cli(*argv: str | Path) -> tuple[int, str, str]:
     out, err = io.StringIO(), io.StringIO()
     code = main([str(argument) for argument in argv], stdout=out, stderr=err)
     return int(code), out.getvalue(), err.getvalue()
+
+
+@contextlib.contextmanager
+def deadline(seconds: int) -> Iterator[None]:
+    """Fail, instead of hanging, when the body takes longer than ``seconds`` (POSIX alarm).
+
+    For tests of inputs that could block (a FIFO opened for reading waits for a writer).
+    """
+
+    def expire(signum: int, frame: object) -> None:
+        raise TimeoutError(f"blocked for more than {seconds} s")
+
+    previous = signal.signal(signal.SIGALRM, expire)
+    signal.alarm(seconds)
+    try:
+        yield
+    finally:
+        signal.alarm(0)
+        signal.signal(signal.SIGALRM, previous)
 
 
 def gamma_of(impedance_ohm: np.ndarray, reference_ohm: float = Z0) -> np.ndarray:

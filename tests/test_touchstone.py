@@ -1,7 +1,8 @@
 """The Touchstone reader: right values from every encoding, one-line refusals, never unpickling.
 
 Outside references, named beside each check: the Touchstone specification's example files
-(IBIS Open Forum, versions 1.x and 2.0, read from ``../shared/touchstone-reference/``), the
+(IBIS Open Forum, versions 1.x and 2.0, as collected in scikit-rf's parser tests, copied with
+their licence into ``tests/data/touchstone-spec/``), the
 option-line values of METHODS §7, and scikit-rf's own Touchstone reader on files written here.
 """
 
@@ -25,15 +26,13 @@ from oneport.reading.alignment import renormalise
 
 from helpers import mutate_lines
 
-REFERENCE_FOLDER = Path(__file__).resolve().parents[2] / "shared" / "touchstone-reference"
-SPEC_EXAMPLES = REFERENCE_FOLDER / "spec-examples"
+SPEC_EXAMPLES = Path(__file__).resolve().parent / "data" / "touchstone-spec"
 
 
 def spec_file(name: str) -> Path:
-    """A Touchstone specification example file, or skip when the reference folder is absent."""
+    """A Touchstone specification example file (tests/data/touchstone-spec/, in the repository)."""
     path = SPEC_EXAMPLES / name
-    if not path.is_file():
-        pytest.skip(f"Touchstone specification examples not found at {SPEC_EXAMPLES}")
+    assert path.is_file(), f"{path} is missing from the repository"
     return path
 
 

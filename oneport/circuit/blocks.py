@@ -1,8 +1,9 @@
 """Touchstone blocks inside a circuit: reading their files and putting them on the grid.
 
-Files are read with :func:`oneport.reading.touchstone.read_touchstone` (safe, strict). A block's
-data are interpolated onto the analysis grid linearly in real and imaginary parts, inside the file's
-band only: a grid that leaves the band is refused, never extrapolated.
+Files are read with :func:`oneport.reading.touchstone.read_touchstone` (safe, strict: regular
+files of bounded size only, with a port count the reader accepts). A block's data are
+interpolated onto the analysis grid linearly in real and imaginary parts, inside the file's band
+only: a grid that leaves the band is refused, never extrapolated.
 """
 
 from __future__ import annotations
@@ -11,7 +12,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import FileFormatError, InputError
+from ..errors import FileFormatError, InputError, printable
 from ..reading.touchstone import Multiport, read_touchstone
 from ..units import format_frequency
 
@@ -32,7 +33,7 @@ def read_block_file(path: str | Path, where: str) -> Multiport:
     try:
         return read_touchstone(path)
     except FileFormatError as error:
-        raise InputError(f"{where}: {error}") from None
+        raise InputError(f"{printable(where)}: {error}") from None
 
 
 def interpolate_block(data: Multiport, frequency_hz: np.ndarray, where: str) -> np.ndarray:
@@ -48,7 +49,8 @@ def interpolate_block(data: Multiport, frequency_hz: np.ndarray, where: str) -> 
     if frequency_hz.size and (frequency_hz[0] < low - slack or frequency_hz[-1] > high + slack):
         raise InputError(
             f"{where}: the analysis grid ({format_frequency(float(frequency_hz[0]))} to"
-            f" {format_frequency(float(frequency_hz[-1]))}) leaves the band of {data.source}"
+            f" {format_frequency(float(frequency_hz[-1]))}) leaves the band of"
+            f" {printable(data.source)}"
             f" ({format_frequency(low)} to {format_frequency(high)}); a block is interpolated"
             " inside its band only, never extrapolated: keep the grid inside it"
         )

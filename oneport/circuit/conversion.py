@@ -16,6 +16,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import InputError
+from ..reading.files import read_user_bytes
 from ..reading.touchstone import Multiport, OnePort
 from .model import Circuit
 from .netlist import CIRCUIT_SUFFIXES, read_circuit
@@ -108,4 +109,4 @@ def _circuit(circuit: str | Path | Circuit) -> tuple[Circuit, str | None]:
     if isinstance(circuit, Circuit):
         return circuit, None
     built = read_circuit(circuit)
-    return built, hashlib.sha256(Path(circuit).read_bytes()).hexdigest()
+    return built, hashlib.sha256(read_user_bytes(circuit, "a netlist")).hexdigest()

@@ -26,13 +26,14 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import FileFormatError
+from ..reading.files import NETLIST_SUFFIXES, decode_text, read_user_bytes
 from .blocks import read_block_file
 from .elements import ELEMENT_TYPES, Block, Element
 from .model import Circuit
 from .values import ParameterReference, ValueSpec, ValueTokenError, is_name, parse_value
 
-#: File suffixes read as netlists.
-CIRCUIT_SUFFIXES = (".cir",)
+#: File suffixes read as netlists (one list, in :mod:`oneport.reading.files`).
+CIRCUIT_SUFFIXES = NETLIST_SUFFIXES
 
 
 @dataclass(frozen=True)
@@ -76,21 +77,7 @@ def read_circuit(path: str | Path) -> Circuit:
         One line: file, line, the offending token and what would be accepted.
     """
     name = str(path)
-    try:
-        raw = Path(path).read_bytes()
-    except FileNotFoundError:
-        raise FileFormatError(name, "no such file") from None
-    except IsADirectoryError:
-        raise FileFormatError(name, "is a folder, not a netlist") from None
-    except OSError as error:
-        raise FileFormatError(name, f"cannot be read ({error.strerror})") from None
-    if b"\x00" in raw:
-        raise FileFormatError(name, "has binary content; a netlist is text")
-    try:
-        text = raw.decode("utf-8")
-    except UnicodeDecodeError as error:
-        line = raw[: error.start].count(b"\n") + 1
-        raise FileFormatError(name, "is not UTF-8 text", line) from None
+    text = decode_text(name, read_user_bytes(path, "a netlist"), "a netlist")
     return parse_circuit(text, source=name, folder=Path(path).parent)
 
 

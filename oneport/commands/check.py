@@ -189,10 +189,10 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
 
 def _side(path: str, setup: Any, role: str) -> Any:
     """A netlist path as it is (the check evaluates it), or the prepared Touchstone one-port."""
-    from ..circuit import is_circuit_path
+    from ..reading.files import is_netlist_path
     from ..reading.preparation import PortSetup, prepare
 
-    if not is_circuit_path(path):
+    if not is_netlist_path(path):
         return prepare(path, setup, role)
     if setup != PortSetup(terminated_port=setup.terminated_port):
         raise InputError(

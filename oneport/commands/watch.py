@@ -8,6 +8,7 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any, TextIO
 
+from ..errors import printable
 from ..units import parse_quantity
 
 NAME = "watch"
@@ -19,12 +20,15 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         NAME,
         help="check every new or changed device file in a folder against one load",
         description="Watch FOLDER and check each new or changed Touchstone file (.s1p, .ts)"
-        " against the load, once its size and time stamp have stayed the same for one polling"
-        " interval. Prints one verdict line per file; stop with Ctrl-C (exit code 130).",
+        " against the load, once its size and time stamp have stayed the same for two polling"
+        " intervals and its last line is complete. Prints one verdict line per file (or"
+        " 'waiting' for a file that is not complete yet); stop with Ctrl-C (exit code 130).",
         epilog="example: oneport watch bench/ --load bias_tee.s1p --report-dir reports/",
     )
     command.add_argument("folder", help="the folder the device files arrive in")
-    command.add_argument("--load", required=True, help="the load's Touchstone one-port")
+    command.add_argument(
+        "--load", required=True, help="the load: a Touchstone one-port or a netlist (.cir)"
+    )
     command.add_argument(
         "--report-dir",
         metavar="DIR",
@@ -34,7 +38,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         "--interval",
         metavar="SECONDS",
         default="1s",
-        help="polling interval, and how long a file must stay unchanged (default 1s)",
+        help="polling interval, 50ms to 1h (default 1s); a file must stay unchanged for two",
     )
     command.add_argument(
         "--traceback", action="store_true", help="show Python tracebacks for errors (debugging)"
@@ -62,25 +66,40 @@ def watch_folder(
     """Watch ``folder``, print a line per checked file; return 0 when ``max_polls`` ran out.
 
     The load is read once first, so a bad load stops the command at once (exit 2); after that,
-    a file that cannot be checked prints ``oneport: <error>`` and the watch goes on.
+    a file that cannot be checked prints ``oneport: <error>``, a file not complete yet prints
+    ``<name>: waiting: <why>``, and the watch goes on.
     """
     from ..products.watch import FolderWatcher, run_watch
-    from ..reading.touchstone import read_one_port
 
-    read_one_port(load)
+    _read_load(load)
     reports = _report_folder(report_dir)
     watcher = FolderWatcher(folder, interval_s, ignore=(load,))
     print(
-        f"watching {watcher.folder} every {interval_s:g} s against {load} (Ctrl-C stops)",
+        f"watching {printable(str(watcher.folder))} every {interval_s:g} s against"
+        f" {printable(str(load))} (Ctrl-C stops)",
         file=out,
         flush=True,
     )
 
     def handle(path: Path) -> None:
-        _check_and_print(path, load, reports, out)
+        _check_and_print(path, load, watcher.version(path), reports, out)
 
     run_watch(watcher, handle, clock=clock, sleep=sleep, max_polls=max_polls)
     return 0
+
+
+def _read_load(load: str | Path) -> None:
+    """Read the load once, so a bad load stops the watch before it starts."""
+    from ..reading.files import is_netlist_path
+
+    if is_netlist_path(load):
+        from ..circuit import read_circuit
+
+        read_circuit(load)
+    else:
+        from ..reading.touchstone import read_one_port
+
+        read_one_port(load)
 
 
 def _report_folder(report_dir: str | Path | None) -> Path | None:
@@ -96,16 +115,24 @@ def _report_folder(report_dir: str | Path | None) -> Path | None:
     return folder
 
 
-def _check_and_print(path: Path, load: str | Path, reports: Path | None, out: TextIO) -> None:
+def _check_and_print(
+    path: Path, load: str | Path, version: Any, reports: Path | None, out: TextIO
+) -> None:
     from ..errors import OneportError
     from ..products.watch import check_file
     from ..rendering.check_text import verdict_line
 
-    outcome = check_file(path, load)
-    if outcome.result is None:
-        print(f"oneport: {outcome.error}", file=out, flush=True)
+    outcome = check_file(path, load, version)
+    name = printable(path.name)
+    if outcome.waiting is not None:
+        print(f"{name}: waiting: {outcome.waiting}", file=out, flush=True)
         return
-    print(f"{path.name}: {verdict_line(outcome.result)}", file=out, flush=True)
+    if outcome.error is not None:
+        print(f"oneport: {printable(outcome.error)}", file=out, flush=True)
+        return
+    if outcome.result is None:
+        return  # it changed while it was read: it is handed out again once it is still
+    print(f"{name}: {verdict_line(outcome.result)}", file=out, flush=True)
     if reports is not None:
         from ..rendering.report import write_report
 

@@ -17,6 +17,7 @@ from ..analysis.judgement import CheckOptions, analyse_pair
 from ..analysis.result import CheckResult
 from ..errors import InputError
 from ..reading.alignment import align
+from ..reading.files import is_netlist_path
 from ..reading.preparation import PreparedPort, load_one_port
 from ..reading.touchstone import OnePort
 
@@ -88,11 +89,13 @@ def check(
     )
     pair = align(device_port, load_port, options.measurement_impedance_ohm)
     result = analyse_pair(pair, device_port, load_port, options)
+    # What the reader could not confirm (no option line, ignored port-impedance comments).
+    reading = device_port.warnings + load_port.warnings
     prepared = [(i, s) for i, s in enumerate((device, load)) if isinstance(s, PreparedPort)]
-    if not prepared:
+    if not prepared and not reading:
         return result
     inputs = list(result.inputs)
-    findings = list(result.warnings)
+    findings = [*result.warnings, *reading]
     for index, source in prepared:
         inputs[index] = replace(inputs[index], preparation=source.steps)
         findings += source.findings
@@ -145,9 +148,13 @@ def _resolve_sides(
 def _as_circuit(source: OneportSource) -> Any:
     """The :class:`~oneport.circuit.Circuit` a source describes, or None for data."""
     if isinstance(source, str | Path):
-        from ..circuit import is_circuit_path, read_circuit
+        if not is_netlist_path(source):
+            return None  # a Touchstone file: the circuit package is not even imported
+        from ..circuit import read_circuit
 
-        return read_circuit(source) if is_circuit_path(source) else None
+        return read_circuit(source)
+    if isinstance(source, OnePort | PreparedPort):
+        return None
     from ..circuit import Circuit
 
     return source if isinstance(source, Circuit) else None

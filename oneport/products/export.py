@@ -19,6 +19,7 @@ from ..cautions import CAUTIONS
 from ..circuit.netlist import read_circuit
 from ..circuit.writer import write_touchstone
 from ..errors import InputError
+from ..reading.files import read_user_bytes
 
 EXPORT_SCHEMA = "oneport.export/1"
 SPACINGS = ("linear", "log")
@@ -147,7 +148,7 @@ def export_circuit(
     write_touchstone(output_path, frequency_hz, s, reference_impedance_ohm, comments)
     return ExportResult(
         circuit_path=str(circuit_path),
-        circuit_sha256=hashlib.sha256(Path(circuit_path).read_bytes()).hexdigest(),
+        circuit_sha256=hashlib.sha256(read_user_bytes(circuit_path, "a netlist")).hexdigest(),
         output_path=str(output_path),
         ports=int(s.shape[0]),
         points=int(frequency_hz.size),

@@ -1,9 +1,18 @@
 """Watching a folder for device files: which files are ready to check, and checking them.
 
-A file is *ready* once its size and modification time have stayed the same over one whole
-polling interval (measured on the watcher's own clock, not from the file's time stamp, so
-clock skew between machines sharing a folder does not matter). Each version of a file is
-handed out once; a file that changes again is handed out again once it is still again.
+A file is never judged while it is still being written. It is *still* once its size and
+modification time have stayed the same over two whole polling intervals (measured on the
+watcher's own clock, not from the file's time stamp, so clock skew between machines sharing a
+folder does not matter); each still version is handed out once, and a file that changes again
+is handed out again once it is still again. A still file is then *complete* only when its last
+line has ended (a newline: Touchstone data lines end with one) or, for a 2.x file, when it
+parses with its ``[Number of Frequencies]`` met, and it reads without error; a 2.x file that
+holds fewer points than it declares, or a file whose last line has not ended, is reported as
+*waiting*, never with a verdict. The bytes checked are the bytes judged complete (read once).
+
+What no watcher can tell: a 1.x file whose writer pauses, after a complete line, for longer
+than two intervals looks finished. Writers should save under a hidden name (``.name.s1p``)
+or another suffix and rename when done, or the interval should exceed their longest pause.
 
 This room polls and checks; it never prints, writes reports or exits. The clock and the sleep
 are injectable so tests run without waiting, and :func:`run_watch` takes ``max_polls`` to stop.
@@ -18,7 +27,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from ..errors import InputError, OneportError
+from ..errors import FileFormatError, InputError, OneportError, printable
 
 if TYPE_CHECKING:
     from ..analysis.result import CheckResult
@@ -27,6 +36,11 @@ if TYPE_CHECKING:
 WATCHED_SUFFIXES = (".s1p", ".ts")
 #: Default polling interval, s.
 DEFAULT_INTERVAL_S = 1.0
+#: The shortest and longest polling intervals accepted, s (a shorter one only burns a core).
+MINIMUM_INTERVAL_S = 0.05
+MAXIMUM_INTERVAL_S = 3600.0
+#: How many whole intervals a file's size and time stamp must stay the same.
+STILL_INTERVALS = 2
 
 
 @dataclass(frozen=True)
@@ -46,11 +60,16 @@ class _Tracked:
 
 @dataclass(frozen=True)
 class WatchOutcome:
-    """The check of one ready file: a result, or the one-line reason it could not be checked."""
+    """What became of one still file: a result, an error, or why it is still awaited.
+
+    Exactly one of ``result``, ``error`` and ``waiting`` is set, except for a file that changed
+    while it was read (all three None): it is handed out again once it is still.
+    """
 
     path: Path
     result: CheckResult | None
     error: str | None
+    waiting: str | None = None
 
 
 class FolderWatcher:
@@ -61,8 +80,8 @@ class FolderWatcher:
     folder : str or Path
         The folder to watch (not its subfolders).
     interval_s : float
-        How long, s, a file's size and mtime must stay unchanged before it is ready; also the
-        intended time between polls.
+        The time between polls, s, from 0.05 s to 1 h; a file's size and mtime must stay
+        unchanged over two of them before it is handed out.
     ignore : iterable of path, optional
         Files never handed out (the load, when it lives in the watched folder).
 
@@ -74,9 +93,11 @@ class FolderWatcher:
     >>> watcher = FolderWatcher(folder, interval_s=1.0)
     >>> watcher.poll(now=0.0)  # seen for the first time: not yet known to be still
     []
-    >>> [path.name for path in watcher.poll(now=1.0)]
+    >>> watcher.poll(now=1.0)  # still for one interval only
+    []
+    >>> [path.name for path in watcher.poll(now=2.0)]
     ['a.s1p']
-    >>> watcher.poll(now=2.0)  # unchanged: handed out once only
+    >>> watcher.poll(now=3.0)  # unchanged: handed out once only
     []
     """
 
@@ -88,9 +109,14 @@ class FolderWatcher:
     ) -> None:
         self.folder = Path(folder)
         if not self.folder.is_dir():
-            raise InputError(f"{self.folder}: no such folder; give the folder to watch")
-        if not interval_s > 0.0:
-            raise InputError(f"--interval: must be a positive time, was {interval_s:g} s")
+            raise InputError(
+                f"{printable(str(self.folder))}: no such folder; give the folder to watch"
+            )
+        if not MINIMUM_INTERVAL_S <= interval_s <= MAXIMUM_INTERVAL_S:
+            raise InputError(
+                f"--interval: {interval_s:g} s is outside the accepted range; give a time from"
+                f" {MINIMUM_INTERVAL_S * 1e3:g} ms to {MAXIMUM_INTERVAL_S / 3600:g} h, e.g. 1s"
+            )
         self.interval_s = float(interval_s)
         self._ignored = {os.path.realpath(path) for path in ignore}
         self._tracked: dict[Path, _Tracked] = {}
@@ -111,11 +137,16 @@ class FolderWatcher:
                 handed_out = tracked.handed_out if tracked else None
                 self._tracked[path] = _Tracked(version, now, handed_out)
                 continue
-            still_long_enough = now - tracked.unchanged_since >= self.interval_s
-            if still_long_enough and tracked.handed_out != version:
+            still = now - tracked.unchanged_since >= STILL_INTERVALS * self.interval_s
+            if still and tracked.handed_out != version:
                 tracked.handed_out = version
                 ready.append(path)
         return ready
+
+    def version(self, path: Path) -> FileVersion | None:
+        """The version of ``path`` last seen (None for a file not tracked)."""
+        tracked = self._tracked.get(path)
+        return tracked.version if tracked else None
 
     def _scan(self) -> dict[Path, FileVersion]:
         """Current versions of the watched files (entries that vanish meanwhile are skipped)."""
@@ -123,7 +154,9 @@ class FolderWatcher:
         try:
             entries = list(os.scandir(self.folder))
         except OSError as error:
-            raise InputError(f"{self.folder}: cannot be read ({error.strerror})") from None
+            raise InputError(
+                f"{printable(str(self.folder))}: cannot be read ({error.strerror})"
+            ) from None
         for entry in entries:
             if not _is_watched_name(entry.name):
                 continue
@@ -145,14 +178,50 @@ def _is_watched_name(name: str) -> bool:
     return not name.startswith(".") and name.lower().endswith(WATCHED_SUFFIXES)
 
 
-def check_file(device_path: Path, load_path: str | Path) -> WatchOutcome:
-    """Check one ready device file against the load; a user error becomes ``error``."""
+def check_file(
+    device_path: Path, load_path: str | Path, expected: FileVersion | None = None
+) -> WatchOutcome:
+    """Check one still device file against the load, if it is complete.
+
+    The file is read once: the bytes judged complete are the bytes checked. A file that is empty
+    so far, whose last line has not ended (unless a 2.x file meets its ``[Number of
+    Frequencies]``), or that holds fewer points than it declares, is *waiting*; a file that
+    cannot be read or checked gives ``error``; a complete one gives ``result``. With
+    ``expected`` (the still version), a file whose size changed since is left for the next poll.
+    """
+    from ..reading.files import read_user_bytes
+    from ..reading.touchstone import IncompleteFileError, parse_one_port
     from .check import check
 
     try:
-        return WatchOutcome(device_path, check(device_path, load_path), None)
+        raw = read_user_bytes(device_path, "a Touchstone file")
     except OneportError as error:
         return WatchOutcome(device_path, None, str(error))
+    if expected is not None and len(raw) != expected.size:
+        return WatchOutcome(device_path, None, None)  # it changed again: seen at the next poll
+    if not raw.strip():
+        return WatchOutcome(device_path, None, None, "it is empty so far")
+    line_ended = raw.rstrip(b" \t").endswith(b"\n")
+    try:
+        port = parse_one_port(raw, str(device_path))
+    except IncompleteFileError as error:
+        return WatchOutcome(device_path, None, None, f"{error.problem} so far")
+    except FileFormatError as error:
+        if not line_ended:
+            return WatchOutcome(device_path, None, None, _UNENDED)
+        return WatchOutcome(device_path, None, str(error))
+    if not line_ended and port.declared_frequencies is None:
+        return WatchOutcome(device_path, None, None, _UNENDED)
+    try:
+        return WatchOutcome(device_path, check(port, load_path), None)
+    except OneportError as error:
+        return WatchOutcome(device_path, None, str(error))
+
+
+_UNENDED = (
+    "its last line has not ended (Touchstone data lines end with a line break), so it may"
+    " still be being written; it is checked once it is complete"
+)
 
 
 def run_watch(
@@ -167,7 +236,8 @@ def run_watch(
 
     Runs until ``max_polls`` polls have been made (forever when None) or ``KeyboardInterrupt``,
     which is left to the caller. The sleep after a poll is shortened by the time ``handle``
-    took, so polls stay about one interval apart.
+    took, so polls stay about one interval apart, but never below the shortest interval, so the
+    loop never spins a core.
 
     Returns
     -------
@@ -182,5 +252,5 @@ def run_watch(
         polls += 1
         if max_polls is not None and polls >= max_polls:
             break
-        sleep(max(0.0, watcher.interval_s - (clock() - started)))
+        sleep(max(MINIMUM_INTERVAL_S, watcher.interval_s - (clock() - started)))
     return polls

@@ -91,6 +91,7 @@ def _terminated(path: str | Path, setup: PortSetup, findings: list[Finding]) -> 
     else:
         assert setup.terminate_path is not None
         termination = read_one_port(setup.terminate_path)
+        findings.extend(termination.warnings)
         inside = _inside(frequency_hz, termination.frequency_hz, setup.terminate_path)
         two_port = _restricted(two_port, inside)
         frequency_hz = two_port.frequency_hz
@@ -128,6 +129,7 @@ def _differential(path: str | Path, pairs: tuple[tuple[int, int], ...]) -> OnePo
 
 def _deembedded(port: OnePort, fixture_path: str, findings: list[Finding]) -> OnePort:
     fixture = _two_port(fixture_path)
+    findings.extend(fixture.warnings)
     inside = _inside(port.frequency_hz, fixture.frequency_hz, fixture_path)
     if not inside.all():
         findings.append(
@@ -192,13 +194,15 @@ def _restricted(multiport: Multiport, inside: np.ndarray) -> Multiport:
 
 
 def _with_record(port: OnePort, multiport: Multiport) -> OnePort:
-    """Carry the file's checksum and format over to a derived one-port."""
+    """Carry the file's checksum, format and reader warnings over to a derived one-port."""
     return replace(
         port,
         sha256=multiport.sha256,
         parameter=multiport.parameter,
         number_format=multiport.number_format,
         version=multiport.version,
+        warnings=multiport.warnings,
+        declared_frequencies=multiport.declared_frequencies,
     )
 
 

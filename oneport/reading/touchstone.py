@@ -1,22 +1,29 @@
-"""Safe, strict reading of one-port Touchstone files (versions 1.x, 2.0 and 2.1).
+"""Safe, strict reading of Touchstone files (versions 1.x, 2.0 and 2.1), parsed once.
 
-This room is the edge where user files enter. It never unpickles: ``skrf.Network(path)`` tries
-``pickle`` first and so could run code from a hostile file, so the text is first checked here,
-line by line, and only then handed to scikit-rf's text reader
-(:class:`skrf.io.touchstone.Touchstone`), which converts Z, Y and every number format to S.
-scikit-rf objects stop here: the rest of the package sees :class:`OnePort`, plain numpy arrays.
+This room is the edge where Touchstone files enter. The bytes come from
+:func:`oneport.reading.files.read_user_bytes` (regular files of bounded size only); the header
+(option line, 2.x keywords) is read line by line here, the data block in bulk by
+:mod:`oneport.reading.number_block`, and RI/MA/DB pairs and Z or Y matrices are turned into S on
+numpy arrays here. Nothing is ever unpickled and no second parser reads the text: scikit-rf is
+not imported to read a file (``skrf.Network(path)`` tries ``pickle`` first). The rest of the
+package sees :class:`OnePort` and :class:`Multiport`, plain numpy arrays.
 
 Accepted: S, Z or Y parameters; RI, MA or DB; Hz, kHz, MHz or GHz; any positive real ``R`` or
 ``[Reference]``. Refused, each with one line naming file, line, value and what is accepted:
-binary or empty files, no data, wrong column counts, frequencies that are negative, repeated or
-not increasing, NaN or infinite values, and files with more than one port.
+binary, UTF-16 or empty files, no data, wrong value counts, frequencies that are negative,
+repeated or not increasing, NaN or infinite values, MA magnitudes below zero, option lines that
+repeat an entry or contradict themselves, a second option line or one after the data, unknown or
+repeated 2.x keywords, and 2.x two-ports without ``[Two-Port Data Order]``. Never silent: a file
+without an option line is read with the specification's defaults (GHz S MA R 50) and carries the
+warning ``touchstone-no-option-line``; ``! Port Impedance`` comment lines (written by some field
+solvers) are comments, so they are not used, and when they disagree with the reference
+impedance the data are read in, the warning ``touchstone-port-impedance-comments-ignored`` says
+so. Reader warnings travel on the record (``OnePort.warnings``) for the products to report.
 """
 
 from __future__ import annotations
 
 import hashlib
-import io
-import math
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -24,18 +31,26 @@ from typing import Any
 
 import numpy as np
 
-from ..errors import FileFormatError
+from ..errors import FileFormatError, printable
+from ..findings import Finding
+from .files import read_user_bytes, text_bytes
+from .number_block import NumberBlock, read_number_block
+from .touchstone_header import (
+    FREQUENCY_UNITS,
+    Header,
+    ports_from_suffix,
+    read_after_data,
+    read_header,
+)
 
-_FREQUENCY_UNITS = {"hz": 1.0, "khz": 1e3, "mhz": 1e6, "ghz": 1e9}
 _PARAMETERS = ("s", "y", "z")
-_FORMATS = ("ri", "ma", "db")
-_PORTS_FROM_SUFFIX = re.compile(r"^\.s(\d+)p$", re.IGNORECASE)
-#: Deletes every character a plain number or white space may hold (see ``_parse_numbers``).
-_OPTION_LINE = re.compile(r"^[ \t]*#[^\n]*", re.MULTILINE)
-_NUMBER_CHARACTERS = str.maketrans("", "", "0123456789+-.eE \t")
-_ASCII_NUMBER = re.compile(r"^[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$")
 #: Levels beyond this in a DB file are not measurements (10^(400/20) = 1e20).
 _LARGEST_DECIBELS = 400.0
+_WHAT = "a Touchstone file (.s1p, .s2p, ... or .ts)"
+#: Code of the warning for a file without an option line.
+NO_OPTION_LINE = "touchstone-no-option-line"
+#: Code of the warning for ``! Port Impedance`` comments that disagree with the reference used.
+PORT_IMPEDANCE_COMMENTS = "touchstone-port-impedance-comments-ignored"
 
 
 @dataclass(frozen=True)
@@ -56,6 +71,13 @@ class OnePort:
         SHA-256 of the file's bytes; None for data not read from a file.
     parameter, number_format, version : str
         What the file said (``"S"``, ``"RI"``, ``"1.x"``…), for the record.
+    comments : tuple of str
+        The file's comments (the text after each ``!``).
+    warnings : tuple of Finding
+        What the reader could not confirm (no option line, ignored port-impedance comments);
+        every product that reports on this record adds them to its result's warnings.
+    declared_frequencies : int or None
+        A 2.x file's ``[Number of Frequencies]`` (met, or the file was refused).
     """
 
     frequency_hz: np.ndarray
@@ -67,6 +89,8 @@ class OnePort:
     number_format: str = "RI"
     version: str = "1.x"
     comments: tuple[str, ...] = field(default=())
+    warnings: tuple[Finding, ...] = field(default=())
+    declared_frequencies: int | None = None
 
     @property
     def points(self) -> int:
@@ -84,7 +108,7 @@ class Multiport:
     s : ndarray of complex, shape (p, p, n)
         S-parameters referred to ``reference_impedance_ohm`` port by port.
     reference_impedance_ohm : ndarray of float, shape (p,)
-    source, sha256, parameter, number_format, version
+    source, sha256, parameter, number_format, version, warnings, declared_frequencies
         As for :class:`OnePort`.
     """
 
@@ -96,6 +120,8 @@ class Multiport:
     parameter: str = "S"
     number_format: str = "RI"
     version: str = "1.x"
+    warnings: tuple[Finding, ...] = field(default=())
+    declared_frequencies: int | None = None
 
     @property
     def ports(self) -> int:
@@ -103,20 +129,18 @@ class Multiport:
         return int(self.s.shape[0])
 
 
-@dataclass
-class _Header:
-    version: str = "1.x"
-    ports: int | None = None
-    unit: str = "ghz"
-    parameter: str = "s"
-    number_format: str = "ma"
-    reference: float = 50.0
-    references: list[float] = field(default_factory=list)
-    matrix_format: str = "full"
-    declared_frequencies: int | None = None
-    option_line: int | None = None
-    ports_line: int | None = None
-    frequencies_line: int | None = None
+class IncompleteFileError(FileFormatError):
+    """A 2.x file that ends before the frequencies it declares (it may still be being written)."""
+
+
+@dataclass(frozen=True)
+class _Parsed:
+    header: Header
+    frequency_hz: np.ndarray
+    s: np.ndarray
+    sha256: str
+    comments: tuple[str, ...]
+    warnings: tuple[Finding, ...]
 
 
 def read_one_port(path: str | Path) -> OnePort:
@@ -130,27 +154,40 @@ def read_one_port(path: str | Path) -> OnePort:
     Returns
     -------
     OnePort
-        Reflection coefficient in the file's own reference impedance.
+        Reflection coefficient in the file's own reference impedance, with the reader's
+        warnings.
 
     Raises
     ------
     FileFormatError
         One line naming the file, the line where possible, the problem and what is accepted.
     """
-    name, raw, text = _read_text(path)
-    header, frequency_hz = _validate(name, text, required_ports=1)
-    s = _convert_with_scikit_rf(name, text, header, frequency_hz)
-    comments = tuple(line.split("!", 1)[1].strip() for line in text.splitlines() if "!" in line)
+    name = str(path)
+    return _one_port(_parse(name, [read_user_bytes(path, _WHAT)], required_ports=1), name)
+
+
+def parse_one_port(raw: bytes, source: str) -> OnePort:
+    """A one-port from a Touchstone file's bytes already in hand (``source`` names the file).
+
+    Used where the bytes judged must be the bytes read (the folder watcher).
+    """
+    return _one_port(_parse(source, [raw], required_ports=1), source)
+
+
+def _one_port(parsed: _Parsed, source: str) -> OnePort:
+    header = parsed.header
     return OnePort(
-        frequency_hz=frequency_hz,
-        gamma=s[0, 0],
+        frequency_hz=parsed.frequency_hz,
+        gamma=parsed.s[0, 0],
         reference_impedance_ohm=header.reference,
-        source=name,
-        sha256=hashlib.sha256(raw).hexdigest(),
+        source=source,
+        sha256=parsed.sha256,
         parameter=header.parameter.upper(),
         number_format=header.number_format.upper(),
         version=header.version,
-        comments=comments,
+        comments=parsed.comments,
+        warnings=parsed.warnings,
+        declared_frequencies=header.declared_frequencies,
     )
 
 
@@ -160,32 +197,21 @@ def read_touchstone(path: str | Path) -> Multiport:
     Used for two-port devices, fixtures and circuit blocks. The same checks as
     :func:`read_one_port` apply; noise data in two-port files are skipped.
     """
-    name, raw, text = _read_text(path)
-    header, frequency_hz = _validate(name, text, required_ports=None)
-    s = _convert_with_scikit_rf(name, text, header, frequency_hz)
+    name = str(path)
+    parsed = _parse(name, [read_user_bytes(path, _WHAT)], required_ports=None)
+    header = parsed.header
     return Multiport(
-        frequency_hz=frequency_hz,
-        s=s,
+        frequency_hz=parsed.frequency_hz,
+        s=parsed.s,
         reference_impedance_ohm=np.array(header.references, dtype=float),
         source=name,
-        sha256=hashlib.sha256(raw).hexdigest(),
+        sha256=parsed.sha256,
         parameter=header.parameter.upper(),
         number_format=header.number_format.upper(),
         version=header.version,
+        warnings=parsed.warnings,
+        declared_frequencies=header.declared_frequencies,
     )
-
-
-def _read_text(path: str | Path) -> tuple[str, bytes, str]:
-    name = str(path)
-    try:
-        raw = Path(path).read_bytes()
-    except FileNotFoundError:
-        raise FileFormatError(name, "no such file") from None
-    except IsADirectoryError:
-        raise FileFormatError(name, "is a folder, not a Touchstone file") from None
-    except OSError as error:
-        raise FileFormatError(name, f"cannot be read ({error.strerror})") from None
-    return name, raw, _decode(name, raw)
 
 
 def one_port_from_network(network: Any, description: str = "network") -> OnePort:
@@ -211,76 +237,74 @@ def one_port_from_network(network: Any, description: str = "network") -> OnePort
     )
 
 
-def _decode(name: str, raw: bytes) -> str:
-    if not raw.strip():
+# --- the whole file ------------------------------------------------------------------------------
+
+
+def _parse(name: str, content: list[bytes], required_ports: int | None) -> _Parsed:
+    """Check the whole file and return its header, frequencies (Hz) and S, shape (p, p, n).
+
+    ``content`` holds the file's bytes and is emptied here, so that, once the numbers are
+    parsed, the text of a large file is freed before they are converted (peak memory).
+    """
+    raw = content.pop()
+    sha256 = hashlib.sha256(raw).hexdigest()
+    raw = text_bytes(name, raw, _WHAT)
+    if not raw or raw.isspace():
         raise FileFormatError(name, "is empty; a Touchstone file holds an option line and data")
-    if raw[:1] == b"\x80" or b"\x00" in raw:
-        raise FileFormatError(
-            name,
-            "has binary content (a pickle or other binary file); only Touchstone text is read,"
-            " and binary files are never opened as objects",
-        )
-    try:
-        return raw.decode("utf-8")
-    except UnicodeDecodeError as error:
-        line = raw[: error.start].count(b"\n") + 1
-        raise FileFormatError(
-            name, "is not text (invalid UTF-8); Touchstone files are ASCII text", line
-        ) from None
+    if b"\r" in raw and raw.count(b"\r") != raw.count(b"\r\n"):
+        raw = raw.replace(b"\r\n", b"\n").replace(b"\r", b"\n")  # lines ended by CR alone
+    header = Header()
+    suffix_ports = ports_from_suffix(name)
+    start = read_header(name, raw, header)
+    if start is None:
+        block = NumberBlock(np.empty(0), np.empty(0, int), np.empty(0, int), ())
+    else:
+        offset, line = start
+        stop = _end_of_data(raw, offset)
+        block = read_number_block(name, raw, offset, stop, line)
+        if stop < len(raw):
+            read_after_data(name, raw, stop, line + raw.count(b"\n", offset, stop), header)
+    del raw
+    ports = _port_count(name, header, suffix_ports, required_ports)
+    if not block.values.size:
+        raise FileFormatError(name, "has no data lines; expected lines of: frequency, values")
+    _complete_references(name, header, ports)
+    lines, table = _points(name, header, block, ports)
+    frequency_hz = _frequencies(name, header, lines, table)
+    _check_levels(name, header, lines, table)
+    s = _scattering(name, header, table, ports, frequency_hz)
+    comments = header.comments + list(block.comments)
+    return _Parsed(
+        header=header,
+        frequency_hz=frequency_hz,
+        s=s,
+        sha256=sha256,
+        comments=tuple(text for _, text in comments),
+        warnings=_warnings(name, header, comments, ports),
+    )
 
 
-def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header, np.ndarray]:
-    """Check the whole file and return its header and frequencies in Hz."""
-    header = _Header()
-    suffix_ports = _ports_from_suffix(name)
-    # 1.x two-port files may end with noise data (a frequency at or below the last one).
-    noise_possible = suffix_ports == 2
-    rows: list[tuple[int, str]] = []
-    in_information = False
-    awaiting_reference = False
-    first_content = True
-    for number, line in enumerate(text.splitlines(), start=1):
-        content = line.split("!", 1)[0].strip()
-        if not content:
-            continue
-        lowered = content.lower()
-        if in_information:
-            in_information = not lowered.startswith("[end information]")
-            continue
-        if content.startswith("["):
-            keyword, _, rest = content.partition("]")
-            keyword = keyword[1:].strip().lower()
-            rest = rest.strip()
-            if (first_content and keyword != "version") or (
-                not first_content and header.version == "1.x"
-            ):
-                raise FileFormatError(
-                    name,
-                    f"[{keyword.title()}] in a file that does not start with [Version]; a 2.x"
-                    " file starts with [Version], a 1.x file has no keywords",
-                    number,
-                )
-            if keyword in ("noise data", "end"):
+def _end_of_data(raw: bytes, start: int) -> int:
+    """Where the data block ends: the start of the first line after ``start`` that begins
+    (after blanks) with ``#`` or ``[``, or the end of the file."""
+    end = len(raw)
+    for mark in (b"#", b"["):
+        position = raw.find(mark, start, end)
+        while position >= 0:
+            begin = raw.rfind(b"\n", start, position) + 1 or start
+            if not raw[begin:position].strip(b" \t"):
+                end = begin
                 break
-            noise_possible = False
-            awaiting_reference = _keyword(name, number, keyword, rest, header)
-            in_information = keyword == "begin information"
-            first_content = False
-            continue
-        first_content = False
-        if content.startswith("#"):
-            if header.option_line is None:
-                _option_line(name, number, content, header)
-            continue
-        if awaiting_reference:
-            values = _numbers(name, number, content)
-            header.references += [_positive_reference(name, number, v) for v in values]
-            awaiting_reference = len(header.references) < (header.ports or 1)
-            continue
-        if noise_possible and _starts_noise_data(name, number, content, rows):
-            break
-        rows.append((number, content))
+            position = raw.find(mark, position + 1, end)
+    return end
 
+
+# --- the data ------------------------------------------------------------------------------------
+
+
+def _port_count(
+    name: str, header: Header, suffix_ports: int | None, required_ports: int | None
+) -> int:
     ports = header.ports if header.version != "1.x" else suffix_ports
     if ports is None:
         raise FileFormatError(
@@ -301,51 +325,25 @@ def _validate(name: str, text: str, required_ports: int | None) -> tuple[_Header
             f"holds {header.parameter.upper()} parameters; oneport reads S, Z or Y data",
             header.option_line,
         )
-    if not rows:
-        raise FileFormatError(name, "has no data lines; expected lines of: frequency, values")
-    _complete_references(name, header, ports)
-    lines, table = _records(name, header, rows, ports)
-    with np.errstate(over="ignore"):
-        frequency_hz = table[:, 0] * _FREQUENCY_UNITS[header.unit]
-    if not np.all(np.isfinite(frequency_hz)):
-        index = int(np.flatnonzero(~np.isfinite(frequency_hz))[0])
-        raise FileFormatError(
-            name, f"frequency {table[index, 0]!r} {header.unit} overflows", int(lines[index])
-        )
-    _check_frequencies(name, lines, table[:, 0], frequency_hz)
-    if header.declared_frequencies is not None and header.declared_frequencies != len(lines):
+    if "mixed-mode order" in header.keywords:
         raise FileFormatError(
             name,
-            f"[Number of Frequencies] says {header.declared_frequencies} but the file holds"
-            f" {len(lines)} frequency points",
-            header.frequencies_line,
+            "[Mixed-Mode Order]: mixed-mode files are not read; give the single-ended data"
+            " (for a balanced device, --differential-ports forms the differential one-port)",
+            header.keywords["mixed-mode order"],
         )
-    if header.number_format == "db":
-        loud = np.flatnonzero(np.abs(table[:, 1::2]).max(axis=1) > _LARGEST_DECIBELS)
-        if loud.size:
-            raise FileFormatError(
-                name,
-                f"a level beyond {_LARGEST_DECIBELS:g} dB is not a measurement; DB data hold"
-                " 20*log10|value| and an angle in degrees",
-                int(lines[loud[0]]),
-            )
-    return header, frequency_hz
+    if header.version != "1.x" and ports == 2 and header.two_port_order is None:
+        # Touchstone 2.0, [Two-Port Data Order]: required when [Number of Ports] is 2.
+        raise FileFormatError(
+            name,
+            "a 2.x two-port file needs [Two-Port Data Order] 12_21 or 21_12 (the Touchstone"
+            " specification requires it); without it the order of S12 and S21 is a guess",
+            header.ports_line,
+        )
+    return ports
 
 
-def _starts_noise_data(name: str, number: int, content: str, rows: list[tuple[int, str]]) -> bool:
-    """In a 1.x two-port file, noise data follow with a frequency at or below the last one."""
-    values = _numbers(name, number, content)
-    if not rows or len(values) != 5:
-        return False
-    # The last network-data record starts on the last line with 9 values (or earlier ones).
-    for _, previous in reversed(rows):
-        previous_values = previous.split()
-        if len(previous_values) == 9:
-            return values[0] <= float(previous_values[0])
-    return False
-
-
-def _complete_references(name: str, header: _Header, ports: int) -> None:
+def _complete_references(name: str, header: Header, ports: int) -> None:
     if not header.references:
         header.references = [header.reference] * ports
     elif len(header.references) != ports:
@@ -353,17 +351,16 @@ def _complete_references(name: str, header: _Header, ports: int) -> None:
             name,
             f"[Reference] gives {len(header.references)} impedance(s) for {ports} port(s);"
             " give one per port",
+            header.keywords.get("reference"),
         )
     header.reference = header.references[0]
 
 
-def _records(
-    name: str, header: _Header, rows: list[tuple[int, str]], ports: int
+def _points(
+    name: str, header: Header, block: NumberBlock, ports: int
 ) -> tuple[np.ndarray, np.ndarray]:
-    """Parse the data lines: the line of each frequency point and its values, shape (n, size)."""
-    counts = np.fromiter((len(content.split()) for _, content in rows), dtype=int, count=len(rows))
-    numbers = np.fromiter((number for number, _ in rows), dtype=int, count=len(rows))
-    flat = _parse_numbers(name, rows)
+    """The line of each frequency point and its values, shape (n, 1 + 2·entries)."""
+    values, lines, counts = block.values, block.lines, block.counts
     if ports == 1:
         wrong = np.flatnonzero(counts != 3)
         if wrong.size:
@@ -371,152 +368,62 @@ def _records(
                 name,
                 "a one-port data line holds 3 values (frequency and two parts of the"
                 f" parameter), this one has {counts[wrong[0]]}",
-                int(numbers[wrong[0]]),
+                int(lines[wrong[0]]),
             )
-        return numbers, flat.reshape(-1, 3)
+        return lines, values.reshape(-1, 3)
+    if header.version == "1.x" and ports == 2:
+        values, lines, counts = _without_noise_data(values, lines, counts)
     entries = ports * ports if header.matrix_format == "full" else ports * (ports + 1) // 2
     size = 1 + 2 * entries
     ends = np.cumsum(counts)
-    if flat.size % size:
-        start = (flat.size // size) * size
+    if values.size % size:
+        start = (values.size // size) * size
         raise FileFormatError(
             name,
-            f"the last frequency point has {flat.size - start} values; each point of a"
+            f"the last frequency point has {values.size - start} values; each point of a"
             f" {ports}-port file holds {size} (frequency and {entries} complex values)",
-            int(numbers[np.searchsorted(ends, start, side="right")]),
+            int(lines[np.searchsorted(ends, start, side="right")]),
         )
-    starts = np.arange(0, flat.size, size)
-    return numbers[np.searchsorted(ends, starts, side="right")], flat.reshape(-1, size)
+    starts = np.arange(0, values.size, size)
+    return lines[np.searchsorted(ends, starts, side="right")], values.reshape(-1, size)
 
 
-def _parse_numbers(name: str, rows: list[tuple[int, str]]) -> np.ndarray:
-    """All numbers of the data lines, in order; errors name the line and token.
-
-    The fast path converts the whole block at once; when the block holds a character no plain
-    number has, or a token numpy cannot read, or a value beyond float range, the lines are read
-    one by one to say exactly where.
-    """
-    block = " ".join(content for _, content in rows)
-    if not block.translate(_NUMBER_CHARACTERS):
-        try:
-            with np.errstate(over="ignore"):
-                flat = np.array(block.split(), dtype=float)
-            if np.all(np.isfinite(flat)):
-                return flat
-        except ValueError:
-            pass
-    for number, content in rows:
-        _numbers(name, number, content)
-    raise FileFormatError(name, "holds data that are not plain numbers")  # not reached
+def _without_noise_data(
+    values: np.ndarray, lines: np.ndarray, counts: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """A 1.x two-port's network data alone: noise data follow on lines of 5 values whose
+    frequency is at or below the last network point's (Touchstone specification, noise data)."""
+    firsts = values[np.cumsum(counts) - counts]
+    index = np.arange(counts.size)
+    last_network = np.maximum.accumulate(np.where(counts == 9, index, -1))
+    noise = (counts == 5) & (last_network >= 0)
+    noise &= firsts <= firsts[np.maximum(last_network, 0)]
+    if not noise.any():
+        return values, lines, counts
+    cut = int(np.argmax(noise))
+    offset = int(np.sum(counts[:cut]))
+    return values[:offset], lines[:cut], counts[:cut]
 
 
-def _keyword(name: str, number: int, keyword: str, rest: str, header: _Header) -> bool:
-    """Apply a 2.x keyword; return True when its value is still to come on a later line."""
-    if keyword == "version":
-        if rest not in ("2.0", "2.1"):
-            raise FileFormatError(
-                name, f"[Version] {rest!r} is not supported; accepted: 2.0, 2.1", number
-            )
-        header.version = rest
-    elif keyword == "number of ports":
-        header.ports = _whole_number(name, number, keyword, rest)
-        header.ports_line = number
-    elif keyword == "number of frequencies":
-        header.declared_frequencies = _whole_number(name, number, keyword, rest)
-        header.frequencies_line = number
-    elif keyword == "reference":
-        values = _numbers(name, number, rest) if rest else []
-        header.references = [_positive_reference(name, number, v) for v in values]
-        return len(header.references) < (header.ports or 1)
-    elif keyword == "matrix format":
-        if rest.lower() not in ("full", "lower", "upper"):
-            raise FileFormatError(
-                name, f"[Matrix Format] {rest!r}; accepted: Full, Lower, Upper", number
-            )
-        header.matrix_format = rest.lower()
-    return False
-
-
-def _option_line(name: str, number: int, content: str, header: _Header) -> None:
-    header.option_line = number
-    tokens = content[1:].split()
-    index = 0
-    while index < len(tokens):
-        token = tokens[index].lower()
-        if token in _FREQUENCY_UNITS:
-            header.unit = token
-        elif token in ("s", "y", "z", "g", "h"):
-            header.parameter = token
-        elif token in _FORMATS:
-            header.number_format = token
-        elif token == "r":
-            if index + 1 >= len(tokens):
-                raise FileFormatError(name, "option line has R without a value", number)
-            index += 1
-            try:
-                value = float(tokens[index])
-            except ValueError:
-                raise FileFormatError(
-                    name, f"option line R {tokens[index]!r} is not a number", number
-                ) from None
-            header.reference = _positive_reference(name, number, value)
-        else:
-            raise FileFormatError(
-                name,
-                f"option line token {tokens[index]!r} is not understood; accepted: a frequency"
-                " unit (Hz kHz MHz GHz), a parameter (S Z Y), a format (RI MA DB), R <ohms>",
-                number,
-            )
-        index += 1
-
-
-def _numbers(name: str, number: int, content: str) -> list[float]:
-    values = []
-    for token in content.split():
-        if not _ASCII_NUMBER.match(token):
-            if token.lower().lstrip("+-") in ("nan", "inf", "infinity"):
-                raise FileFormatError(
-                    name,
-                    f"value {token!r} is not finite; NaN and infinity are not accepted",
-                    number,
-                )
-            raise FileFormatError(
-                name,
-                f"{token!r} is not a number; data lines hold plain numbers (e.g. 1.5, -2e-3)",
-                number,
-            )
-        value = float(token)
-        if not math.isfinite(value):
-            raise FileFormatError(
-                name, f"value {token!r} is not finite; NaN and infinity are not accepted", number
-            )
-        values.append(value)
-    return values
-
-
-def _whole_number(name: str, number: int, keyword: str, rest: str) -> int:
-    try:
-        value = int(rest)
-    except ValueError:
-        value = -1
-    if value < 1:
+def _frequencies(name: str, header: Header, lines: np.ndarray, table: np.ndarray) -> np.ndarray:
+    with np.errstate(over="ignore"):
+        frequency_hz = table[:, 0] * FREQUENCY_UNITS[header.unit]
+    if not np.all(np.isfinite(frequency_hz)):
+        index = int(np.flatnonzero(~np.isfinite(frequency_hz))[0])
         raise FileFormatError(
-            name, f"[{keyword.title()}] {rest!r} is not a positive whole number", number
+            name, f"frequency {table[index, 0]!r} {header.unit} overflows", int(lines[index])
         )
-    return value
-
-
-def _positive_reference(name: str, number: int, value: float) -> float:
-    if not (math.isfinite(value) and value > 0):
-        raise FileFormatError(
-            name, f"reference impedance {value!r} ohm; a positive number of ohms is needed", number
+    _check_frequencies(name, lines, table[:, 0], frequency_hz)
+    declared = header.declared_frequencies
+    if declared is not None and declared != len(lines):
+        problem = (
+            f"[Number of Frequencies] says {declared} but the file holds {len(lines)}"
+            " frequency points"
         )
-    return value
-
-
-def _ports_from_suffix(name: str) -> int | None:
-    match = _PORTS_FROM_SUFFIX.match(Path(name).suffix)
-    return int(match.group(1)) if match else None
+        if declared > len(lines) and not header.ended:
+            raise IncompleteFileError(name, problem, header.frequencies_line)
+        raise FileFormatError(name, problem, header.frequencies_line)
+    return frequency_hz
 
 
 def _check_frequencies(
@@ -540,97 +447,209 @@ def _check_frequencies(
         )
 
 
-def _convert_with_scikit_rf(
-    name: str, text: str, header: _Header, frequency_hz: np.ndarray
+def _check_levels(name: str, header: Header, lines: np.ndarray, table: np.ndarray) -> None:
+    """MA magnitudes are >= 0; DB levels are measurements (Touchstone specification, formats)."""
+    first = table[:, 1::2]
+    if header.number_format == "ma":
+        negative = np.flatnonzero((first < 0).any(axis=1))
+        if negative.size:
+            index = int(negative[0])
+            value = float(first[index][first[index] < 0][0])
+            unstated = (
+                " (the file has no option line, so the specification's default MA applies)"
+                if header.option_line is None
+                else ""
+            )
+            raise FileFormatError(
+                name,
+                f"magnitude {value:g} is negative{unstated}; MA data hold a magnitude >= 0 and"
+                " an angle in degrees; if the columns are real and imaginary parts, the option"
+                " line must say RI (e.g. # GHz S RI R 50)",
+                int(lines[index]),
+            )
+    elif header.number_format == "db":
+        loud = np.flatnonzero(np.abs(first).max(axis=1) > _LARGEST_DECIBELS)
+        if loud.size:
+            raise FileFormatError(
+                name,
+                f"a level beyond {_LARGEST_DECIBELS:g} dB is not a measurement; DB data hold"
+                " 20*log10|value| and an angle in degrees",
+                int(lines[loud[0]]),
+            )
+
+
+# --- conversion to S ------------------------------------------------------------------------------
+
+
+def _scattering(
+    name: str, header: Header, table: np.ndarray, ports: int, frequency_hz: np.ndarray
 ) -> np.ndarray:
-    """Convert the checked text to S, shape (p, p, n), with scikit-rf's text reader.
+    """S, shape (p, p, n), from the pairs as written (RI, MA, DB) and the parameter (S, Z, Y).
 
-    The text goes in as a string buffer: scikit-rf's pickle path is never reached.
+    Touchstone specification: RI is real and imaginary parts; MA magnitude and angle in
+    degrees; DB 20·log10|x| and angle. 1.x Z and Y data are normalised (z = Z/R, y = Y·R),
+    2.x data are in ohms and siemens, each port referred to its own ``[Reference]``. With the
+    normalised matrices z̃ = Z/√(RᵢRⱼ) and ỹ = Y·√(RᵢRⱼ) (real references):
+    S = (z̃ + I)⁻¹(z̃ − I) = (I + ỹ)⁻¹(I − ỹ) (common practice).
     """
-    from skrf.io.touchstone import Touchstone
-
-    if "[begin information]" in text.lower():
-        text = _without_information_block(text)
-    buffer = io.StringIO(_canonical_option_line(text, header))
-    # scikit-rf takes the port count of a 1.x file from the name of the file object.
-    buffer.name = f"data.s{len(header.references)}p" if header.version == "1.x" else "data.ts"
-    try:
-        parsed = Touchstone(buffer)
-        skrf_frequency, s = parsed.get_sparameter_arrays()
-    except Exception as error:  # the text passed our checks; say what scikit-rf refused
-        raise FileFormatError(name, f"scikit-rf's Touchstone reader refused it: {error}") from None
-    s = np.asarray(s, dtype=complex)
-    if header.version == "1.x" and header.parameter == "y":
-        s = _normalised_admittance_to_s(parsed)
-    s = np.moveaxis(s, 0, -1)
-    if s.shape[-1] != frequency_hz.size or not np.allclose(skrf_frequency, frequency_hz):
-        raise FileFormatError(name, "scikit-rf read a different frequency list than the file has")
+    values = _complex_pairs(header.number_format, table)
+    normalised = header.version == "1.x"
+    if ports == 1:
+        reference = header.reference
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            if header.parameter == "z":
+                z = values[:, 0] if normalised else values[:, 0] / reference
+                gamma = (z - 1.0) / (z + 1.0)
+            elif header.parameter == "y":
+                y = values[:, 0] if normalised else values[:, 0] * reference
+                gamma = (1.0 - y) / (1.0 + y)
+            else:
+                gamma = values[:, 0]
+        _check_arrays(name, frequency_hz, gamma)
+        return gamma[np.newaxis, np.newaxis, :]
+    matrix = _matrix(header, values, ports)
+    if header.parameter != "s":
+        matrix = _from_impedance_or_admittance(name, header, matrix, frequency_hz)
+    s = np.moveaxis(matrix, 0, -1)
     _check_arrays(name, frequency_hz, s)
     return s
 
 
-def _normalised_admittance_to_s(parsed: Any) -> np.ndarray:
-    """S (shape (n, p, p)) of 1.x Y data, from the file's normalised admittances y = Y·R.
+def _complex_pairs(number_format: str, table: np.ndarray) -> np.ndarray:
+    """The complex values of each point, shape (n, entries), from the columns after frequency."""
+    first, second = table[:, 1::2], table[:, 2::2]
+    values = np.empty(first.shape, dtype=complex)
+    if number_format == "ri":
+        values.real, values.imag = first, second
+        return values
+    magnitude = first if number_format == "ma" else 10.0 ** (first / 20.0)
+    angle = second * (np.pi / 180.0)
+    part = np.cos(angle)
+    part *= magnitude
+    values.real = part
+    np.sin(angle, out=part)
+    part *= magnitude
+    values.imag = part
+    return values
 
-    scikit-rf (2.2) scales every 1.x Z, Y, G or H file by R — right for Z, wrong for Y — so the
-    conversion is done here: with one real R for all ports, S = (I + y)⁻¹ (I − y).
+
+def _matrix(header: Header, values: np.ndarray, ports: int) -> np.ndarray:
+    """The (n, p, p) matrices, from full rows or one triangle (Touchstone 2.x [Matrix Format])."""
+    n = values.shape[0]
+    if header.matrix_format == "full":
+        matrix = values.reshape(n, ports, ports)
+        # Two-ports are written N11 N21 N12 N22 in 1.x and with [Two-Port Data Order] 21_12.
+        if ports == 2 and (header.version == "1.x" or header.two_port_order == "21_12"):
+            matrix = matrix.transpose(0, 2, 1)
+        return np.ascontiguousarray(matrix)
+    lower = header.matrix_format == "lower"
+    rows, columns = np.tril_indices(ports) if lower else np.triu_indices(ports)
+    matrix = np.zeros((n, ports, ports), dtype=complex)
+    matrix[:, rows, columns] = values
+    matrix[:, columns, rows] = values
+    return matrix
+
+
+def _from_impedance_or_admittance(
+    name: str, header: Header, matrix: np.ndarray, frequency_hz: np.ndarray
+) -> np.ndarray:
+    identity = np.eye(matrix.shape[-1])
+    if header.version != "1.x":
+        root = np.sqrt(np.asarray(header.references, dtype=float))
+        scale = np.outer(root, root)
+        matrix = matrix / scale if header.parameter == "z" else matrix * scale
+    if header.parameter == "z":
+        left, right = matrix + identity, matrix - identity
+    else:
+        left, right = identity + matrix, identity - matrix
+    try:
+        return np.asarray(np.linalg.solve(left, right))
+    except np.linalg.LinAlgError:
+        singular = np.flatnonzero(np.linalg.det(left) == 0)
+        at = frequency_hz[singular[0]] if singular.size else frequency_hz[0]
+        raise FileFormatError(
+            name,
+            f"the {header.parameter.upper()} matrix at {at:.6g} Hz cannot be converted to S"
+            " (Z + R or Y + 1/R is singular there)",
+        ) from None
+
+
+# --- warnings ------------------------------------------------------------------------------------
+
+
+def _warnings(
+    name: str, header: Header, comments: list[tuple[int, str]], ports: int
+) -> tuple[Finding, ...]:
+    found = []
+    if header.option_line is None:
+        found.append(
+            Finding(
+                NO_OPTION_LINE,
+                f"{printable(name)} has no option line, so it was read with the Touchstone"
+                " specification's defaults: GHz, S parameters, magnitude and angle (MA),"
+                " R 50 ohm. If the file holds anything else, add its option line"
+                " (e.g. # GHz S RI R 50).",
+                {"path": name},
+            )
+        )
+    impedance = _port_impedance_finding(name, header, comments, ports)
+    if impedance is not None:
+        found.append(impedance)
+    return tuple(found)
+
+
+def _port_impedance_finding(
+    name: str, header: Header, comments: list[tuple[int, str]], ports: int
+) -> Finding | None:
+    """``! Port Impedance`` comments that disagree with the reference the data were read in.
+
+    Comments carry no data (Touchstone specification, comments), so the data stay referred to
+    the option line's R or [Reference]; scikit-rf's reader would instead refer them to the
+    commented impedances. Commented impedances equal to the references used need no warning.
     """
-    y = np.asarray(parsed.s_flat, dtype=complex)
-    ports = round(float(np.sqrt(y.shape[1])))
-    y = y.reshape(-1, ports, ports)
-    if ports == 2:
-        y = np.transpose(y, (0, 2, 1))  # 1.x two-ports list N11 N21 N12 N22
-    identity = np.eye(ports)
-    return np.linalg.solve(identity + y, identity - y)
-
-
-def _canonical_option_line(text: str, header: _Header) -> str:
-    """The text with its first option line written in the usual order, the others dropped.
-
-    The specification lets the option line's entries come in any order; scikit-rf's reader
-    expects the usual one. Entries were validated and stored in ``header`` already. Large
-    files usually need no change, and then the text is passed on as it is.
-    """
-    option = (
-        f"# {header.unit.upper()} {header.parameter.upper()} {header.number_format.upper()}"
-        f" R {header.reference!r}"
+    marked = [(line, text) for line, text in comments if text.lower().startswith("port impedance")]
+    if not marked:
+        return None
+    references = np.asarray(header.references, dtype=float)
+    parts: list[complex] = []
+    readable = True
+    for _, text in marked:
+        numbers = re.findall(r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?", text[14:])
+        try:
+            floats = [float(number) for number in numbers]
+        except ValueError:
+            floats = []
+        if not floats or len(floats) % 2:
+            readable = False
+            break
+        parts += [complex(re_, im) for re_, im in zip(floats[0::2], floats[1::2], strict=True)]
+    if readable and parts and len(parts) % ports == 0:
+        commented = np.asarray(parts).reshape(-1, ports)
+        if np.allclose(commented, references, rtol=1e-9, atol=0):
+            return None
+    used = ", ".join(f"{value:g}" for value in references)
+    where = f"lines {marked[0][0]}-{marked[-1][0]}" if len(marked) > 1 else f"line {marked[0][0]}"
+    described = ""
+    if readable and parts:
+        magnitudes = np.abs(np.asarray(parts))
+        described = f" (|Z| {magnitudes.min():.4g} to {magnitudes.max():.4g} ohm)"
+    return Finding(
+        PORT_IMPEDANCE_COMMENTS,
+        f"{printable(name)} gives per-frequency port impedances in '! Port Impedance' comments"
+        f" ({where}){described}. Comments carry no data in the Touchstone specification, so"
+        f" they were not used: the data were read referred to {used} ohm as the file's option"
+        " line or [Reference] says, and every figure is referred to that. If the data are"
+        " referred to the commented impedances instead, renormalise the file to one real"
+        " impedance first.",
+        {
+            "path": name,
+            "lines": len(marked),
+            "reference_impedance_ohm": [float(value) for value in references],
+        },
     )
-    spans = [match.span() for match in _OPTION_LINE.finditer(text)]
-    if not spans:
-        return text
-    first_start, first_end = spans[0]
-    if len(spans) == 1 and _same_options(text[first_start:first_end], option):
-        return text
-    pieces = [text[:first_start], option]
-    position = first_end
-    for start, end in spans[1:]:
-        pieces.append(text[position:start])
-        position = end
-    pieces.append(text[position:])
-    return "".join(pieces)
 
 
-def _same_options(line: str, option: str) -> bool:
-    """Whether an option line already reads as ``option`` (case and spacing aside)."""
-    return line.split("!", 1)[0].lower().split() == option.lower().split()
-
-
-def _without_information_block(text: str) -> str:
-    """The text less any 2.1 ``[Begin Information]`` … ``[End Information]`` block.
-
-    scikit-rf's reader does not know the block; it carries nothing the conversion needs.
-    """
-    kept = []
-    inside = False
-    for line in text.splitlines():
-        keyword = line.split("!", 1)[0].strip().lower()
-        if keyword.startswith("[begin information]"):
-            inside = True
-        elif inside and keyword.startswith("[end information]"):
-            inside = False
-        elif not inside:
-            kept.append(line)
-    return "\n".join(kept) + "\n"
+# --- arrays given from Python ---------------------------------------------------------------------
 
 
 def _constant_real_reference(description: str, z0: np.ndarray) -> float:

@@ -12,6 +12,7 @@ from collections.abc import Sequence
 
 from ..analysis.result import CheckResult
 from ..analysis.small_gain import BoundResult
+from ..errors import printable
 from ..findings import Finding
 from ..units import format_frequency, to_decibels
 
@@ -50,7 +51,7 @@ def render(result: CheckResult) -> str:
             if record.file_reference_impedance_ohm != record.analysed_reference_impedance_ohm
             else ""
         )
-        parts.append(f"  {record.role:<7} {record.source}")
+        parts.append(f"  {record.role:<7} {printable(record.source)}")
         if record.preparation:
             parts.append(f"          {'; '.join(record.preparation)}")
         if record.version == "netlist":
@@ -159,7 +160,7 @@ def _diagnostics(result: CheckResult) -> list[str]:
         rows.append(
             f"  finest loaded Q the grid resolves: {grid.finest_resolvable_q:.2g}"
             f" (step {format_frequency(grid.largest_step_hz)} near"
-            f" {format_frequency(grid.at_frequency_hz)})  {grid.source}"
+            f" {format_frequency(grid.at_frequency_hz)})  {printable(grid.source)}"
         )
     rows.append(f"  scatter of L between neighbouring points: {result.noise_estimate:.2g}")
     uncertainty = result.uncertainty

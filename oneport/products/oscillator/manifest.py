@@ -22,6 +22,7 @@ import hashlib
 import io
 import math
 import tomllib
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -29,6 +30,7 @@ from typing import Any
 import numpy as np
 
 from ...errors import FileFormatError, InputError
+from ...reading.files import decode_text, read_user_bytes
 from ...reading.touchstone import OnePort, read_one_port
 from ...units import parse_quantity
 from .describing import CurrentFunction, TunnelDiodeModel, polynomial_current, table_current
@@ -177,13 +179,8 @@ def read_device_description(path: str | Path) -> DeviceDescription:
         One line naming the manifest, the key, the bad value and what is accepted.
     """
     manifest = Path(path)
-    raw = _read_bytes(manifest)
-    try:
-        data = tomllib.loads(raw.decode("utf-8"))
-    except UnicodeDecodeError:
-        raise FileFormatError(str(manifest), "is not UTF-8 text; a TOML manifest is") from None
-    except tomllib.TOMLDecodeError as error:
-        raise FileFormatError(str(manifest), f"is not valid TOML ({error})") from None
+    raw = read_user_bytes(manifest, "a TOML manifest")
+    data = _parse_toml(str(manifest), decode_text(str(manifest), raw, "a TOML manifest"))
     where = _Where(manifest)
     kind = data.get("kind")
     if kind not in KINDS:
@@ -201,15 +198,37 @@ def read_device_description(path: str | Path) -> DeviceDescription:
     return _iv_device(data, manifest, where, common)
 
 
-def _read_bytes(path: Path) -> bytes:
+def _parse_toml(name: str, text: str) -> dict[str, Any]:
+    """The manifest's tables, or one line: invalid TOML, nested too deep, integers too large.
+
+    TOML 1.0.0 (Integer): integers beyond 64 bits "must" be an error; ``tomllib`` keeps them,
+    and one of 400 digits overflows every later conversion, so they are refused here.
+    """
     try:
-        return path.read_bytes()
-    except FileNotFoundError:
-        raise FileFormatError(str(path), "no such file") from None
-    except IsADirectoryError:
-        raise FileFormatError(str(path), "is a folder, not a TOML manifest") from None
-    except OSError as error:
-        raise FileFormatError(str(path), f"cannot be read ({error.strerror})") from None
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as error:
+        raise FileFormatError(name, f"is not valid TOML ({error})") from None
+    except RecursionError:
+        raise FileFormatError(
+            name,
+            "is nested too deeply to read (arrays or tables inside one another, hundreds of"
+            " levels); a manifest needs a few levels",
+        ) from None
+    stack: list[tuple[str, Any]] = [("", data)]
+    while stack:
+        key, value = stack.pop()
+        if isinstance(value, dict):
+            stack += [(f"{key}.{k}" if key else k, v) for k, v in value.items()]
+        elif isinstance(value, list):
+            stack += [(f"{key}[{i}]", v) for i, v in enumerate(value)]
+        elif isinstance(value, int) and not -(2**63) <= value < 2**63:
+            digits = len(str(abs(value))) if abs(value) < 10**4000 else "thousands of"
+            raise FileFormatError(
+                name,
+                f"{key}: an integer of {digits} digits; TOML integers fit in 64 bits (give"
+                " physical values as numbers such as 1.5e-3)",
+            )
+    return data
 
 
 def _drive_levels(
@@ -281,7 +300,7 @@ def _level_values(entries: list[dict[str, Any]], where: _Where) -> tuple[str, li
 
 def _read_level(manifest: Path, file_name: str, key: str, where: _Where) -> OnePort:
     path = _resolve(manifest, file_name)
-    if not path.is_file():
+    if not path.exists():
         raise where.error(key, f"no such file {file_name!r} (looked for {path})")
     try:
         return read_one_port(path)
@@ -495,15 +514,12 @@ def read_iv_table(path: Path, label: str) -> tuple[np.ndarray, np.ndarray, str]:
     sha256 : str
     """
     try:
-        raw = path.read_bytes()
-    except OSError:
-        raise InputError(f"{label}: cannot read {str(path)!r} (no such file?)") from None
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        raise FileFormatError(str(path), "is not UTF-8 text; a CSV table is") from None
+        raw = read_user_bytes(path, "a CSV table of voltage and current")
+        text = decode_text(str(path), raw, "a CSV table of voltage and current")
+    except FileFormatError as error:
+        raise InputError(f"{label}: {error}") from None
     rows: list[tuple[float, float]] = []
-    for number, row in enumerate(csv.reader(io.StringIO(text)), start=1):
+    for number, row in _csv_rows(path, text):
         if not row or not "".join(row).strip() or row[0].lstrip().startswith("#"):
             continue
         if len(row) != 2:
@@ -533,6 +549,22 @@ def read_iv_table(path: Path, label: str) -> tuple[np.ndarray, np.ndarray, str]:
         )
     table = np.array(rows)
     return table[:, 0], table[:, 1], hashlib.sha256(raw).hexdigest()
+
+
+def _csv_rows(path: Path, text: str) -> Iterator[tuple[int, list[str]]]:
+    """The CSV rows with their line numbers; ``csv``'s own refusals (a field longer than its
+    limit of 131,072 characters, a NUL) become one line naming the line."""
+    reader = csv.reader(io.StringIO(text))
+    while True:
+        try:
+            row = next(reader)
+        except StopIteration:
+            return
+        except csv.Error as error:
+            raise FileFormatError(
+                str(path), f"is not a readable CSV table ({error})", reader.line_num
+            ) from None
+        yield reader.line_num, row
 
 
 def _first_content_line(text: str) -> int:
