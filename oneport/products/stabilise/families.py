@@ -88,9 +88,7 @@ def family(name: str) -> Family:
     return FAMILIES[name]
 
 
-def immittance(
-    selected: Family, frequency_hz: np.ndarray, values: dict[str, Any]
-) -> np.ndarray:
+def immittance(selected: Family, frequency_hz: np.ndarray, values: dict[str, Any]) -> np.ndarray:
     """The added impedance Z_s (Ω, series families) or admittance Y_s (S, shunt families).
 
     ``values`` maps element keys to arrays of candidates, shape (V,); the result has shape

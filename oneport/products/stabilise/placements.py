@@ -153,12 +153,11 @@ class Placement:
         return PreparedPort(changed, steps)
 
     def describe(self, values: dict[str, float]) -> str:
-        """``series-resistor 12 ohm``, ``shunt-rc 47 ohm, 1e-10 F`` (SI values)."""
-        parts = [f"{values[key]:.4g} {_UNITS[key]}" for key in self.elements]
+        """``series-resistor 12 ohm``, ``shunt-rc 47 ohm, 100 pF``."""
+        from .wording import format_element
+
+        parts = [format_element(key, values[key]) for key in self.elements]
         return f"{self.topology} {', '.join(parts)}"
-
-
-_UNITS = {RESISTANCE: "ohm", CAPACITANCE: "F", INDUCTANCE: "H"}
 
 
 def port_placements(pair: PreparedPair, names: tuple[str, ...]) -> list[Placement]:
@@ -223,8 +222,6 @@ def _unknown(name: str, source: str, what: str, known: set[str]) -> str:
 
 def port_circuit(placement: Placement) -> Any:
     """The load netlist with the port network added; its values are parameters STAB_R, …"""
-    from ...circuit import Circuit
-
     original = placement.pair.load_circuit
     (port,) = original.ports
     names = _parameter_names(original)

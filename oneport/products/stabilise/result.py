@@ -217,9 +217,7 @@ class Suggestion:
             "goal_met_after": self.goal_met_after,
             "verdict_after": self.verdict_after,
             "encirclements_after": self.encirclements_after,
-            "oscillation_frequencies_after_hz": list(
-                self.check_after.oscillation_frequencies_hz
-            ),
+            "oscillation_frequencies_after_hz": list(self.check_after.oscillation_frequencies_hz),
             "margins_after": self.margins_after.to_dict(),
             "cost": None if self.cost is None else self.cost.to_dict(),
             "tolerance": None if self.tolerance is None else self.tolerance.to_dict(),
@@ -238,7 +236,11 @@ class Unsolved:
 
     def to_dict(self) -> dict[str, Any]:
         """JSON form."""
-        return {"topology": self.topology, "position": self.position.to_dict(), "reason": self.reason}
+        return {
+            "topology": self.topology,
+            "position": self.position.to_dict(),
+            "reason": self.reason,
+        }
 
 
 @dataclass(frozen=True)

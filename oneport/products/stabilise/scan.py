@@ -343,7 +343,7 @@ def preferred_values(low: float, high: float, series: tuple[float, ...]) -> np.n
     if not (low > 0 and high >= low):
         return np.zeros(0)
     decades = np.arange(math.floor(math.log10(low)) - 1, math.ceil(math.log10(high)) + 1)
-    values = (np.asarray(series)[None, :] * (10.0 ** decades)[:, None]).ravel()
+    values = (np.asarray(series)[None, :] * (10.0**decades)[:, None]).ravel()
     return np.asarray(values[(values >= low * (1 - 1e-12)) & (values <= high * (1 + 1e-12))])
 
 

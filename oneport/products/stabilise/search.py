@@ -17,12 +17,13 @@ from typing import Any
 
 import numpy as np
 
+from ...units import format_frequency
 from . import families, scan, verify
 from .families import RESISTANCE
-from .goal import Requirement
 from .placements import Placement
 from .result import BiasFigures, Suggestion, ToleranceRun, Unsolved
 from .scan import E12, E24, Evaluation, Line, Range, Scanner
+from .wording import format_value
 
 #: Candidates on a single-resistor line (the scan of the issue: 1,000 per family).
 LINE_POINTS = 1000
@@ -77,10 +78,9 @@ def _search_single(scanner: Scanner, placement: Placement, options: SearchOption
     preferred = _preferred_in(line, E24)
     evaluation = scanner.evaluate(placement, {RESISTANCE: preferred})
     judged += preferred.size
-    candidates = _ordered(evaluation, line.ranges, options.element_tolerance, RESISTANCE)
+    candidates = _ordered(evaluation, line, options.element_tolerance, RESISTANCE)
     if not candidates:
-        inner = _inner(line)
-        candidates = _ordered(inner, line.ranges, options.element_tolerance, RESISTANCE)
+        candidates = _ordered(_inner(line), line, options.element_tolerance, RESISTANCE)
     values, verified = _verify_first(scanner, placement, candidates, options)
     chosen = values[RESISTANCE]
     stable = {RESISTANCE: _holding(line.ranges, chosen)}
@@ -122,13 +122,9 @@ def _search_corner(scanner: Scanner, placement: Placement, options: SearchOption
     values_at = {RESISTANCE: preferred, second: np.full(preferred.size, held)}
     candidates_evaluation = scanner.evaluate(placement, values_at)
     judged += preferred.size
-    candidates = _ordered(
-        candidates_evaluation, r_line.ranges, options.element_tolerance, RESISTANCE
-    )
+    candidates = _ordered(candidates_evaluation, r_line, options.element_tolerance, RESISTANCE)
     if not candidates:
-        candidates = _ordered(
-            _inner(r_line), r_line.ranges, options.element_tolerance, RESISTANCE
-        )
+        candidates = _ordered(_inner(r_line), r_line, options.element_tolerance, RESISTANCE)
     values, verified = _verify_first(scanner, placement, candidates, options)
     chosen = values[RESISTANCE]
     x_grid = np.geomspace(held / 1e3, held * 1e3, CORNER_LINE_POINTS)
@@ -170,17 +166,22 @@ def _inner(line: Line) -> Evaluation:
 
 
 def _ordered(
-    evaluation: Evaluation, ranges: tuple[Range, ...], tolerance: float | None, key: str
+    evaluation: Evaluation, line: Line, tolerance: float | None, key: str
 ) -> list[dict[str, float]]:
-    """Candidates best first; with a tolerance, those whose ±tolerance stays inside one stable
-    range come before the rest."""
+    """Candidates best first; with a tolerance, those that keep the goal and the margin over
+    ±tolerance along the line (every scanned value there, and both ends inside a stable range)
+    come before the rest."""
     values = evaluation.values[key]
     allowed = None
     if tolerance:
+        low, high = values * (1 - tolerance), values * (1 + tolerance)
+        scanned = line.grid
+        good = line.evaluation.margin_met
         allowed = np.array(
             [
-                any(r.contains(v * (1 - tolerance)) and r.contains(v * (1 + tolerance)) for r in ranges)
-                for v in values
+                any(r.contains(a) and r.contains(b) for r in line.ranges)
+                and bool(np.all(good[(scanned >= a) & (scanned <= b)]))
+                for a, b in zip(low, high, strict=True)
             ],
             dtype=bool,
         )
@@ -207,9 +208,7 @@ def _verify_first(
         if verified.margin_met:
             return values, verified
         tried.append((values, verified))
-    ranked = sorted(
-        tried, key=lambda item: (not item[1].goal_met, -item[1].margins.min_distance)
-    )
+    ranked = sorted(tried, key=lambda item: (not item[1].goal_met, -item[1].margins.min_distance))
     return ranked[0]
 
 
@@ -242,7 +241,7 @@ def _suggestion(
     else:
         cost = verify.gain_cost(placement, values, requirement, scanner.band_columns)
     tolerance = _monte_carlo(scanner, placement, values, options)
-    notes = _notes(placement, values, stable, requirement)
+    notes = _notes(placement, stable)
     return Suggestion(
         topology=placement.topology,
         position=placement.position,
@@ -275,16 +274,18 @@ def _monte_carlo(
         return None
     from ..sweep.plan import monte_carlo_plan
 
-    tolerances = [(key, options.element_tolerance) for key in placement.elements]
-    tolerances = [(k, t) for k, t in tolerances if t]
+    added = options.element_tolerance
+    tolerances = [(key, added) for key in placement.elements] if added else []
     tolerances += list(options.parameter_tolerances)
     nominal = {**values, **options.load_parameters}
-    plan = monte_carlo_plan(tolerances, nominal, options.samples, options.seed, options.distribution)
-    drawn = {key: np.asarray(plan.values.get(key, np.full(options.samples, values[key])))
-             for key in placement.elements}  # fmt: skip
-    parameters = {
-        name: np.asarray(plan.values[name]) for name, _ in options.parameter_tolerances
+    plan = monte_carlo_plan(
+        tolerances, nominal, options.samples, options.seed, options.distribution
+    )
+    drawn = {
+        key: np.asarray(plan.values.get(key, np.full(options.samples, values[key])))
+        for key in placement.elements
     }
+    parameters = {name: np.asarray(plan.values[name]) for name, _ in options.parameter_tolerances}
     evaluation = scanner.evaluate(placement, drawn, parameters or None)
     return ToleranceRun(
         samples=options.samples,
@@ -296,7 +297,9 @@ def _monte_carlo(
     )
 
 
-def _bias(placement: Placement, values: dict[str, float], options: SearchOptions) -> BiasFigures | None:
+def _bias(
+    placement: Placement, values: dict[str, float], options: SearchOptions
+) -> BiasFigures | None:
     """DC drop, current and dissipation of the added resistor at the stated bias."""
     if not placement.at_port:
         return None
@@ -311,16 +314,14 @@ def _bias(placement: Placement, values: dict[str, float], options: SearchOptions
     return None
 
 
-def _notes(
-    placement: Placement, values: dict[str, float], stable: dict[str, Range], requirement: Requirement
-) -> tuple[str, ...]:
+def _notes(placement: Placement, stable: dict[str, Range]) -> tuple[str, ...]:
     notes = []
-    for key, found in stable.items():
+    for found in stable.values():
         if found.low is None or found.high is None:
             notes.append(
-                "An open end of a range means the judgement also reaches the goal a million"
-                " times beyond the last value scanned, standing in for a short or an open; values"
-                " between were not all judged."
+                "An open end: the goal holds at the last value scanned and at a million times"
+                " beyond it (standing in for a short or an open); values between were not all"
+                " judged."
             )
             break
     if placement.topology == "series-resistor" and placement.at_port:
@@ -360,21 +361,20 @@ def _why_none(
         for code in range(len(words))
         if np.any(codes == code)
     )
-    span = f"{grid[0]:.3g} to {grid[-1]:.3g} ohm"
+    span = f"{format_value(grid[0], 'ohm')} to {format_value(grid[-1], 'ohm')}"
     reason = f"No value reaches the goal ({span}; the judgement says {counted})."
+    if scanner.original_latch_up and placement.family.corner and placement.at_port:
+        return reason + (
+            " The pair latches up (a real root set at DC), and this network adds nothing at DC:"
+            " it cannot remove a latch-up."
+        )
     if np.any(codes == scan.ACTS_BELOW_SWEEP):
         lowest = float(scanner.pair.frequency_hz[0])
         reason += (
             " Values whose network still acts below the sweep were not judged (a corner below"
-            f" {scan.CORNER_FLOOR * lowest / 1e6:.3g} MHz, ten times the lowest frequency, or a"
+            f" {format_frequency(scan.CORNER_FLOOR * lowest)}, ten times the lowest frequency, or a"
             " count whose parity says F(0) changed, which a network open or shorted at DC"
             " cannot do): measure lower, or give the DC resistances (--device-dc-resistance,"
             " --load-dc-resistance)."
-        )
-    original = scanner.original_latch_up
-    if original and placement.family.corner and placement.at_port:
-        reason += (
-            " The pair latches up (a real root set at DC), and this network adds nothing at DC:"
-            " it cannot remove a latch-up."
         )
     return reason
