@@ -85,7 +85,8 @@ def _goal_section(result: StabiliseResult) -> list[str]:
         rows.append(
             f"  cost: gain lost in {format_frequency(low)}-{format_frequency(high)} ({where})"
         )
-    rows.append(f"  {result.candidates_judged} candidate values judged")
+    if result.candidates_judged:
+        rows.append(f"  {result.candidates_judged} candidate values judged")
     return rows
 
 

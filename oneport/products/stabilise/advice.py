@@ -362,7 +362,8 @@ def _explain(
     tried = len(ranked) + len(unsolved)
     reaching = [s for s in ranked if s.reaches_margin]
     goal_words, margin_words = _goal_words(requirement), _margin_words(requirement)
-    reasons = [f"As given, the pair is {original.verdict}: {original.reasons[0]}"]
+    first = original.reasons[0]
+    reasons = [f"As given the pair is {original.verdict}: {first[:1].lower()}{first[1:]}"]
     next_steps: list[str] = []
     if verdict == "stabilised":
         best = reaching[0]

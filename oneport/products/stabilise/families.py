@@ -91,21 +91,21 @@ def family(name: str) -> Family:
 def immittance(selected: Family, frequency_hz: np.ndarray, values: dict[str, Any]) -> np.ndarray:
     """The added impedance Z_s (Ω, series families) or admittance Y_s (S, shunt families).
 
-    ``values`` maps element keys to arrays of candidates, shape (V,); the result has shape
-    (V, n) for the n frequencies (a scalar per key gives shape (n,)).
+    ``values`` maps element keys to arrays of candidates, shape (V,); the result broadcasts to
+    (V, n) for the n frequencies (a resistor's is real and of shape (V, 1)).
     """
-    s = 2j * np.pi * np.asarray(frequency_hz, dtype=float)
     resistance = _column(values[RESISTANCE])
     if selected.name == "series-resistor":
-        return resistance + 0.0 * s
+        return np.asarray(resistance, dtype=float)
     if selected.name == "shunt-resistor":
-        return 1.0 / resistance + 0.0 * s
+        return np.asarray(1.0 / resistance, dtype=float)
+    s = 2j * np.pi * np.asarray(frequency_hz, dtype=float)
     if selected.name == "shunt-rc":
         capacitance = _column(values[CAPACITANCE])
-        return s * capacitance / (1.0 + s * resistance * capacitance)
+        return np.asarray(s * capacitance / (1.0 + s * resistance * capacitance))
     if selected.name == "series-rl":
         inductance = _column(values[INDUCTANCE])
-        return s * inductance * resistance / (resistance + s * inductance)
+        return np.asarray(s * inductance * resistance / (resistance + s * inductance))
     raise ValueError(f"unknown family {selected.name!r}")
 
 
@@ -119,16 +119,30 @@ def add_network(
     """Γ of the one-port ``gamma`` with the network added (in series or across its port).
 
     Written in reflection form, so an open or a short (Γ = ±1) needs no infinite immittance:
-    series Γ' = (2Γ + z(1 − Γ)) / (2 + z(1 − Γ)) with z = Z_s/Z0; shunt
-    Γ' = (2Γ − y(1 + Γ)) / (2 + y(1 + Γ)) with y = Y_s·Z0.
+    series Γ' = 1 − 2 / (2/(1 − Γ) + z) with z = Z_s/Z0, the same as
+    (2Γ + z(1 − Γ)) / (2 + z(1 − Γ)); shunt Γ' = −1 + 2 / (2/(1 + Γ) + y) with y = Y_s·Z0. The
+    one division per candidate and frequency is done in real arithmetic (numpy's complex
+    division is several times slower).
     """
-    added = immittance(selected, frequency_hz, values)
     gamma = np.asarray(gamma, dtype=complex)
-    if selected.connection == "series":
-        term = (added / reference_impedance_ohm) * (1.0 - gamma)
-        return (2.0 * gamma + term) / (2.0 + term)
-    term = (added * reference_impedance_ohm) * (1.0 + gamma)
-    return (2.0 * gamma - term) / (2.0 + term)
+    added = immittance(selected, frequency_hz, values)
+    series = selected.connection == "series"
+    with np.errstate(divide="ignore", invalid="ignore"):
+        base = 2.0 / (1.0 - gamma) if series else 2.0 / (1.0 + gamma)
+    scaled = added / reference_impedance_ohm if series else added * reference_impedance_ohm
+    real = base.real + np.real(scaled)
+    imaginary = base.imag + np.imag(scaled) if np.iscomplexobj(scaled) else base.imag + 0.0 * real
+    with np.errstate(divide="ignore", invalid="ignore"):
+        scale = 2.0 / (real * real + imaginary * imaginary)
+    sign = 1.0 if series else -1.0
+    result = np.empty(real.shape, dtype=complex)
+    result.real = sign * (1.0 - real * scale)
+    result.imag = sign * imaginary * scale
+    # Γ = 1 (series) or −1 (shunt): the network changes nothing on an open or a short.
+    unchanged = ~np.isfinite(scale) | ~np.isfinite(real)
+    if np.any(unchanged):
+        result[unchanged] = np.broadcast_to(gamma, result.shape)[unchanged]
+    return result
 
 
 def dc_resistance_after(

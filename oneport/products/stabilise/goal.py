@@ -4,8 +4,9 @@ The goal is "stable" (no natural frequency in the right half plane), or with ``k
 the wanted mode remains": the check's count is two (one complex pair), no latch-up, and the one
 crossing of +1 that carries the count lies within ``KEEP_WINDOW`` of the wanted frequency. The
 margin is the minimum |1 − L| and/or the gain margin in dB; with ``keep`` both are measured away
-from the wanted mode (outside the run of |L| ≥ 1 that holds its crossing), where the spurious
-modes would grow. Everything here reads the judgement's per-variant records; nothing judges.
+from the wanted mode (outside ``KEEP_WINDOW`` of its crossing, where the loop must pass close to
++1), where spurious modes would grow. Everything here reads the judgement's per-variant
+records; nothing judges.
 """
 
 from __future__ import annotations
@@ -150,24 +151,19 @@ def goal_met(requirement: Requirement, variants: adapter.VariantAnalysis) -> np.
 def wanted_region(
     frequency_hz: np.ndarray, loop_gain: np.ndarray, wanted_hz: np.ndarray
 ) -> np.ndarray:
-    """Per row of ``loop_gain`` (V, n): the run of |L| ≥ 1 holding the wanted crossing (bool).
-
-    Rows without a wanted crossing (NaN) get an empty region.
-    """
-    magnitude = np.abs(loop_gain)
-    above = magnitude >= 1.0
-    runs = np.cumsum(~above, axis=-1)
-    finite = np.isfinite(wanted_hz)
-    column = np.searchsorted(frequency_hz, np.where(finite, wanted_hz, frequency_hz[0]))
+    """Per row of ``loop_gain`` (V, n): the samples within ``KEEP_WINDOW`` of the wanted
+    crossing, and the two samples around it (bool). Rows without one (NaN) get none."""
+    wanted = np.asarray(wanted_hz, dtype=float)
+    finite = np.isfinite(wanted)
+    centre = np.where(finite, wanted, np.nan)[:, None]
+    with np.errstate(invalid="ignore"):
+        region = np.abs(frequency_hz[None, :] - centre) <= KEEP_WINDOW * centre
+    column = np.searchsorted(frequency_hz, np.where(finite, wanted, frequency_hz[0]))
     column = np.clip(column, 1, frequency_hz.size - 1)
-    rows = np.arange(loop_gain.shape[0])
-    # The crossing lies between column − 1 and column: the louder of the two names the run.
-    louder = np.where(magnitude[rows, column - 1] > magnitude[rows, column], column - 1, column)
-    region = above & (runs == runs[rows, louder][:, None])
-    region[rows, column - 1] |= True
-    region[rows, column] |= True
-    region[~finite] = False
-    return region
+    rows = np.flatnonzero(finite)
+    region[rows, column[rows] - 1] = True
+    region[rows, column[rows]] = True
+    return np.broadcast_to(region, loop_gain.shape).copy()
 
 
 def distance_outside(loop_gain: np.ndarray, region: np.ndarray) -> np.ndarray:
