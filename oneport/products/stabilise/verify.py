@@ -19,7 +19,6 @@ from .goal import KEEP_WINDOW, Requirement
 from .placements import Placement
 from .result import GainCost, MarginsAfter, WantedMode
 
-
 #: Samples of the local pole–zero fit of the wanted mode.
 FIT_POINTS = 400
 
