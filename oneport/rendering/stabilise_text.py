@@ -76,8 +76,8 @@ def _goal_section(result: StabiliseResult) -> list[str]:
     rows.append(f"  {_goal(result)}, with {_margin(result)} (Z0 = {_z0(result)})")
     if requirement.keep_hz is not None:
         rows.append(
-            "  cost: whether the wanted mode still starts (its growth rate and the ratio of"
-            " negative to load resistance)"
+            "  cost: how far the wanted mode moves, and whether it still starts (its growth"
+            " rate, the ratio of negative to load resistance)"
         )
     elif requirement.band_hz is not None:
         low, high = requirement.band_hz
@@ -183,7 +183,9 @@ def _gain_cost(cost: GainCost) -> str:
 def _wanted(mode: WantedMode) -> str:
     if not mode.starts:
         return f"the mode near {format_frequency(mode.keep_hz)} does not start on this pair"
-    parts = [f"starts: crossing at {format_frequency(mode.crossing_frequency_hz or 0.0)}"]
+    crossing = mode.crossing_frequency_hz or 0.0
+    shift = (crossing - mode.keep_hz) / mode.keep_hz
+    parts = [f"starts: crossing at {format_frequency(crossing)} ({shift:+.1%} from the wanted)"]
     if mode.loop_gain_at_crossing_db is not None:
         parts[0] += f" with |L| = {mode.loop_gain_at_crossing_db:.2f} dB"
     if mode.growth_rate_per_s is not None and mode.natural_frequency_hz is not None:

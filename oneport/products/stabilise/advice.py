@@ -82,14 +82,19 @@ def stabilise(
 
     Examples
     --------
-    >>> import skrf
-    >>> frequency = skrf.Frequency(0.001, 6, 601, unit="GHz")
-    >>> media = skrf.media.DefinedGammaZ0(frequency, z0=50)
-    >>> device = media.resistor(-80) ** media.short()   # a bare -80 ohm
-    >>> load = media.resistor(120) ** media.short()      # latches up: 120 > 80 ohm
-    >>> result = stabilise(device, load, families=["shunt-resistor"])
-    >>> result.verdict, result.suggestions[0].stable_range["resistance_ohm"].high < 160
-    ('stabilised', True)
+    The shipped example that oscillates (demo diode D1 into 10 ohm + 3 nH), from the
+    repository's root:
+
+    >>> result = stabilise(
+    ...     "touchstone_examples/oscillates/device.s1p",
+    ...     load="touchstone_examples/oscillates/load.s1p",
+    ...     families=["series-resistor"],
+    ... )
+    >>> result.verdict, result.suggestions[0].elements
+    ('stabilised', {'resistance_ohm': 24.0})
+    >>> edges = result.suggestions[0].stable_range["resistance_ohm"]
+    >>> round(edges.low, 1), round(edges.high, 1)
+    (8.6, 66.1)
     """
     minimum, decibels = goal.parse_margins(margin)
     keep_hz = goal.parse_frequency(keep, "--keep")
@@ -326,7 +331,8 @@ def _rank(suggestion: Suggestion) -> tuple[Any, ...]:
     if isinstance(cost, GainCost):
         value = cost.largest_loss_db
     elif isinstance(cost, WantedMode):
-        value = -(cost.growth_rate_per_s or 0.0)
+        crossing = cost.crossing_frequency_hz
+        value = abs(crossing - cost.keep_hz) / cost.keep_hz if crossing else np.inf
     else:
         value = 0.0
     return (

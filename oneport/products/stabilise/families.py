@@ -127,17 +127,17 @@ def add_network(
     gamma = np.asarray(gamma, dtype=complex)
     added = immittance(selected, frequency_hz, values)
     series = selected.connection == "series"
+    scaled = added / reference_impedance_ohm if series else added * reference_impedance_ohm
+    # An open (series) or a short (shunt) gives an infinite base: handled below, no warning.
     with np.errstate(divide="ignore", invalid="ignore"):
         base = 2.0 / (1.0 - gamma) if series else 2.0 / (1.0 + gamma)
-    scaled = added / reference_impedance_ohm if series else added * reference_impedance_ohm
-    real = base.real + np.real(scaled)
-    imaginary = base.imag + np.imag(scaled) if np.iscomplexobj(scaled) else base.imag + 0.0 * real
-    with np.errstate(divide="ignore", invalid="ignore"):
+        real = base.real + np.real(scaled)
+        imaginary = base.imag + (np.imag(scaled) if np.iscomplexobj(scaled) else 0.0 * real)
         scale = 2.0 / (real * real + imaginary * imaginary)
-    sign = 1.0 if series else -1.0
-    result = np.empty(real.shape, dtype=complex)
-    result.real = sign * (1.0 - real * scale)
-    result.imag = sign * imaginary * scale
+        sign = 1.0 if series else -1.0
+        result = np.empty(real.shape, dtype=complex)
+        result.real = sign * (1.0 - real * scale)
+        result.imag = sign * imaginary * scale
     # Γ = 1 (series) or −1 (shunt): the network changes nothing on an open or a short.
     unchanged = ~np.isfinite(scale) | ~np.isfinite(real)
     if np.any(unchanged):

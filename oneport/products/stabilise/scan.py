@@ -37,8 +37,9 @@ VERDICT_WORDS = ("stable", "unstable", "inconclusive", "acts-below-sweep")
 class Evaluation:
     """Per-candidate figures of one scan (arrays of the candidates' shape (V,)).
 
-    ``cost_db`` is lower for better candidates: the largest reflection-gain (or loop-gain) loss
-    in the band, dB; with ``keep``, minus the loop gain at the wanted crossing in dB.
+    ``cost`` is lower for better candidates: the largest reflection-gain (or loop-gain) loss
+    in the band, dB; with ``keep``, how far the wanted crossing moved, as a fraction of the
+    wanted frequency (the network should not pull the oscillator off its resonator).
     ``gain_margin_db`` is ``inf`` where L does not cross (0, 1) and NaN where not computed.
     """
 
@@ -48,7 +49,7 @@ class Evaluation:
     distance: np.ndarray
     gain_margin_db: np.ndarray
     margin_met: np.ndarray
-    cost_db: np.ndarray
+    cost: np.ndarray
     wanted_hz: np.ndarray
 
     def take(self, index: np.ndarray) -> Evaluation:
@@ -63,7 +64,7 @@ class Evaluation:
                     "distance",
                     "gain_margin_db",
                     "margin_met",
-                    "cost_db",
+                    "cost",
                     "wanted_hz",
                 )
             },
@@ -170,7 +171,9 @@ class Scanner:
         margin_met = met & goal.margin_met(self.requirement, distance, gain_margin)
         if self.requirement.keep:
             assert loop_gain is not None
-            cost = -_loop_gain_at_db(pair.frequency_hz, loop_gain, wanted)
+            assert self.requirement.keep_hz is not None
+            keep = self.requirement.keep_hz
+            cost = np.where(np.isfinite(wanted), np.abs(wanted - keep) / keep, np.inf)
         else:
             cost = self._band_cost(placement, values, loads)
         return Evaluation(
@@ -180,7 +183,7 @@ class Scanner:
             distance=distance,
             gain_margin_db=gain_margin,
             margin_met=margin_met,
-            cost_db=cost,
+            cost=cost,
             wanted_hz=wanted,
         )
 
@@ -320,24 +323,6 @@ class Scanner:
         return inside, codes
 
 
-def _loop_gain_at_db(
-    frequency_hz: np.ndarray, loop_gain: np.ndarray, at_hz: np.ndarray
-) -> np.ndarray:
-    """|L| in dB at ``at_hz`` per row (linear interpolation of |L|); NaN where ``at_hz`` is."""
-    finite = np.isfinite(at_hz)
-    column = np.clip(
-        np.searchsorted(frequency_hz, np.where(finite, at_hz, frequency_hz[0])),
-        1,
-        frequency_hz.size - 1,
-    )
-    rows = np.arange(loop_gain.shape[0])
-    low, high = frequency_hz[column - 1], frequency_hz[column]
-    t = np.clip((np.where(finite, at_hz, low) - low) / (high - low), 0.0, 1.0)
-    magnitude = np.abs(loop_gain[rows, column - 1]) * (1 - t) + np.abs(loop_gain[rows, column]) * t
-    with np.errstate(divide="ignore"):
-        return np.where(finite, 20.0 * np.log10(magnitude), np.nan)
-
-
 def preferred_values(low: float, high: float, series: tuple[float, ...]) -> np.ndarray:
     """Values of a preferred-number series (per decade) between ``low`` and ``high``."""
     if not (low > 0 and high >= low):
@@ -364,7 +349,7 @@ def choice_order(evaluation: Evaluation, allowed: np.ndarray | None = None) -> n
     then those reaching the goal only, by margin. Others are left out."""
     allowed = np.ones(evaluation.goal_met.shape, dtype=bool) if allowed is None else allowed
     qualifying = np.flatnonzero(evaluation.margin_met & allowed)
-    cost = evaluation.cost_db
+    cost = evaluation.cost
     first = qualifying[np.lexsort((-evaluation.distance[qualifying], cost[qualifying]))]
     rest = np.flatnonzero(evaluation.goal_met & ~(evaluation.margin_met & allowed))
     second = rest[np.argsort(-evaluation.distance[rest], kind="stable")]
