@@ -373,8 +373,9 @@ def _explain(
     next_steps: list[str] = []
     if verdict == "stabilised":
         best = reaching[0]
+        verb = "leaves" if len(reaching) == 1 else "leave"
         reasons.append(
-            f"{len(reaching)} of the {tried} networks tried leave it {goal_words} with"
+            f"{len(reaching)} of the {tried} networks tried {verb} it {goal_words} with"
             f" {margin_words}, each verified by the full check on the changed pair; ranked by"
             " what they cost."
         )
@@ -388,9 +389,10 @@ def _explain(
             f"No value of any of the {tried} networks tried leaves the pair {goal_words}."
         )
     else:
-        closest = max(ranked, key=lambda s: s.margins_after.min_distance)
+        closest = max(ranked, key=lambda s: (s.goal_met_after, s.margins_after.min_distance))
         reasons.append(
-            f"{len(ranked)} network(s) reach the goal ({goal_words}) but none with"
+            f"{len(ranked)} {'network reaches' if len(ranked) == 1 else 'networks reach'} the"
+            f" goal ({goal_words}) but {'not' if len(ranked) == 1 else 'none'} with"
             f" {margin_words}: the best, {closest.topology} {closest.position.describe()},"
             f" reaches |1 - L| = {closest.margins_after.min_distance:.3g}."
         )

@@ -329,6 +329,7 @@ def preferred_values(low: float, high: float, series: tuple[float, ...]) -> np.n
         return np.zeros(0)
     decades = np.arange(math.floor(math.log10(low)) - 1, math.ceil(math.log10(high)) + 1)
     values = (np.asarray(series)[None, :] * (10.0**decades)[:, None]).ravel()
+    values = np.array([float(f"{value:.12g}") for value in values])  # 2.7e-12, not 2.7…02e-12
     return np.asarray(values[(values >= low * (1 - 1e-12)) & (values <= high * (1 + 1e-12))])
 
 
@@ -344,13 +345,23 @@ E24 = (1.0, 1.1, 1.2, 1.3, 1.5, 1.6, 1.8, 2.0, 2.2, 2.4, 2.7, 3.0,
 E12 = (1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2)
 
 
-def choice_order(evaluation: Evaluation, allowed: np.ndarray | None = None) -> np.ndarray:
-    """Candidate indices, best first: those reaching goal and margin by cost (then margin);
+#: Costs closer than this count as equal when choosing (dB of gain, or a fraction of the
+#: wanted frequency with ``keep``): a measured gain is not known better than this.
+COST_RESOLUTION = 0.1
+
+
+def choice_order(
+    evaluation: Evaluation, allowed: np.ndarray | None = None, connection: str = "series"
+) -> np.ndarray:
+    """Candidate indices, best first: those reaching goal and margin by cost, then the least
+    invasive resistor (the smallest in series, the largest across: least DC drop or current);
     then those reaching the goal only, by margin. Others are left out."""
     allowed = np.ones(evaluation.goal_met.shape, dtype=bool) if allowed is None else allowed
     qualifying = np.flatnonzero(evaluation.margin_met & allowed)
-    cost = evaluation.cost
-    first = qualifying[np.lexsort((-evaluation.distance[qualifying], cost[qualifying]))]
+    cost = np.round(evaluation.cost / COST_RESOLUTION)
+    resistance = np.log(evaluation.values["resistance_ohm"])
+    invasive = resistance if connection == "series" else -resistance
+    first = qualifying[np.lexsort((invasive[qualifying], cost[qualifying]))]
     rest = np.flatnonzero(evaluation.goal_met & ~(evaluation.margin_met & allowed))
     second = rest[np.argsort(-evaluation.distance[rest], kind="stable")]
     return np.concatenate((first, second)).astype(np.intp)

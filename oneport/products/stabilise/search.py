@@ -78,9 +78,11 @@ def _search_single(scanner: Scanner, placement: Placement, options: SearchOption
     preferred = _preferred_in(line, E24)
     evaluation = scanner.evaluate(placement, {RESISTANCE: preferred})
     judged += preferred.size
-    candidates = _ordered(evaluation, line, options.element_tolerance, RESISTANCE)
+    connection = placement.family.connection
+    tolerance = options.element_tolerance
+    candidates = _ordered(evaluation, line, tolerance, RESISTANCE, connection)
     if not candidates:
-        candidates = _ordered(_inner(line), line, options.element_tolerance, RESISTANCE)
+        candidates = _ordered(_inner(line), line, tolerance, RESISTANCE, connection)
     values, verified = _verify_first(scanner, placement, candidates, options)
     chosen = values[RESISTANCE]
     stable = {RESISTANCE: _holding(line.ranges, chosen)}
@@ -104,7 +106,7 @@ def _search_corner(scanner: Scanner, placement: Placement, options: SearchOption
     }
     evaluation = scanner.evaluate(placement, grid)
     judged = resistance.size
-    order = scan.choice_order(evaluation)
+    order = scan.choice_order(evaluation, connection=placement.family.connection)
     if order.size == 0:
         return Outcome(_unsolved_grid(scanner, placement, evaluation), judged)
     best = scan.as_dict(evaluation.take(order[:1]).values)
@@ -122,9 +124,11 @@ def _search_corner(scanner: Scanner, placement: Placement, options: SearchOption
     values_at = {RESISTANCE: preferred, second: np.full(preferred.size, held)}
     candidates_evaluation = scanner.evaluate(placement, values_at)
     judged += preferred.size
-    candidates = _ordered(candidates_evaluation, r_line, options.element_tolerance, RESISTANCE)
+    connection = placement.family.connection
+    tolerance = options.element_tolerance
+    candidates = _ordered(candidates_evaluation, r_line, tolerance, RESISTANCE, connection)
     if not candidates:
-        candidates = _ordered(_inner(r_line), r_line, options.element_tolerance, RESISTANCE)
+        candidates = _ordered(_inner(r_line), r_line, tolerance, RESISTANCE, connection)
     values, verified = _verify_first(scanner, placement, candidates, options)
     chosen = values[RESISTANCE]
     x_grid = np.geomspace(held / 1e3, held * 1e3, CORNER_LINE_POINTS)
@@ -166,7 +170,7 @@ def _inner(line: Line) -> Evaluation:
 
 
 def _ordered(
-    evaluation: Evaluation, line: Line, tolerance: float | None, key: str
+    evaluation: Evaluation, line: Line, tolerance: float | None, key: str, connection: str
 ) -> list[dict[str, float]]:
     """Candidates best first; with a tolerance, those that keep the goal and the margin over
     ±tolerance along the line (every scanned value there, and both ends inside a stable range)
@@ -185,7 +189,7 @@ def _ordered(
             ],
             dtype=bool,
         )
-    order = scan.choice_order(evaluation, allowed)
+    order = scan.choice_order(evaluation, allowed, connection)
     return [scan.as_dict(evaluation.take(order[i : i + 1]).values) for i in range(order.size)]
 
 
@@ -357,7 +361,7 @@ def _why_none(
     codes = evaluation.verdict_code
     words = scan.VERDICT_WORDS
     counted = ", ".join(
-        f"{int(np.sum(codes == code))} {words[code]}"
+        f"{int(np.sum(codes == code))} {words[code].replace('-', ' ')}"
         for code in range(len(words))
         if np.any(codes == code)
     )
