@@ -94,19 +94,38 @@ def immittance(selected: Family, frequency_hz: np.ndarray, values: dict[str, Any
     ``values`` maps element keys to arrays of candidates, shape (V,); the result broadcasts to
     (V, n) for the n frequencies (a resistor's is real and of shape (V, 1)).
     """
+    real, imaginary = _parts(selected, 2.0 * np.pi * np.asarray(frequency_hz, float), values)
+    if imaginary is None:
+        return np.asarray(real, dtype=float)
+    return np.asarray(real + 1j * imaginary)
+
+
+def _parts(selected: Family, omega: np.ndarray, values: dict[str, Any]) -> tuple[Any, Any]:
+    """Real and imaginary parts of :func:`immittance` (None for a resistor's imaginary part),
+    in real arithmetic: shunt R–C, Y = (ω²RC² + jωC) / (1 + (ωRC)²); series R∥L,
+    Z = (ω²L²R + jωLR²) / (R² + (ωL)²)."""
     resistance = _column(values[RESISTANCE])
     if selected.name == "series-resistor":
-        return np.asarray(resistance, dtype=float)
+        return resistance, None
     if selected.name == "shunt-resistor":
-        return np.asarray(1.0 / resistance, dtype=float)
-    s = 2j * np.pi * np.asarray(frequency_hz, dtype=float)
+        return 1.0 / resistance, None
     if selected.name == "shunt-rc":
         capacitance = _column(values[CAPACITANCE])
-        return np.asarray(s * capacitance / (1.0 + s * resistance * capacitance))
+        wc = omega * capacitance
+        wrc = wc * resistance
+        denominator = 1.0 + wrc * wrc
+        return wrc * wc / denominator, wc / denominator
     if selected.name == "series-rl":
         inductance = _column(values[INDUCTANCE])
-        return np.asarray(s * inductance * resistance / (resistance + s * inductance))
+        wl = omega * inductance
+        denominator = resistance * resistance + wl * wl
+        return wl * wl * resistance / denominator, wl * resistance * resistance / denominator
     raise ValueError(f"unknown family {selected.name!r}")
+
+
+#: Samples (candidates × frequencies) per block of :func:`add_network`: its temporaries then
+#: stay in the processor's caches (as in the check's vectorised judgement).
+BLOCK_SAMPLES = 1 << 15
 
 
 def add_network(
@@ -120,28 +139,48 @@ def add_network(
 
     Written in reflection form, so an open or a short (Γ = ±1) needs no infinite immittance:
     series Γ' = 1 − 2 / (2/(1 − Γ) + z) with z = Z_s/Z0, the same as
-    (2Γ + z(1 − Γ)) / (2 + z(1 − Γ)); shunt Γ' = −1 + 2 / (2/(1 + Γ) + y) with y = Y_s·Z0. The
-    one division per candidate and frequency is done in real arithmetic (numpy's complex
-    division is several times slower).
+    (2Γ + z(1 − Γ)) / (2 + z(1 − Γ)); shunt Γ' = −1 + 2 / (2/(1 + Γ) + y) with y = Y_s·Z0.
+    Computed in real arithmetic (numpy's complex division is several times slower), in blocks
+    of candidates. ``gamma`` has shape (n,) or (V, n); the result (V, n), or (n,) for scalars.
     """
     gamma = np.asarray(gamma, dtype=complex)
-    added = immittance(selected, frequency_hz, values)
+    omega = 2.0 * np.pi * np.asarray(frequency_hz, dtype=float)
     series = selected.connection == "series"
-    scaled = added / reference_impedance_ohm if series else added * reference_impedance_ohm
+    factor = 1.0 / reference_impedance_ohm if series else reference_impedance_ohm
+    sign = 1.0 if series else -1.0
     # An open (series) or a short (shunt) gives an infinite base: handled below, no warning.
     with np.errstate(divide="ignore", invalid="ignore"):
         base = 2.0 / (1.0 - gamma) if series else 2.0 / (1.0 + gamma)
-        real = base.real + np.real(scaled)
-        imaginary = base.imag + (np.imag(scaled) if np.iscomplexobj(scaled) else 0.0 * real)
-        scale = 2.0 / (real * real + imaginary * imaginary)
-        sign = 1.0 if series else -1.0
-        result = np.empty(real.shape, dtype=complex)
-        result.real = sign * (1.0 - real * scale)
-        result.imag = sign * imaginary * scale
-    # Γ = 1 (series) or −1 (shunt): the network changes nothing on an open or a short.
-    unchanged = ~np.isfinite(scale) | ~np.isfinite(real)
-    if np.any(unchanged):
-        result[unchanged] = np.broadcast_to(gamma, result.shape)[unchanged]
+    arrays = {key: np.asarray(value, dtype=float) for key, value in values.items()}
+    count = max((a.size for a in arrays.values() if a.ndim), default=0)
+    leading = (count,) if count else ()
+    if gamma.ndim == 2:
+        leading = (gamma.shape[0],)
+    shape = (*leading, omega.size)
+    result = np.empty(shape, dtype=complex)
+    rows = shape[0] if leading else 1
+    block = max(1, BLOCK_SAMPLES // max(omega.size, 1))
+    for start in range(0, rows, block):
+        part = slice(start, min(start + block, rows)) if leading else slice(None)
+        chosen = {k: (a[part] if a.ndim else a) for k, a in arrays.items()}
+        real_part, imaginary_part = _parts(selected, omega, chosen)
+        base_block = base[part] if base.ndim == 2 else base
+        target = result[part]
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            real = base_block.real + factor * real_part
+            imaginary = base_block.imag + (
+                0.0 if imaginary_part is None else factor * imaginary_part
+            )
+            imaginary = np.broadcast_to(imaginary, real.shape)
+            scale = 2.0 / (real * real + imaginary * imaginary)
+            target.real = sign * (1.0 - real * scale)
+            target.imag = sign * imaginary * scale
+        # Γ = 1 (series) or −1 (shunt): the network changes nothing on an open or a short.
+        unchanged = ~np.isfinite(scale) | ~np.isfinite(real)
+        if np.any(unchanged):
+            target[unchanged] = np.broadcast_to(
+                np.asarray(gamma)[part] if gamma.ndim == 2 else gamma, target.shape
+            )[unchanged]
     return result
 
 

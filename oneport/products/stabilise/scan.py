@@ -133,8 +133,13 @@ class Scanner:
         placement: Placement,
         values: dict[str, np.ndarray],
         parameters: dict[str, np.ndarray] | None = None,
+        costs: bool = True,
     ) -> Evaluation:
-        """Goal, margins and cost of every candidate in ``values`` (arrays of shape (V,))."""
+        """Goal, margins and cost of every candidate in ``values`` (arrays of shape (V,)).
+
+        The cost is computed for candidates that reach the goal only (``inf`` elsewhere), and
+        not at all without ``costs`` (the bisection of edges needs the goal alone).
+        """
         values = {key: np.atleast_1d(np.asarray(v, dtype=float)) for key, v in values.items()}
         pair = self.pair
         loads = placement.changed_loads(values, parameters)
@@ -174,8 +179,10 @@ class Scanner:
             assert self.requirement.keep_hz is not None
             keep = self.requirement.keep_hz
             cost = np.where(np.isfinite(wanted), np.abs(wanted - keep) / keep, np.inf)
+        elif costs:
+            cost = self._band_cost(placement, values, loads, met)
         else:
-            cost = self._band_cost(placement, values, loads)
+            cost = np.full(count, np.inf)
         return Evaluation(
             values=values,
             verdict_code=codes,
@@ -214,23 +221,34 @@ class Scanner:
         return unseen
 
     def _band_cost(
-        self, placement: Placement, values: dict[str, np.ndarray], loads: np.ndarray
+        self,
+        placement: Placement,
+        values: dict[str, np.ndarray],
+        loads: np.ndarray,
+        rows: np.ndarray,
     ) -> np.ndarray:
-        """Largest loss in the band, dB: of reflection gain for a port network, else of |ΓL|."""
-        count = loads.shape[0]
+        """Largest loss in the band, dB: of reflection gain for a port network, else of |ΓL|;
+        for the candidates in ``rows`` (``inf`` for the others)."""
+        cost = np.full(loads.shape[0], np.inf)
         columns = self.band_columns
+        chosen = np.flatnonzero(rows)
         if columns.size == 0:
-            return np.zeros(count)
+            cost[chosen] = 0.0
+            return cost
+        if chosen.size == 0:
+            return cost
+        some = {key: value[chosen] for key, value in values.items()}
         with np.errstate(divide="ignore", invalid="ignore"):
-            amplifier = placement.amplifier_gamma(values, columns)
+            amplifier = placement.amplifier_gamma(some, columns)
             if amplifier is not None:
-                after = 20.0 * np.log10(np.abs(amplifier))
+                after = 10.0 * np.log10(amplifier.real**2 + amplifier.imag**2)
                 loss = self.gain_before_db - after
             else:
-                after = 20.0 * np.log10(np.abs(loads[:, columns]))
+                after = 20.0 * np.log10(np.abs(loads[np.ix_(chosen, columns)]))
                 loss = self.load_before_db - after
         loss = np.where(np.isnan(loss), 0.0, loss)
-        return np.asarray(np.max(loss, axis=-1))
+        cost[chosen] = np.max(loss, axis=-1)
+        return cost
 
     # -- one element along a grid -------------------------------------------------------------
 
@@ -315,7 +333,7 @@ class Scanner:
         steps = max(0, math.ceil(math.log2(widest / math.log1p(EDGE_PRECISION))))
         for _ in range(steps):
             middle = np.sqrt(inside * outside)
-            evaluation = self.evaluate(placement, self._values(key, middle, fixed))
+            evaluation = self.evaluate(placement, self._values(key, middle, fixed), costs=False)
             met = evaluation.goal_met
             inside = np.where(met, middle, inside)
             outside = np.where(met, outside, middle)
