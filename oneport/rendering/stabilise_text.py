@@ -40,9 +40,11 @@ def verdict_line(result: StabiliseResult) -> str:
     head = _HEADLINE[result.verdict]
     reaching = [s for s in result.suggestions if s.reaches_margin]
     if result.verdict == "stabilised":
+        tried = len(result.suggestions) + len(result.unsolved)
+        verb = "network reaches" if len(reaching) == 1 else "networks reach"
         return (
-            f"{head}: {len(reaching)} of {len(result.suggestions) + len(result.unsolved)}"
-            f" networks reach {_margin(result)}; best: {_short(reaching[0])}"
+            f"{head}: {len(reaching)} of {tried} {verb} {_margin(result)};"
+            f" best: {_short(reaching[0])}"
         )
     if result.verdict == "not-stabilised":
         return f"{head}: no network tried reaches {_goal(result)} with {_margin(result)}"

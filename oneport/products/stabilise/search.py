@@ -75,14 +75,10 @@ def _search_single(scanner: Scanner, placement: Placement, options: SearchOption
     judged = line.grid.size
     if not line.ranges:
         return Outcome(_unsolved(scanner, placement, line), judged)
-    preferred = _preferred_in(line, E24)
-    evaluation = scanner.evaluate(placement, {RESISTANCE: preferred})
-    judged += preferred.size
-    connection = placement.family.connection
-    tolerance = options.element_tolerance
-    candidates = _ordered(evaluation, line, tolerance, RESISTANCE, connection)
+    candidates, count = _candidates(scanner, placement, line, {}, options)
+    judged += count
     if not candidates:
-        candidates = _ordered(_inner(line), line, tolerance, RESISTANCE, connection)
+        return Outcome(_only_limits(placement), judged)
     values, verified = _verify_first(scanner, placement, candidates, options)
     chosen = values[RESISTANCE]
     stable = {RESISTANCE: _holding(line.ranges, chosen)}
@@ -120,15 +116,10 @@ def _search_corner(scanner: Scanner, placement: Placement, options: SearchOption
         judged += r_line.grid.size
     if not r_line.ranges:
         return Outcome(_unsolved_grid(scanner, placement, evaluation), judged)
-    preferred = _preferred_in(r_line, E24)
-    values_at = {RESISTANCE: preferred, second: np.full(preferred.size, held)}
-    candidates_evaluation = scanner.evaluate(placement, values_at)
-    judged += preferred.size
-    connection = placement.family.connection
-    tolerance = options.element_tolerance
-    candidates = _ordered(candidates_evaluation, r_line, tolerance, RESISTANCE, connection)
+    candidates, count = _candidates(scanner, placement, r_line, {second: held}, options)
+    judged += count
     if not candidates:
-        candidates = _ordered(_inner(r_line), r_line, tolerance, RESISTANCE, connection)
+        return Outcome(_only_limits(placement), judged)
     values, verified = _verify_first(scanner, placement, candidates, options)
     chosen = values[RESISTANCE]
     x_grid = np.geomspace(held / 1e3, held * 1e3, CORNER_LINE_POINTS)
@@ -149,6 +140,40 @@ def _search_corner(scanner: Scanner, placement: Placement, options: SearchOption
 
 
 # -- choosing -------------------------------------------------------------------------------
+
+
+def _candidates(
+    scanner: Scanner,
+    placement: Placement,
+    line: Line,
+    fixed: dict[str, float],
+    options: SearchOptions,
+) -> tuple[list[dict[str, float]], int]:
+    """The resistances to verify, best first: preferred values inside the line's ranges, or the
+    line's own values when no preferred value reaches the goal; and how many were judged."""
+    connection = placement.family.connection
+    tolerance = options.element_tolerance
+    preferred = _preferred_in(line, E24)
+    candidates: list[dict[str, float]] = []
+    if preferred.size:
+        values = {
+            RESISTANCE: preferred,
+            **{k: np.full(preferred.size, v) for k, v in fixed.items()},
+        }
+        evaluation = scanner.evaluate(placement, values)
+        candidates = _ordered(evaluation, line, tolerance, RESISTANCE, connection)
+    if not candidates:
+        candidates = _ordered(_inner(line), line, tolerance, RESISTANCE, connection)
+    return candidates, int(preferred.size)
+
+
+def _only_limits(placement: Placement) -> Unsolved:
+    return Unsolved(
+        placement.topology,
+        placement.position,
+        "Only the stand-in for a limit (a short or an open, a million times beyond the values"
+        " scanned) reaches the goal: no practical value does.",
+    )
 
 
 def _preferred_in(line: Line, series: tuple[float, ...]) -> np.ndarray:
