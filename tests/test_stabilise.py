@@ -284,6 +284,26 @@ def test_at_node_resistors_in_a_load_netlist(tmp_path):
         assert suggestion.check_after.inputs[1].version == "netlist"
 
 
+def test_port_networks_on_a_netlist_load_equal_those_on_its_samples(tmp_path):
+    # The same load as a netlist (the network built into the netlist, its natural frequencies
+    # counted) and as samples of its lumped model (common practice: Z = R + sL): one answer.
+    netlist = tmp_path / "load.cir"
+    netlist.write_text("R1 1 2 10\nL1 2 0 3n\n.oneport 1\n", encoding="utf-8")
+    lumped_load = port(series(resistor(10.0), inductor(3e-9)), GRID, "samples")
+    chosen = ["series-resistor", "shunt-rc"]
+    device = port(DIODE, GRID, "diode")
+    as_netlist = oneport.stabilise(device, str(netlist), families=chosen)
+    as_samples = oneport.stabilise(device, lumped_load, families=chosen)
+    for one, other in zip(as_netlist.suggestions, as_samples.suggestions, strict=True):
+        assert one.topology == other.topology and one.elements == other.elements
+        for key, found in one.stable_range.items():
+            twin = other.stable_range[key]
+            for a, b in ((found.low, twin.low), (found.high, twin.high)):
+                assert (a is None and b is None) or a == pytest.approx(b, rel=1e-3)
+        assert one.verdict_after == other.verdict_after == "stable"
+    assert "netlist" in as_netlist.suggestions[0].check_after.premise
+
+
 @pytest.fixture(scope="module")
 def shipped() -> dict[str, oneport.products.stabilise.StabiliseResult]:
     examples = ROOT / "touchstone_examples"
@@ -373,6 +393,8 @@ def test_an_already_stable_pair_needs_no_change():
         ({"families": ["series-capacitor"]}, "accepted"),
         ({"at_node": ["n1"]}, "not a netlist"),
         ({"tolerance": "L=5%"}, "not a netlist"),
+        ({"tolerance": "5"}, "PERCENT%"),
+        ({"tolerance": "5%", "samples": 0}, "at least 1"),
     ],
 )
 def test_bad_input_is_one_clear_error(options, message):

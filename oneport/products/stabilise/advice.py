@@ -7,6 +7,7 @@ the networks must reach (:mod:`.goal`); for each placement scan, refine, choose 
 
 from __future__ import annotations
 
+import re
 from collections.abc import Sequence
 from dataclasses import replace
 from typing import Any
@@ -102,6 +103,10 @@ def stabilise(
     if keep_hz is not None and band_hz is not None:
         raise InputError("--band and --keep: give one (a band's gain, or a mode to keep)")
     element_tolerance, parameter_tolerances = _tolerances(tolerance)
+    if tolerance is not None and samples < 1:
+        raise InputError(f"--samples {samples}: at least 1 is needed")
+    if distribution not in ("uniform", "normal"):
+        raise InputError(f"--distribution {distribution!r}: accepted: uniform, normal")
     names = tuple(FAMILIES) if families is None else tuple(families)
     for name in names:
         if name not in FAMILIES:
@@ -218,7 +223,14 @@ def _tolerances(tolerance: Any) -> tuple[float | None, tuple[tuple[str, float], 
         elif "=" in str(item):
             parameters.append(parse_tolerance(str(item)))
         else:
-            added = parse_tolerance(f"added={item}")[1]
+            match = re.match(r"^\s*([0-9.]+(?:[eE][+-]?\d+)?)\s*%\s*$", str(item))
+            percent = float(match.group(1)) if match else float("nan")
+            if not 0.0 < percent < 100.0:
+                raise InputError(
+                    f"--tolerance {item!r}: give PERCENT% for the added elements (e.g. 5%), or"
+                    " NAME=PERCENT% for a load netlist parameter (e.g. Lb=10%)"
+                )
+            added = percent / 100.0
     return added, tuple(parameters)
 
 
