@@ -25,7 +25,7 @@ _HEADLINE = {
     "stabilised": "STABILISED",
     "no-change-needed": "NO CHANGE NEEDED",
     "not-stabilised": "NOT STABILISED",
-    "inconclusive": "INCONCLUSIVE: the pair as given cannot be judged",
+    "inconclusive": "INCONCLUSIVE: no sound advice from these data",
 }
 _BEYOND = {
     "stable": "stable",

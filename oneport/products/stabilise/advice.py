@@ -314,7 +314,8 @@ def _cannot_judge(base: StabiliseResult, original: Any, known_poles: int) -> Sta
     return replace(
         base,
         reasons=(
-            f"A netlist side has {known_poles} natural frequencies of its own in the right half"
+            f"A netlist side has {known_poles} natural"
+            f" {'frequency' if known_poles == 1 else 'frequencies'} of its own in the right half"
             f" plane terminated in {original.reference_impedance_ohm:g} ohm; the scan judges"
             " candidates with P = 0 and cannot count them.",
         ),
