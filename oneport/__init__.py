@@ -8,6 +8,7 @@ load (paths, scikit-rf Networks or :class:`OnePort` records) and returns a froze
 from .analysis.result import CheckResult
 from .errors import FileFormatError, InputError, NoOverlapError, OneportError
 from .products.check import check
+from .products.stabilise import stabilise
 from .reading.touchstone import OnePort, read_one_port
 
 __all__ = [
@@ -19,5 +20,6 @@ __all__ = [
     "OneportError",
     "check",
     "read_one_port",
+    "stabilise",
 ]
 __version__ = "0.1.0"

@@ -33,6 +33,8 @@ _UNITS = {
     "resistance": ("ohm", "ohms", "Ω"),
     "capacitance": ("f",),
     "inductance": ("h",),
+    "current": ("a",),
+    "voltage": ("v",),
 }
 
 _NUMBER = r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?"
@@ -47,14 +49,15 @@ def parse_quantity(text: str, kind: str, *, option: str) -> float:
     text : str
         What the user typed, e.g. ``"2.4GHz"``, ``"50ohm"``, ``"12ps"`` or a bare number (SI).
     kind : str
-        One of ``"frequency"``, ``"time"``, ``"resistance"``, ``"capacitance"``, ``"inductance"``.
+        One of ``"frequency"``, ``"time"``, ``"resistance"``, ``"capacitance"``, ``"inductance"``,
+        ``"current"``, ``"voltage"``.
     option : str
         The option or field name, for the error message.
 
     Returns
     -------
     float
-        The value in Hz, s, Ω, F or H.
+        The value in Hz, s, Ω, F, H, A or V.
 
     Examples
     --------
@@ -92,6 +95,8 @@ _EXAMPLES = {
     "resistance": "50ohm",
     "capacitance": "1.2pF",
     "inductance": "3.3nH",
+    "current": "20mA",
+    "voltage": "1.2V",
 }
 
 

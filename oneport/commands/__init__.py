@@ -21,6 +21,7 @@ COMMAND_MODULES = (
     "poles",
     "amplifier",
     "terminations",
+    "stabilise",
 )
 
 

@@ -30,6 +30,10 @@ VERDICT_EXIT_CODES: dict[str, ExitCode] = {
     # a guarantee over a class of loads (return-loss bounds)
     "guaranteed": ExitCode.HOLDS,
     "not-guaranteed": ExitCode.FAILS,
+    # stabilising advice (docs/stabilise.md)
+    "stabilised": ExitCode.HOLDS,
+    "no-change-needed": ExitCode.HOLDS,
+    "not-stabilised": ExitCode.FAILS,
     # where an oscillator settles (docs/oscillator.md)
     "settles": ExitCode.HOLDS,
     "hard-excitation": ExitCode.FAILS,

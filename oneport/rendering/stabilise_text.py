@@ -1,0 +1,264 @@
+"""Plain-text report of stabilising advice, verdict first, cautions last.
+
+Rendering only: it formats what a :class:`~oneport.products.stabilise.StabiliseResult` holds
+(ranked suggestions with their ranges, the check after, the margins, the cost) and computes
+nothing. dB, GHz and component prefixes appear here and in the product's reasons only.
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..products.stabilise.result import (
+    GainCost,
+    MarginsAfter,
+    StabiliseResult,
+    Suggestion,
+    WantedMode,
+)
+from ..products.stabilise.scan import Range
+from ..products.stabilise.wording import LETTERS, format_element, format_value
+from ..units import format_frequency
+from .check_text import closing_sections, wrap
+
+_HEADLINE = {
+    "stabilised": "STABILISED",
+    "no-change-needed": "NO CHANGE NEEDED",
+    "not-stabilised": "NOT STABILISED",
+    "inconclusive": "INCONCLUSIVE: no sound advice from these data",
+}
+_BEYOND = {
+    "stable": "stable",
+    "unstable": "unstable",
+    "inconclusive": "inconclusive",
+    "acts-below-sweep": "the network acts below the sweep",
+}
+
+
+def verdict_line(result: StabiliseResult) -> str:
+    """One line: the verdict and the first suggestion."""
+    head = _HEADLINE[result.verdict]
+    reaching = [s for s in result.suggestions if s.reaches_margin]
+    if result.verdict == "stabilised":
+        tried = len(result.suggestions) + len(result.unsolved)
+        verb = "network reaches" if len(reaching) == 1 else "networks reach"
+        return (
+            f"{head}: {len(reaching)} of {tried} {verb} {_margin(result)};"
+            f" best: {_short(reaching[0])}"
+        )
+    if result.verdict == "not-stabilised":
+        return f"{head}: no network tried reaches {_goal(result)} with {_margin(result)}"
+    if result.verdict == "no-change-needed":
+        return f"{head}: the pair is already {_goal(result)} with {_margin(result)}"
+    return head
+
+
+def render(result: StabiliseResult) -> str:
+    """The full text report."""
+    parts = [verdict_line(result), ""]
+    parts += [wrap(reason, "  ") for reason in result.reasons]
+    parts += ["", *_goal_section(result)]
+    if result.suggestions:
+        parts += ["", "Suggestions (ranked; each verified by the full check on the changed pair)"]
+        for rank, suggestion in enumerate(result.suggestions, start=1):
+            parts += _suggestion(rank, suggestion)
+    if result.unsolved:
+        parts += ["", "Networks with no value that reaches the goal"]
+        for unsolved in result.unsolved:
+            parts.append(wrap(f"{unsolved.topology} {unsolved.position.describe()}:", "  "))
+            parts.append(wrap(unsolved.reason, "      "))
+    parts += ["", *_before(result)]
+    parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
+    return "\n".join(parts) + "\n"
+
+
+def _goal_section(result: StabiliseResult) -> list[str]:
+    requirement = result.requirement
+    rows = ["Goal"]
+    rows.append(f"  {_goal(result)}, with {_margin(result)} (Z0 = {_z0(result)})")
+    if requirement.keep_hz is not None:
+        rows.append(
+            "  cost: how far the wanted mode moves, and whether it still starts (its growth"
+            " rate, the ratio of negative to load resistance)"
+        )
+    elif requirement.band_hz is not None:
+        low, high = requirement.band_hz
+        where = "as asked" if requirement.band_stated else "where the device has gain"
+        rows.append(
+            f"  cost: gain lost in {format_frequency(low)}-{format_frequency(high)} ({where})"
+        )
+    if result.candidates_judged:
+        rows.append(f"  {result.candidates_judged} candidate values judged")
+    return rows
+
+
+def _suggestion(rank: int, suggestion: Suggestion) -> list[str]:
+    marker = "" if suggestion.reaches_margin else "  (short of the margin)"
+    rows = [f"  {rank}. {_short(suggestion)}{marker}"]
+    rows.append(wrap(suggestion.description, "       "))
+    for key, found in suggestion.stable_range.items():
+        rows.append(wrap(_range(key, found), f"       {LETTERS[key]} range   "))
+        for other in suggestion.other_ranges.get(key, ()):
+            rows.append(wrap(_range(key, other), "         also    "))
+    check = suggestion.check_after
+    count = "N = ?" if check.encirclements is None else f"N = {check.encirclements}"
+    after = f"{check.verdict}, {count}"
+    if check.oscillation_frequencies_hz:
+        listed = ", ".join(format_frequency(f) for f in check.oscillation_frequencies_hz)
+        after += f", oscillation near {listed}"
+    rows.append(f"       after     {after}")
+    rows.append(f"       margins   {_margins(suggestion.margins_after)}")
+    cost = suggestion.cost
+    if isinstance(cost, GainCost):
+        rows.append(wrap(_gain_cost(cost), "       cost      "))
+    elif isinstance(cost, WantedMode):
+        rows.append(wrap(_wanted(cost), "       wanted    "))
+    if suggestion.tolerance is not None:
+        run = suggestion.tolerance
+        listed = ", ".join(f"{_tolerance_name(k)} ±{v:.0%}" for k, v in run.tolerances.items())
+        rows.append(
+            wrap(
+                f"{listed}: {run.fraction_goal_met:.1%} reach the goal,"
+                f" {run.fraction_margin_met:.1%} also the margin ({run.samples} samples,"
+                f" {run.distribution}, seed {run.seed})",
+                "       tolerance ",
+            )
+        )
+    if suggestion.bias is not None:
+        rows.append(wrap(_bias(suggestion), "       bias      "))
+    for note in suggestion.notes:
+        rows.append(wrap(note, "       note      "))
+    if check.verdict != "stable" and check.reasons and not suggestion.goal_met_after:
+        rows.append(wrap(check.reasons[0], "       why       "))
+    return rows
+
+
+def _short(suggestion: Suggestion) -> str:
+    values = " + ".join(format_element(k, v) for k, v in suggestion.elements.items())
+    corner = (
+        f" (corner {format_frequency(suggestion.corner_frequency_hz)})"
+        if suggestion.corner_frequency_hz is not None
+        else ""
+    )
+    return f"{suggestion.topology} {values} {suggestion.position.describe()}{corner}"
+
+
+def _range(key: str, found: Range) -> str:
+    low = "0 (open end)" if found.low is None else format_element(key, found.low)
+    high = "infinity (open end)" if found.high is None else format_element(key, found.high)
+    beyond = [
+        f"{side} {_BEYOND[word]}"
+        for word, side in ((found.beyond_low, "below:"), (found.beyond_high, "above:"))
+        if word is not None
+    ]
+    return f"{low} to {high}" + (f" ({'; '.join(beyond)})" if beyond else "")
+
+
+def _margins(margins: MarginsAfter) -> str:
+    where = " away from the wanted mode" if margins.outside_wanted_mode else ""
+    text = f"|1 - L| = {margins.min_distance:.3g}"
+    if margins.min_distance_frequency_hz is not None:
+        text += f" at {format_frequency(margins.min_distance_frequency_hz)}"
+    gain = margins.gain_margin_db
+    text += (
+        "; gain margin none (L does not cross (0, 1))"
+        if gain is None or not math.isfinite(gain)
+        else f"; gain margin {gain:.1f} dB"
+    )
+    if margins.phase_margin_deg is not None:
+        text += f"; phase margin {margins.phase_margin_deg:.0f} deg"
+    return text + where
+
+
+def _gain_cost(cost: GainCost) -> str:
+    what = "reflection gain |gamma|^2" if cost.kind == "reflection-gain" else "loop gain |L|"
+    low, high = cost.band_hz
+    return (
+        f"{what} in {format_frequency(low)}-{format_frequency(high)}:"
+        f" {cost.before_db[0]:.1f} to {cost.before_db[1]:.1f} dB before,"
+        f" {cost.after_db[0]:.1f} to {cost.after_db[1]:.1f} dB after; at most"
+        f" {cost.largest_loss_db:.2f} dB lost"
+        f" (at {format_frequency(cost.largest_loss_frequency_hz)})"
+    )
+
+
+def _wanted(mode: WantedMode) -> str:
+    if not mode.starts:
+        return f"the mode near {format_frequency(mode.keep_hz)} does not start on this pair"
+    crossing = mode.crossing_frequency_hz or 0.0
+    shift = (crossing - mode.keep_hz) / mode.keep_hz
+    parts = [f"starts: crossing at {format_frequency(crossing)} ({shift:+.1%} from the wanted)"]
+    if mode.loop_gain_at_crossing_db is not None:
+        parts[0] += f" with |L| = {mode.loop_gain_at_crossing_db:.2f} dB"
+    if mode.growth_rate_per_s is not None and mode.natural_frequency_hz is not None:
+        parts.append(
+            f"natural frequency {format_frequency(mode.natural_frequency_hz)}, growth rate"
+            f" {mode.growth_rate_per_s:.3g} 1/s (pole-zero fit)"
+        )
+    else:
+        parts.append("the pole-zero fit does not confirm its growth rate")
+    if mode.resistance_ratio is not None:
+        parts.append(
+            f"negative to load resistance {mode.resistance_ratio:.2g}:1"
+            f" ({mode.resistance_ratio_form} form; about 3:1 is common practice for a sure start)"
+        )
+    return "; ".join(parts)
+
+
+def _bias(suggestion: Suggestion) -> str:
+    bias = suggestion.bias
+    assert bias is not None
+    if not bias.power_w:
+        return "no DC through its resistor (a capacitor blocks it or an inductor bypasses it)"
+    parts = []
+    if bias.voltage_drop_v is not None and suggestion.topology == "series-resistor":
+        parts.append(f"{format_value(bias.voltage_drop_v, 'V')} DC drop")
+    if bias.current_a is not None and suggestion.topology == "shunt-resistor":
+        parts.append(f"draws {format_value(bias.current_a, 'A')} from the bias")
+    parts.append(f"dissipates {format_value(bias.power_w, 'W')} at DC")
+    return ", ".join(parts) + "; rate it for at least twice that"
+
+
+def _before(result: StabiliseResult) -> list[str]:
+    original = result.original
+    count = "N = ?" if original.encirclements is None else f"N = {original.encirclements}"
+    text = f"{original.verdict}, {count}"
+    if original.latch_up:
+        text += ", latch-up (real root)"
+    if original.oscillation_frequencies_hz:
+        listed = ", ".join(format_frequency(f) for f in original.oscillation_frequencies_hz)
+        text += f", oscillation near {listed}"
+    margins = original.margins
+    text += f"; |1 - L| = {margins.modulus_margin:.3g}"
+    return [f"Before (the pair as given, Z0 = {_z0(result)})", f"  {text}"]
+
+
+def _goal(result: StabiliseResult) -> str:
+    keep = result.requirement.keep_hz
+    if keep is None:
+        return "stable"
+    return f"only the wanted mode near {format_frequency(keep)} left"
+
+
+def _margin(result: StabiliseResult) -> str:
+    requirement = result.requirement
+    parts = []
+    if requirement.min_distance is not None:
+        parts.append(f"|1 - L| >= {requirement.min_distance:g}")
+    if requirement.gain_margin_db is not None:
+        parts.append(f"gain margin >= {requirement.gain_margin_db:g} dB")
+    where = " away from the wanted mode" if requirement.keep_hz is not None else ""
+    return " and ".join(parts) + where
+
+
+def _tolerance_name(key: str) -> str:
+    return LETTERS.get(key, key) if key in LETTERS else key
+
+
+def _z0(result: StabiliseResult) -> str:
+    return f"{result.reference_impedance_ohm:g} ohm"
+
+
+def quiet(result: StabiliseResult) -> str:
+    """The verdict line only."""
+    return verdict_line(result)
