@@ -128,8 +128,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     from ..reading.records import InputRecord
     from ..rendering.check_text import render, render_bound, verdict_line
 
-    device = _side(arguments.device, _device_setup(arguments), "device")
     impedance = measurement_impedance(arguments)
+    device_setup = _device_setup(arguments)
     result: Any
     if arguments.load_return_loss is not None:
         if impedance is not None or arguments.plot or arguments.report or arguments.poles:
@@ -137,6 +137,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
                 "--measurement-impedance, --poles, --plot and --report go with --load, not with"
                 " --load-return-loss"
             )
+        device = _side(arguments.device, device_setup, "device")
         if isinstance(device, str):
             raise InputError("--load-return-loss needs a measured device file, not a netlist")
         port = device.one_port
@@ -155,8 +156,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
             delay_s=_time(arguments.load_delay, "--load-delay"),
         )
         result = check(
-            device,
-            _side(arguments.load, load_setup, "load"),
+            arguments.device,
+            arguments.load,
             measurement_impedance_ohm=impedance,
             device_dc_resistance_ohm=_resistance(
                 arguments.device_dc_resistance, "--device-dc-resistance"
@@ -166,6 +167,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
             ),
             gamma_uncertainty=_uncertainty(arguments.gamma_uncertainty),
             frequency_hz=grid_from_options(arguments, required=False),
+            device_setup=device_setup,
+            load_setup=load_setup,
         )
         text = render(result)
         line = verdict_line(result)
@@ -212,7 +215,7 @@ def _second_opinion(result: Any) -> Any:
         reference_impedance_ohm=result.reference_impedance_ohm,
         inputs=result.inputs,
     )
-    return with_count_check(fitted, result.encirclements)
+    return with_count_check(fitted, result)
 
 
 def _with_second_opinion(text: str, second: Any) -> str:

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+from dataclasses import replace
 from typing import Any, TextIO
 
 import numpy as np
@@ -71,7 +72,8 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     command.add_argument(
         "--reference-impedance",
         metavar="OHMS",
-        help="Z0 when both sides are netlists (default 50ohm)",
+        help="the analysis impedance: for a netlist device the Z0 it is analysed in (default"
+        " 50ohm), for device files the impedance they were measured in (default: their own)",
     )
     out = command.add_argument_group("output")
     out.add_argument(
@@ -140,79 +142,86 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
 
 
 def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
-    from ..circuit import is_circuit_path, read_circuit
+    """The sweep's source, built by the one preparation the single check uses."""
+    from ..analysis.judgement import gamma_of_resistance
+    from ..circuit import is_circuit_path
+    from ..findings import Finding
+    from ..products.pair import prepare_pair
     from ..products.sweep.sources import LoopSource, Side
-    from ..reading.alignment import align, renormalise
-    from ..reading.touchstone import read_one_port
+    from ..reading.alignment import interpolate
 
     device_paths = arguments.devices
-    device_circuit = None
-    if len(device_paths) == 1 and is_circuit_path(device_paths[0]):
-        device_circuit = read_circuit(device_paths[0])
-    elif any(is_circuit_path(path) for path in device_paths):
+    if len(device_paths) > 1 and any(is_circuit_path(path) for path in device_paths):
         raise InputError("sweep: give one device netlist, or one or more Touchstone files")
-    load_circuit = read_circuit(arguments.load) if is_circuit_path(arguments.load) else None
-    inputs = [{"role": "device", "path": p} for p in device_paths] + [
-        {"role": "load", "path": arguments.load}
-    ]
-
+    both_netlists = is_circuit_path(device_paths[0]) and is_circuit_path(arguments.load)
+    grid = grid_from_options(arguments, required=both_netlists)
+    device_ohm = _resistance(arguments.device_dc_resistance, "--device-dc-resistance")
+    load_ohm = _resistance(arguments.load_dc_resistance, "--load-dc-resistance")
+    options: dict[str, Any] = {
+        "measurement_impedance_ohm": _resistance(
+            arguments.reference_impedance, "--reference-impedance"
+        ),
+        "device_dc_resistance_ohm": device_ohm,
+        "load_dc_resistance_ohm": load_ohm,
+        "frequency_hz": grid,
+    }
+    pairs = [prepare_pair(path, arguments.load, **options) for path in device_paths]
+    first = pairs[0]
+    frequency_hz, z0 = first.frequency_hz, first.reference_impedance_ohm
+    device_circuit, load_circuit = first.device.circuit, first.load.circuit
+    device_gamma = None if device_ohm is None else gamma_of_resistance(device_ohm, z0)
+    load_gamma = None if load_ohm is None else gamma_of_resistance(load_ohm, z0)
     if device_circuit is None:
-        devices = [read_one_port(path) for path in device_paths]
-        first = devices[0]
-        frequency_hz, z0 = first.frequency_hz, first.reference_impedance_ohm
         gammas = []
-        for device in devices:
-            if device.reference_impedance_ohm != z0:
+        for pair in pairs:
+            if pair.reference_impedance_ohm != z0:
                 raise InputError(
-                    f"{device.source}: referred to {device.reference_impedance_ohm:g} ohm, the"
-                    f" first device to {z0:g} ohm; give device files of one reference impedance"
+                    f"{pair.device.port.source}: analysed in {pair.reference_impedance_ohm:g}"
+                    f" ohm, the first device in {z0:g} ohm; give device files of one reference"
+                    " impedance"
                 )
-            pair = align(first, device)
-            if pair.frequency_hz.size != frequency_hz.size:
+            grid_here = pair.frequency_hz
+            if grid_here[0] > frequency_hz[0] or grid_here[-1] < frequency_hz[-1]:
                 raise InputError(
-                    f"{device.source}: does not cover {first.source}'s band; device files must"
-                    " cover the same frequencies"
+                    f"{pair.device.port.source}: does not cover {first.device.port.source}'s"
+                    " band; device files must cover the same frequencies"
                 )
-            gammas.append(pair.gamma_load)
-        device_side = Side(gamma=np.stack(gammas) if len(gammas) > 1 else first.gamma)
+            gammas.append(interpolate(grid_here, pair.gamma_device, frequency_hz))
+        device_side = Side(
+            gamma=np.stack(gammas) if len(gammas) > 1 else gammas[0], dc_gamma=device_gamma
+        )
     else:
-        if load_circuit is None:
-            load = read_one_port(arguments.load)
-            frequency_hz = load.frequency_hz
-            z0 = _resistance(arguments.reference_impedance) or 50.0
-        else:
-            frequency_hz = grid_from_options(arguments, required=True)
-            z0 = _resistance(arguments.reference_impedance) or 50.0
-        device_side = Side(circuit=device_circuit, parameters=tuple(device_circuit.parameters))
-
-    if load_circuit is not None:
-        load_side = Side(circuit=load_circuit, parameters=tuple(load_circuit.parameters))
+        device_side = Side(
+            circuit=device_circuit,
+            parameters=tuple(device_circuit.parameters),
+            dc_gamma=device_gamma,
+        )
+    if load_circuit is None:
+        load_side = Side(
+            gamma=first.gamma_load, samples=first.facts.load_samples, dc_gamma=load_gamma
+        )
     else:
-        load = read_one_port(arguments.load)
-        if device_circuit is None:
-            pair = align(devices[0], load)
-            if pair.frequency_hz.size != frequency_hz.size:
-                frequency_hz = pair.frequency_hz
-                inside = np.isin(devices[0].frequency_hz, frequency_hz)
-                device_side = Side(
-                    gamma=device_side.gamma[..., inside] if device_side.gamma is not None else None
-                )
-            load_side = Side(gamma=pair.gamma_load)
-        else:
-            load_side = Side(gamma=renormalise(load.gamma, load.reference_impedance_ohm, z0))
-    dc_sign = _dc_sign(arguments, z0)
-    source = LoopSource(frequency_hz, z0, device_side, load_side)
-    warnings = [
-        finding
-        for role, circuit in (("device", device_circuit), ("load", load_circuit))
-        if circuit is not None
-        for finding in _premise_findings(circuit, role, z0)
-    ]
+        load_side = Side(
+            circuit=load_circuit, parameters=tuple(load_circuit.parameters), dc_gamma=load_gamma
+        )
+    source = LoopSource(
+        frequency_hz,
+        z0,
+        device_side,
+        load_side,
+        base=replace(first.facts, known_poles=0, dc_sign=None, exact_rhp=None),
+        dc_from_netlists=first.context.dc_facts not in (None, "stated"),
+    )
+    warnings = list(first.context.findings)
+    for side in (first.device, first.load):
+        if side.is_netlist and not side.poles_known and side.note:
+            warnings.append(Finding("netlist-poles-assumed", side.note))
+    inputs = [pair.inputs[0].to_dict() for pair in pairs] + [first.inputs[1].to_dict()]
     return {
         "source": source,
         "frequency_hz": frequency_hz,
         "z0": z0,
-        "dc_sign": dc_sign,
+        "dc_sign": None,
         "devices": len(device_paths) if device_circuit is None else 1,
         "inputs": inputs,
         "warnings": warnings,
@@ -221,33 +230,6 @@ def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
             **(load_circuit.parameters if load_circuit is not None else {}),
         },
     }
-
-
-def _premise_findings(circuit: Any, role: str, z0: float) -> list[Any]:
-    """A warning when a netlist side, at its nominal values, is unstable terminated in Z0.
-
-    The sweep counts N only (P = 0 assumed for every variant, as for measured data); the single
-    check adds a netlist's own right-half-plane poles, so the two would differ there.
-    """
-    from ..errors import InputError as _InputError
-    from ..findings import Finding
-
-    try:
-        roots = np.asarray(circuit.natural_frequencies(termination_ohm=z0))
-    except _InputError:
-        return []
-    unstable = int(np.sum(roots.real > 0))
-    if not unstable:
-        return []
-    return [
-        Finding(
-            "netlist-unstable-in-reference",
-            f"The {role} netlist ({circuit.source}) at its nominal values has {unstable}"
-            f" natural frequency(ies) in the right half plane terminated in {z0:g} ohm: the"
-            " sweep's counts assume none (P = 0) and are wrong by that many; use oneport check"
-            " on single variants, which adds them.",
-        )
-    ]
 
 
 def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
@@ -284,22 +266,8 @@ def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
     return grid_plan(specifications, [known.get(n.lower(), n) for n in arguments.log])
 
 
-def _resistance(text: str | None) -> float | None:
-    return None if text is None else parse_quantity(text, "resistance", option="resistance")
-
-
-def _dc_sign(arguments: argparse.Namespace, z0: float) -> int | None:
-    device = _resistance(arguments.device_dc_resistance)
-    load = _resistance(arguments.load_dc_resistance)
-    if (device is None) != (load is None):
-        raise InputError(
-            "DC resistances: give both --device-dc-resistance and --load-dc-resistance"
-        )
-    if device is None or load is None:
-        return None
-    gamma_device = (device - z0) / (device + z0)
-    gamma_load = (load - z0) / (load + z0)
-    return 1 if 1.0 - gamma_device * gamma_load > 0 else -1
+def _resistance(text: str | None, option: str) -> float | None:
+    return None if text is None else parse_quantity(text, "resistance", option=option)
 
 
 def _progress(total: int) -> tuple[Any, Any]:
