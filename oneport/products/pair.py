@@ -177,7 +177,10 @@ def prepare_pair(
         if lumped:
             from ..circuit.natural import joined_natural_frequencies
 
-            natural = joined_natural_frequencies(device_circuit, load_circuit)
+            try:
+                natural = joined_natural_frequencies(device_circuit, load_circuit)
+            except InputError:
+                natural = None  # equations too ill-scaled for the eigenproblem: no exact roots
         if frequency_hz is None:
             grid, netlist_limit = netlist_grid(device_circuit, load_circuit, z0)
             grid_chosen = True
@@ -444,11 +447,14 @@ def netlist_grid(device: Any, load: Any, z0: float) -> tuple[np.ndarray, bool]:
     lumped = all(e.rational for c in (device, load) for e in c.elements)
     roots: list[np.ndarray] = []
     if lumped:
-        roots.append(joined_natural_frequencies(device, load))
-        for circuit in (device, load):
-            for termination in (z0, -z0):
-                constant, slope = pencils(circuit, termination, {})
-                roots.append(finite_eigenvalues(constant[0], slope[0], circuit.source))
+        try:
+            roots.append(joined_natural_frequencies(device, load))
+            for circuit in (device, load):
+                for termination in (z0, -z0):
+                    constant, slope = pencils(circuit, termination, {})
+                    roots.append(finite_eigenvalues(constant[0], slope[0], circuit.source))
+        except InputError:  # equations too ill-scaled for the eigenproblem: probe instead
+            lumped, roots = False, []
     critical = np.concatenate(roots) if roots else np.zeros(0, dtype=complex)
     sizes = np.abs(critical)
     sizes = sizes[sizes > 0]
