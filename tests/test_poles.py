@@ -9,7 +9,6 @@ import numpy as np
 import pytest
 
 import oneport
-from oneport.circuit import Circuit
 from oneport.analysis.pole_zero import (
     NaturalFrequency,
     PoleZeroResult,
@@ -18,6 +17,7 @@ from oneport.analysis.pole_zero import (
     with_count_check,
 )
 from oneport.analysis.rational import fit_rational
+from oneport.circuit import Circuit
 from oneport.errors import InputError
 
 from helpers import Z0, gamma_of, run_cli

@@ -140,9 +140,7 @@ def jump_indices(gamma: np.ndarray, noise: Any = 0.0) -> tuple[np.ndarray, ...]:
     starts = np.clip(np.arange(count) - JUMP_NEIGHBOURS, 0, count - width)
     windows = steps[..., starts[:, None] + np.arange(width)]
     lowest = np.partition(windows, JUMP_NEIGHBOURS, axis=-1)
-    median = 0.5 * (
-        np.max(lowest[..., :JUMP_NEIGHBOURS], axis=-1) + lowest[..., JUMP_NEIGHBOURS]
-    )
+    median = 0.5 * (np.max(lowest[..., :JUMP_NEIGHBOURS], axis=-1) + lowest[..., JUMP_NEIGHBOURS])
     floor = np.maximum(JUMP_NOISE_FACTOR * np.asarray(noise, dtype=float), JUMP_FLOOR)
     jump = (steps > JUMP_RATIO * median) & (steps > np.expand_dims(floor, -1))
     return tuple(np.nonzero(jump))

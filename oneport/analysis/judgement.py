@@ -106,9 +106,10 @@ class Facts:
     exact_rhp : int, ndarray of int, or None
         Right-half-plane natural frequencies of the joined circuit when both sides are lumped
         netlists (−1 where unknown): a count that disagrees is not trusted.
-    netlist_limit : bool
+    netlist_limit : bool or ndarray of bool
         Both sides are lumped netlists and the grid reaches beyond every natural frequency of
-        L and F: towards infinity F takes the sign of Re F at the top edge.
+        L and F (``circuit.natural.lumped_pair_facts``): towards infinity F takes the sign of
+        F at the top edge.
     features_on_grid : bool
         Look for a netlist load's hidden features on the analysis grid (False when the grid was
         chosen to resolve the netlists: nothing lies unseen between its samples).
@@ -121,7 +122,7 @@ class Facts:
     load_is_netlist: bool = False
     load_samples: LoadSamples | None = None
     exact_rhp: Any = None
-    netlist_limit: bool = False
+    netlist_limit: Any = False
     features_on_grid: bool = True
 
     def __post_init__(self) -> None:
@@ -280,7 +281,8 @@ def judge(
         low_code = np.where(dc_sign != 0, DC_RESISTANCES, low_code)
         low_sign = np.where(dc_sign != 0, dc_sign, low_sign)
     high_code, high_sign = high.basis_code, high.sign_at_limit
-    if facts.netlist_limit:
+    limit = _per_variant(facts.netlist_limit, leading, bool)
+    if limit.any():
         # Beyond every natural frequency a rational F is a0 + a1/s + …: real a0 where it is not
         # zero; where it is (L → +1, both sides inductive at infinity), a1/(jω), which the big
         # arc of the contour turns to the sign of a1 = −sign(Im F).
@@ -290,8 +292,9 @@ def judge(
             np.where(top.real > 0, 1, -1),
             np.where(top.imag < 0, 1, -1),
         )
-        high_code = np.where(high_code == NOT_FOUNDED, NETLIST_LIMIT, high_code)
-        high_sign = np.where(high_sign == 0, limit_sign, high_sign)
+        unfounded = limit & (high_code == NOT_FOUNDED)
+        high_code = np.where(unfounded, NETLIST_LIMIT, high_code)
+        high_sign = np.where(unfounded, limit_sign, high_sign)
 
     step = sample.largest_step
     low_founded, high_founded = low_code != NOT_FOUNDED, high_code != NOT_FOUNDED
@@ -366,7 +369,7 @@ def judge(
 
 def _per_variant(value: Any, leading: tuple[int, ...], kind: type) -> np.ndarray:
     """A scalar or leading-shaped fact as a flat per-variant array."""
-    array = np.asarray(value, dtype=kind)
+    array: np.ndarray = np.asarray(value, dtype=kind)
     return np.broadcast_to(array, leading).reshape(-1)
 
 
@@ -394,9 +397,7 @@ def _shaped_closures(closures: nyquist.EdgeClosures, leading: tuple[int, ...]) -
 _CLOSURE_FIELDS = ("basis_code", "sign_at_limit", "motion", "margin", "edge_loop_gain")
 
 
-def _features(
-    frequency_hz: np.ndarray, device: np.ndarray, sample: Any, facts: Facts
-) -> Features:
+def _features(frequency_hz: np.ndarray, device: np.ndarray, sample: Any, facts: Facts) -> Features:
     """The load's hidden features, and where the device has gain (|Γd| ≥ 1 − its stated error)
     in the interval or at the analysis sample either side of it."""
     threshold = 1.0 - facts.device_uncertainty
@@ -438,15 +439,20 @@ def _features(
     )
 
 
+#: F(0) within this of 0 (relative to the product Γd(0)·ΓL(0)) has no sign: a root at s = 0.
+DC_SIGN_TOLERANCE = 1e-9
+
+
 def characteristic_sign_at_dc(gamma_device: Any, gamma_load: Any) -> np.ndarray:
-    """Sign of the real F(0) = 1 − Γd(0)·ΓL(0) (0 where undefined: F(0) = 0, or Γ infinite
-    with an ambiguous product)."""
+    """Sign of the real F(0) = 1 − Γd(0)·ΓL(0); 0 where it has none: F(0) within rounding of 0
+    (a natural frequency at s = 0), or NaN."""
     device = np.asarray(gamma_device, dtype=float)
     load = np.asarray(gamma_load, dtype=float)
     with np.errstate(invalid="ignore", over="ignore"):
         product = device * load
     value = 1.0 - product
-    return np.where(np.isnan(value), 0.0, np.sign(value)).astype(int)
+    tiny = np.abs(value) <= DC_SIGN_TOLERANCE * np.maximum(1.0, np.abs(product))
+    return np.where(np.isnan(value) | tiny, 0.0, np.sign(value)).astype(int)
 
 
 def gamma_of_resistance(resistance_ohm: float, reference_impedance_ohm: float) -> float:
@@ -515,7 +521,9 @@ def analyse_pair(pair: Any, device: Any, load: Any, options: CheckOptions | None
         load_uncertainty=options.load_uncertainty,
         load_is_netlist=options.load_poles_known,
         load_samples=LoadSamples(
-            load.frequency_hz, renormalise(load.gamma, load.reference_impedance_ohm, z0), load.source
+            load.frequency_hz,
+            renormalise(load.gamma, load.reference_impedance_ohm, z0),
+            load.source,
         ),
     )
     context = PairContext(

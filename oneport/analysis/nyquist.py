@@ -358,9 +358,10 @@ def closure_columns(frequency_hz: np.ndarray) -> np.ndarray:
     """The sample indices :func:`close_edges` reads, at both edges, ascending.
 
     They are the outermost ``EDGE_NOISE_SAMPLES`` at each edge (for the scatter) and the
-    five-sample windows (:func:`_smoothed`) around the inner end of each outermost octave, so ``close_edges(frequency_hz[c], loop_gain[..., c],
-    side)`` equals ``close_edges(frequency_hz, loop_gain, side)``: a sweep computes L at these
-    few columns for the closures instead of keeping every sample.
+    five-sample windows (:func:`_smoothed`) around the inner end of each outermost octave, so
+    ``close_edges(frequency_hz[c], loop_gain[..., c], side)`` equals
+    ``close_edges(frequency_hz, loop_gain, side)``: a sweep computes L at these few columns for
+    the closures instead of keeping every sample.
     """
     count = frequency_hz.size
     columns: set[int] = set(range(min(count, EDGE_NOISE_SAMPLES)))

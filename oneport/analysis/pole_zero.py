@@ -625,9 +625,8 @@ def _count_and_fit(fit: PoleZeroResult, check: Any, disagreement: tuple[Finding,
         ]
     first = f"The Nyquist count gives Z = {count} ({check.verdict})."
     if not disagreement:
-        agree = (
-            f"The fit agrees: {trusted} trusted right-half-plane natural frequency(ies)"
-            + (f" ({listed})." if listed else ".")
+        agree = f"The fit agrees: {trusted} trusted right-half-plane natural frequency(ies)" + (
+            f" ({listed})." if listed else "."
         )
         return [first, agree]
     return [

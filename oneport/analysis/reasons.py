@@ -25,6 +25,7 @@ from .judgement import (
     DOUBT_HIDDEN_FEATURE,
     DOUBT_PHASE_STEP,
     DOUBT_UNCERTAINTY,
+    DOUBT_UNWRAPPING,
     VERDICT_CODES,
     Facts,
     Judgement,
@@ -138,13 +139,22 @@ def describe(
             f"Measure again with a finer step around {format_frequency(frequency_hz[index])}."
         )
     if count is not None:
-        _count_words(count, int(judgement.known_poles), frequency_hz, reasons, steps)
+        doubted = verdict == "inconclusive"
+        _count_words(count, int(judgement.known_poles), doubted, reasons, steps)
     carrying = nyquist.net_crossings(crossings) if count and count > 0 else []
     oscillation = tuple(c.frequency_hz for c in carrying if c.direction == "clockwise")
-    if count is not None and count > 0:
-        reasons += _describe_modes(count, oscillation, z0, frequency_hz, loop_gain)
+    if count is not None and count > 0 and verdict == "unstable":
+        reasons += _describe_modes(
+            count,
+            int(judgement.known_poles),
+            oscillation,
+            z0,
+            frequency_hz,
+            loop_gain,
+            context.natural_frequencies,
+        )
     _doubt_words(
-        doubts, judgement, frequency_hz, loop_gain, uncertainty, hidden, at_stake, reasons, steps
+        doubts, judgement, facts, frequency_hz, uncertainty, hidden, at_stake, reasons, steps
     )
     if verdict == "stable":
         reasons.append(_resolution_sentence(context, gain_bands, facts))
@@ -247,9 +257,7 @@ def _edges(
                 f"Extend the sweep up to about {target} (device and load both), to where |L| < 1,"
                 " and check again."
             )
-        if context.grid_chosen is False and all(
-            r.version == "netlist" for r in context.inputs
-        ):
+        if context.grid_chosen is False and all(r.version == "netlist" for r in context.inputs):
             steps.append(
                 "Both sides are netlists: leave out --start, --stop and --points and the tool"
                 " evaluates them wherever the answer needs."
@@ -257,9 +265,10 @@ def _edges(
 
 
 def _count_words(
-    count: int, poles: int, frequency_hz: np.ndarray, reasons: list[str], steps: list[str]
+    count: int, poles: int, doubted: bool, reasons: list[str], steps: list[str]
 ) -> None:
-    """The count in words, with its reading (premise failed, stable, unstable)."""
+    """The count in words, with its reading (premise failed, stable, unstable); ``doubted``
+    when a doubt leaves it unproven (the doubts' own sentences follow)."""
     including = f" (including P = {poles} pole(s) of F from a netlist side)" if poles else ""
     if count < 0:
         reasons.append(
@@ -271,6 +280,9 @@ def _count_words(
             "Check the device file's reference impedance and its plane, and that the device did"
             " not oscillate while it was measured (watch a spectrum analyser during the sweep)."
         )
+        return
+    if doubted:
+        reasons.append(f"On these samples the count is Z = {count}{including}, but it is unproven:")
         return
     if count == 0:
         reasons.append(
@@ -297,8 +309,8 @@ def _count_words(
 def _doubt_words(
     doubts: int,
     judgement: Judgement,
+    facts: Facts,
     frequency_hz: np.ndarray,
-    loop_gain: np.ndarray,
     uncertainty: Uncertainty,
     hidden: list[diagnostics.HiddenResonance],
     at_stake: list[bool],
@@ -329,19 +341,30 @@ def _doubt_words(
                 if feature.kind != "jump"
                 else "an isolated jump of gamma_load far larger than its neighbours' steps"
             )
+            span = f"{format_frequency(feature.start_hz)} and {format_frequency(feature.stop_hz)}"
+            finer = format_frequency(_finer_step(feature.step_hz))
+            if facts.load_samples is None and facts.load_is_netlist:
+                reasons.append(
+                    f"Evaluated at the device's samples, the load netlist shows {what} between"
+                    f" {span}, where the device has |gamma_d| >= 1: the device's grid is too"
+                    " coarse there to follow the load, and an unseen excursion could encircle"
+                    " +1."
+                )
+                steps.append(
+                    f"Measure the device between {span} with a step of {finer} or finer, then"
+                    " check again."
+                )
+                continue
             reasons.append(
-                f"The load's samples show {what} between {format_frequency(feature.start_hz)}"
-                f" and {format_frequency(feature.stop_hz)}, where the device has |gamma_d| >= 1:"
-                " something sharp lies between those samples, and an unseen excursion there"
-                " could encircle +1."
+                f"The load's samples show {what} between {span}, where the device has"
+                " |gamma_d| >= 1: something sharp lies between those samples, and an unseen"
+                " excursion there could encircle +1."
             )
             steps.append(
-                f"Measure the load between {format_frequency(feature.start_hz)} and"
-                f" {format_frequency(feature.stop_hz)} with a step of"
-                f" {format_frequency(_finer_step(feature.step_hz))} or finer (and the device"
-                " there if it is a netlist load), then check again."
+                f"Measure the load between {span} with a step of {finer} or finer, then check"
+                " again."
             )
-    if doubts & DOUBT_PHASE_STEP:
+    if doubts & DOUBT_PHASE_STEP and not doubts & DOUBT_UNWRAPPING:
         column = int(judgement.large_step_column)
         reasons.append(
             f"The phase of 1 - L moves by {np.degrees(float(judgement.large_step_rad)):.0f}"
@@ -576,16 +599,20 @@ def _times(count: int) -> str:
 
 def _describe_modes(
     count: int,
+    poles: int,
     oscillation: tuple[float, ...],
     z0: float,
     frequency_hz: np.ndarray,
     loop_gain: np.ndarray,
+    exact: np.ndarray | None,
 ) -> list[str]:
+    """What the count says of the modes; the joined circuit's roots, when known, say the rest."""
     sentences = []
     if count % 2:
+        why = " (F(0) and F(infinity) have opposite signs)" if not poles else ""
         sentences.append(
-            "The count is odd: one natural frequency is real (F(0) and F(infinity) have"
-            " opposite signs), a non-oscillatory latch-up, often through the bias network."
+            f"The count is odd: at least one natural frequency is real{why}, a non-oscillatory"
+            " latch-up, often through the bias network."
         )
     if oscillation:
         listed = ", ".join(format_frequency(f) for f in oscillation)
@@ -593,15 +620,15 @@ def _describe_modes(
             f"Oscillation expected near {listed} (where the loop gain crosses the real axis"
             f" beyond +1 in {z0:g} ohm; the actual frequency shifts as the amplitude grows)."
         )
-    elif count >= 2:
+    elif count >= 2 and exact is None:
         rate = np.abs(np.diff(nyquist.unwrapped_phase(loop_gain)) / np.diff(frequency_hz))
         index = int(np.argmax(rate))
         hint = 0.5 * (frequency_hz[index] + frequency_hz[index + 1])
         sentences.append(
-            "A complex pair of right-half-plane roots without a clockwise crossing in the band"
-            " (F(0) and F(infinity) are both negative): the crossings cannot locate its"
-            f" frequency; the phase of 1 - L turns fastest near {format_frequency(hint)}, the"
-            " likely neighbourhood of the mode."
+            "Right-half-plane roots without a clockwise crossing in the band: a complex pair,"
+            " whose frequency the crossings cannot locate (the phase of 1 - L turns fastest"
+            f" near {format_frequency(hint)}, its likely neighbourhood), or real roots; the"
+            " pole-zero fit (--poles) tells them apart."
         )
     return sentences
 

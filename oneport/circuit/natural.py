@@ -295,16 +295,33 @@ def _joined(
     return joined
 
 
-def joined_right_half_plane_counts(
+#: A lumped loop has reached its limit at a frequency at least this many times every natural
+#: frequency of L and F ...
+LIMIT_REACH = 10.0
+#: ... when the phase those natural frequencies can still turn beyond it, the sum of
+#: arctan(|s_k|/ω), stays below this (rad).
+LIMIT_PHASE_RAD = math.radians(45.0)
+
+
+def lumped_pair_facts(
     device: Circuit,
     load: Circuit,
+    reference_impedance_ohm: float,
     device_params: dict[str, Any],
     load_params: dict[str, Any],
     variants: int,
-) -> np.ndarray:
-    """Right-half-plane natural frequencies of the joined circuit (:func:`joined_natural_frequencies`)
-    for ``variants`` parameter sets (arrays of that length, or scalars), one eigenproblem per
-    distinct set."""
+    top_hz: float,
+) -> tuple[np.ndarray, np.ndarray]:
+    """For two lumped one-ports and ``variants`` parameter sets (arrays of that length, or
+    scalars), one eigenproblem set per distinct set of values:
+
+    - the right-half-plane natural frequencies of the joined circuit
+      (:func:`joined_natural_frequencies`), −1 where the equations are too ill-scaled to solve;
+    - whether ``top_hz`` lies beyond the loop's features: every pole and zero of Γd and ΓL (each
+      side terminated in ±Z0) and of F (the joined circuit) at least ``LIMIT_REACH`` times lower
+      in |s|, and the phase they can still turn above it below ``LIMIT_PHASE_RAD``. There a
+      rational L has reached its limit, so F(∞) takes the sign of F at the top.
+    """
     for circuit in (device, load):
         if len(circuit.ports) != 1:
             raise InputError(f"{circuit.source}: joining needs one-port circuits")
@@ -320,13 +337,44 @@ def joined_right_half_plane_counts(
         side: {key: distinct[:, i] for i, (owner, key) in enumerate(names) if owner == side}
         for side in ("device", "load")
     }
-    device_constant, device_slope = pencils(device, math.inf, chosen["device"])
-    load_constant, load_slope = pencils(load, math.inf, chosen["load"])
-    counts = np.empty(distinct.shape[0], dtype=int)
+    open_pencils = {
+        "device": pencils(device, math.inf, chosen["device"]),
+        "load": pencils(load, math.inf, chosen["load"]),
+    }
+    terminated = [
+        (circuit, pencils(circuit, termination, chosen[side]))
+        for side, circuit in (("device", device), ("load", load))
+        for termination in (reference_impedance_ohm, -reference_impedance_ohm)
+    ]
+    omega_top = 2.0 * math.pi * top_hz
+    counts = np.full(distinct.shape[0], -1, dtype=int)
+    beyond = np.zeros(distinct.shape[0], dtype=bool)
     source = f"{device.source} joined to {load.source}"
     for k in range(distinct.shape[0]):
+        (device_constant, device_slope), (load_constant, load_slope) = (
+            open_pencils["device"],
+            open_pencils["load"],
+        )
         d, l_ = min(k, device_constant.shape[0] - 1), min(k, load_constant.shape[0] - 1)
-        constant = _joined(device_constant[d], load_constant[l_], device, load, border=True)
-        slope = _joined(device_slope[d], load_slope[l_], device, load, border=False)
-        counts[k] = int(np.sum(finite_eigenvalues(constant, slope, source).real > 0))
-    return counts[np.asarray(inverse).reshape(-1)]
+        try:
+            joined = finite_eigenvalues(
+                _joined(device_constant[d], load_constant[l_], device, load, border=True),
+                _joined(device_slope[d], load_slope[l_], device, load, border=False),
+                source,
+            )
+            roots = [joined]
+            for circuit, (constant, slope) in terminated:
+                j = min(k, constant.shape[0] - 1)
+                roots.append(finite_eigenvalues(constant[j], slope[j], circuit.source))
+        except InputError:
+            continue
+        counts[k] = int(np.sum(joined.real > 0))
+        sizes = np.abs(np.concatenate(roots))
+        remaining = float(np.sum(np.arctan(sizes / omega_top))) if omega_top > 0 else np.inf
+        beyond[k] = bool(
+            omega_top > 0
+            and (sizes.size == 0 or sizes.max() * LIMIT_REACH <= omega_top)
+            and remaining < LIMIT_PHASE_RAD
+        )
+    flat = np.asarray(inverse).reshape(-1)
+    return counts[flat], beyond[flat]

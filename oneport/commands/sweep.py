@@ -5,10 +5,7 @@ from __future__ import annotations
 
 import argparse
 import sys
-from dataclasses import replace
 from typing import Any, TextIO
-
-import numpy as np
 
 from ..errors import InputError
 from ..units import parse_quantity
@@ -91,7 +88,9 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         "--threads", type=int, help="threads in this process (default 1; --workers uses cores)"
     )
     run_group.add_argument(
-        "--chunk-size", type=int, help="variants per chunk (default: about 1e6 samples)"
+        "--chunk-size",
+        type=int,
+        help="variants per chunk, 1 or more (default: about 1e6 samples)",
     )
     add_output_options(command, json_help="print the summary as one JSON object", arrays=False)
     return command
@@ -143,92 +142,31 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
 
 def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
     """The sweep's source, built by the one preparation the single check uses."""
-    from ..analysis.judgement import gamma_of_resistance
     from ..circuit import is_circuit_path
-    from ..findings import Finding
-    from ..products.pair import prepare_pair
-    from ..products.sweep.sources import LoopSource, Side
-    from ..reading.alignment import interpolate
+    from ..products.sweep.sources import prepare_sweep
 
-    device_paths = arguments.devices
-    if len(device_paths) > 1 and any(is_circuit_path(path) for path in device_paths):
-        raise InputError("sweep: give one device netlist, or one or more Touchstone files")
-    both_netlists = is_circuit_path(device_paths[0]) and is_circuit_path(arguments.load)
-    grid = grid_from_options(arguments, required=both_netlists)
-    device_ohm = _resistance(arguments.device_dc_resistance, "--device-dc-resistance")
-    load_ohm = _resistance(arguments.load_dc_resistance, "--load-dc-resistance")
-    options: dict[str, Any] = {
-        "measurement_impedance_ohm": _resistance(
+    both_netlists = is_circuit_path(arguments.devices[0]) and is_circuit_path(arguments.load)
+    prepared = prepare_sweep(
+        arguments.devices,
+        arguments.load,
+        measurement_impedance_ohm=_resistance(
             arguments.reference_impedance, "--reference-impedance"
         ),
-        "device_dc_resistance_ohm": device_ohm,
-        "load_dc_resistance_ohm": load_ohm,
-        "frequency_hz": grid,
-    }
-    pairs = [prepare_pair(path, arguments.load, **options) for path in device_paths]
-    first = pairs[0]
-    frequency_hz, z0 = first.frequency_hz, first.reference_impedance_ohm
-    device_circuit, load_circuit = first.device.circuit, first.load.circuit
-    device_gamma = None if device_ohm is None else gamma_of_resistance(device_ohm, z0)
-    load_gamma = None if load_ohm is None else gamma_of_resistance(load_ohm, z0)
-    if device_circuit is None:
-        gammas = []
-        for pair in pairs:
-            if pair.reference_impedance_ohm != z0:
-                raise InputError(
-                    f"{pair.device.port.source}: analysed in {pair.reference_impedance_ohm:g}"
-                    f" ohm, the first device in {z0:g} ohm; give device files of one reference"
-                    " impedance"
-                )
-            grid_here = pair.frequency_hz
-            if grid_here[0] > frequency_hz[0] or grid_here[-1] < frequency_hz[-1]:
-                raise InputError(
-                    f"{pair.device.port.source}: does not cover {first.device.port.source}'s"
-                    " band; device files must cover the same frequencies"
-                )
-            gammas.append(interpolate(grid_here, pair.gamma_device, frequency_hz))
-        device_side = Side(
-            gamma=np.stack(gammas) if len(gammas) > 1 else gammas[0], dc_gamma=device_gamma
-        )
-    else:
-        device_side = Side(
-            circuit=device_circuit,
-            parameters=tuple(device_circuit.parameters),
-            dc_gamma=device_gamma,
-        )
-    if load_circuit is None:
-        load_side = Side(
-            gamma=first.gamma_load, samples=first.facts.load_samples, dc_gamma=load_gamma
-        )
-    else:
-        load_side = Side(
-            circuit=load_circuit, parameters=tuple(load_circuit.parameters), dc_gamma=load_gamma
-        )
-    source = LoopSource(
-        frequency_hz,
-        z0,
-        device_side,
-        load_side,
-        base=replace(first.facts, known_poles=0, dc_sign=None, exact_rhp=None),
-        dc_from_netlists=first.context.dc_facts not in (None, "stated"),
+        device_dc_resistance_ohm=_resistance(
+            arguments.device_dc_resistance, "--device-dc-resistance"
+        ),
+        load_dc_resistance_ohm=_resistance(arguments.load_dc_resistance, "--load-dc-resistance"),
+        frequency_hz=grid_from_options(arguments, required=both_netlists),
     )
-    warnings = list(first.context.findings)
-    for side in (first.device, first.load):
-        if side.is_netlist and not side.poles_known and side.note:
-            warnings.append(Finding("netlist-poles-assumed", side.note))
-    inputs = [pair.inputs[0].to_dict() for pair in pairs] + [first.inputs[1].to_dict()]
     return {
-        "source": source,
-        "frequency_hz": frequency_hz,
-        "z0": z0,
+        "source": prepared.source,
+        "frequency_hz": prepared.source.frequency_hz,
+        "z0": prepared.source.reference_impedance_ohm,
         "dc_sign": None,
-        "devices": len(device_paths) if device_circuit is None else 1,
-        "inputs": inputs,
-        "warnings": warnings,
-        "parameters": {
-            **(device_circuit.parameters if device_circuit is not None else {}),
-            **(load_circuit.parameters if load_circuit is not None else {}),
-        },
+        "devices": prepared.devices,
+        "inputs": prepared.inputs,
+        "warnings": list(prepared.warnings),
+        "parameters": prepared.parameters,
     }
 
 

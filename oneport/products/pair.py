@@ -4,8 +4,9 @@ Every command that judges a device against a load (``check``, each ``sweep`` row
 ``poles``, ``amplifier`` with a port file) starts here, so they read, align and evaluate alike:
 
 - each side is a Touchstone path (prepared with its termination, fixture and delay setup), a
-  :class:`~oneport.reading.touchstone.OnePort` or :class:`~oneport.reading.preparation.PreparedPort`,
-  a scikit-rf ``Network``, or a netlist (``.cir`` path or :class:`~oneport.circuit.Circuit`);
+  :class:`~oneport.reading.touchstone.OnePort` or
+  :class:`~oneport.reading.preparation.PreparedPort`, a scikit-rf ``Network``, or a netlist
+  (``.cir`` path or :class:`~oneport.circuit.Circuit`);
 - the analysis runs in the device's measurement impedance; a measured load is renormalised and
   interpolated onto the device's grid (never extrapolated), a netlist side is evaluated on the
   other side's grid, and two netlists on a grid chosen from their natural frequencies, from DC
@@ -144,9 +145,14 @@ def prepare_pair(
             " is needed"
         )
     device_circuit, load_circuit = as_circuit(device), as_circuit(load)
-    for circuit, setup, role in ((device_circuit, device_setup, "device"), (load_circuit, load_setup, "load")):
-        if circuit is not None and setup is not None and setup != PortSetup(
-            terminated_port=setup.terminated_port
+    for circuit, setup, role in (
+        (device_circuit, device_setup, "device"),
+        (load_circuit, load_setup, "load"),
+    ):
+        if (
+            circuit is not None
+            and setup is not None
+            and setup != PortSetup(terminated_port=setup.terminated_port)
         ):
             raise InputError(
                 f"{circuit.source}: termination, fixture and delay options apply to Touchstone"
@@ -155,6 +161,7 @@ def prepare_pair(
     grid_chosen = False
     netlist_limit = False
     natural = None
+    exact_rhp = None
     alignment = None
     if device_circuit is None and load_circuit is None:
         device_side = _data_side(device, device_setup, "device")
@@ -164,7 +171,9 @@ def prepare_pair(
     elif device_circuit is not None and load_circuit is None:
         load_side = _data_side(load, load_setup, "load")
         z0 = measurement_impedance_ohm or DEFAULT_NETLIST_IMPEDANCE_OHM
-        device_side = netlist_side(device, device_circuit, load_side.port.frequency_hz, z0, "device")
+        device_side = netlist_side(
+            device, device_circuit, load_side.port.frequency_hz, z0, "device"
+        )
         alignment = align(device_side.port, load_side.port)
     elif device_circuit is None:
         device_side = _data_side(device, device_setup, "device")
@@ -182,10 +191,18 @@ def prepare_pair(
             except InputError:
                 natural = None  # equations too ill-scaled for the eigenproblem: no exact roots
         if frequency_hz is None:
-            grid, netlist_limit = netlist_grid(device_circuit, load_circuit, z0)
+            grid = netlist_grid(device_circuit, load_circuit, z0)
             grid_chosen = True
         else:
             grid = _given_grid(frequency_hz)
+        if lumped:
+            from ..circuit.natural import lumped_pair_facts
+
+            exact, beyond = lumped_pair_facts(
+                device_circuit, load_circuit, z0, {}, {}, 1, float(grid[-1])
+            )
+            netlist_limit = bool(beyond[0])
+            exact_rhp = int(exact[0])
         device_side = netlist_side(device, device_circuit, grid, z0, "device")
         load_side = netlist_side(load, load_circuit, grid, z0, "load")
     if alignment is not None:
@@ -217,7 +234,7 @@ def prepare_pair(
         load_uncertainty=load_errors,
         load_is_netlist=load_side.is_netlist,
         load_samples=load_samples,
-        exact_rhp=None if natural is None else int(np.sum(natural.real > 0)),
+        exact_rhp=exact_rhp,
         netlist_limit=netlist_limit,
         features_on_grid=not grid_chosen,
     )
@@ -297,14 +314,14 @@ def _data_side(source: Any, setup: PortSetup | None, role: str) -> Side:
     return Side(role, load_one_port(source, role))
 
 
-def netlist_side(
-    source: Any, circuit: Any, frequency_hz: np.ndarray, z0: float, role: str
-) -> Side:
+def netlist_side(source: Any, circuit: Any, frequency_hz: np.ndarray, z0: float, role: str) -> Side:
     """A netlist side evaluated on ``frequency_hz`` in ``z0``, with its P, note and Γ(0)."""
     from ..circuit import one_port_from_circuit
 
     # Evaluate from the path where there is one, so the record carries the netlist's checksum.
-    port = one_port_from_circuit(source if isinstance(source, str | Path) else circuit, frequency_hz, z0)
+    port = one_port_from_circuit(
+        source if isinstance(source, str | Path) else circuit, frequency_hz, z0
+    )
     poles, known, note = netlist_poles(circuit, role, z0)
     return Side(
         role,
@@ -325,20 +342,32 @@ def netlist_poles(circuit: Any, role: str, z0: float) -> tuple[int, bool, str]:
     try:
         unstable = int(right_half_plane_counts(circuit, z0, {})[0])
     except InputError:
-        return 0, False, (
-            f"The {role} netlist ({circuit.source}) has elements without a polynomial (lines,"
-            f" blocks, constant Q): its stability terminated in {z0:g} ohm was not checked and"
-            " is assumed (P = 0)."
+        return (
+            0,
+            False,
+            (
+                f"The {role} netlist ({circuit.source}) has elements without a polynomial (lines,"
+                f" blocks, constant Q): its stability terminated in {z0:g} ohm was not checked and"
+                " is assumed (P = 0)."
+            ),
         )
     if unstable:
-        return unstable, True, (
-            f"The {role} netlist ({circuit.source}) terminated in {z0:g} ohm has {unstable}"
-            " natural frequencies in the right half plane (P); they are poles of F and are"
-            " added to the count (Z = N + P)."
+        return (
+            unstable,
+            True,
+            (
+                f"The {role} netlist ({circuit.source}) terminated in {z0:g} ohm has {unstable}"
+                " natural frequencies in the right half plane (P); they are poles of F and are"
+                " added to the count (Z = N + P)."
+            ),
         )
-    return 0, True, (
-        f"The {role} netlist ({circuit.source}) was checked: terminated in {z0:g} ohm all its"
-        " natural frequencies lie in the left half plane (P = 0)."
+    return (
+        0,
+        True,
+        (
+            f"The {role} netlist ({circuit.source}) was checked: terminated in {z0:g} ohm all its"
+            " natural frequencies lie in the left half plane (P = 0)."
+        ),
     )
 
 
@@ -367,11 +396,11 @@ def _dc_facts(
     if device_ohm is not None and load_ohm is not None:
         return dc_sign_of_resistances(device_ohm, load_ohm, z0), "stated", stated
     if device_ohm is None and load_ohm is None:
-        if device.is_netlist and load.is_netlist and include_netlists:
-            if device.dc_gamma is not None and load.dc_gamma is not None:
-                sign = int(characteristic_sign_at_dc(device.dc_gamma, load.dc_gamma))
-                if sign:
-                    return sign, "both netlists' DC values", stated
+        both = device.is_netlist and load.is_netlist and include_netlists
+        if both and device.dc_gamma is not None and load.dc_gamma is not None:
+            sign = int(characteristic_sign_at_dc(device.dc_gamma, load.dc_gamma))
+            if sign:
+                return sign, "both netlists' DC values", stated
         return None, None, stated
     given_role, given_ohm, other = (
         ("device", device_ohm, load) if device_ohm is not None else ("load", load_ohm, device)
@@ -390,7 +419,9 @@ def _dc_facts(
             f" cannot supply its DC value: give --{other.role}-dc-resistance as well"
         )
     given_gamma = gamma_of_resistance(given_ohm, z0)
-    pair = (given_gamma, other.dc_gamma) if given_role == "device" else (other.dc_gamma, given_gamma)
+    pair = (
+        (given_gamma, other.dc_gamma) if given_role == "device" else (other.dc_gamma, given_gamma)
+    )
     sign = int(characteristic_sign_at_dc(*pair))
     if not sign:
         raise InputError(
@@ -419,7 +450,8 @@ def _given_grid(frequency_hz: Any) -> np.ndarray:
 #: Points per decade of the base grid between the lowest and highest natural frequencies.
 GRID_POINTS_PER_DECADE = 100
 #: The base grid reaches this factor below the lowest and above the highest natural frequency.
-GRID_REACH = 1e3
+GRID_REACH_DOWN = 1e3
+GRID_REACH_UP = 1e2
 #: Around each resonance, samples at σ/2 steps out to this many |σ| either side.
 PATCH_HALF_WIDTH = 20.0
 #: Refinement: an interval is halved while F's phase, or either Γ, moves by more than this.
@@ -431,16 +463,16 @@ GRID_POINT_LIMIT = 200_000
 PROBE_SPAN_HZ = (1e3, 1e12)
 
 
-def netlist_grid(device: Any, load: Any, z0: float) -> tuple[np.ndarray, bool]:
-    """A grid on which two netlists' loop is resolved, and whether it reaches their limit.
+def netlist_grid(device: Any, load: Any, z0: float) -> np.ndarray:
+    """A grid on which two netlists' loop is resolved, from DC to where the answer is settled.
 
-    For two lumped netlists: a log grid from ``GRID_REACH`` below the lowest to ``GRID_REACH``
-    above the highest natural frequency of every pole and zero of Γd, ΓL (each side terminated
-    in ±Z0) and of F (the joined circuit), with patches of samples across each resonance, then
-    halved where F's phase or either Γ still moves too much between samples; 0 Hz first when the
-    circuits have a DC solution and F(0) ≠ 0. Beyond the last natural frequency a rational L has
-    reached its limit, so the second value is True. With lines (no natural frequencies) the
-    span is probed from 1 kHz to 1 THz and cut a decade above where |L| last reaches 0.9.
+    For two lumped netlists: a log grid from ``GRID_REACH_DOWN`` below the lowest to
+    ``GRID_REACH_UP`` above the highest natural frequency of every pole and zero of Γd, ΓL (each
+    side terminated in ±Z0) and of F (the joined circuit), with patches of samples across each
+    resonance, then halved where F's phase or either Γ still moves too much between samples;
+    0 Hz first when the circuits have a DC solution and F(0) ≠ 0. Beyond the last natural
+    frequency a rational L has reached its limit. With lines (no natural frequencies) the span is
+    probed from 1 kHz to 1 THz and cut a decade above where |L| last reaches 0.9.
     """
     from ..circuit.natural import finite_eigenvalues, joined_natural_frequencies, pencils
 
@@ -463,8 +495,8 @@ def netlist_grid(device: Any, load: Any, z0: float) -> tuple[np.ndarray, bool]:
         return device.gamma(grid, z0), load.gamma(grid, z0)
 
     if sizes.size:
-        low = GRID_REACH**-1 * sizes.min() / (2 * math.pi)
-        high = GRID_REACH * sizes.max() / (2 * math.pi)
+        low = sizes.min() / GRID_REACH_DOWN / (2 * math.pi)
+        high = GRID_REACH_UP * sizes.max() / (2 * math.pi)
     else:
         low, high = PROBE_SPAN_HZ
         if not lumped:
@@ -497,10 +529,9 @@ def netlist_grid(device: Any, load: Any, z0: float) -> tuple[np.ndarray, bool]:
             break
         middles = np.sqrt(grid[:-1][moves] * grid[1:][moves])
         grid = np.unique(np.concatenate([grid, middles]))
-    at_dc = _dc_point(device, load, z0)
-    if at_dc:
+    if _dc_point(device, load, z0):
         grid = np.concatenate([[0.0], grid])
-    return grid, lumped
+    return grid
 
 
 def _dc_point(device: Any, load: Any, z0: float) -> bool:

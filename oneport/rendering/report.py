@@ -39,7 +39,7 @@ _CLOSURE_WORDS = {
     "settled": "L has settled, far from +1",
     "dc-resistances": "from the DC facts",
     "netlist-limit": "both netlists evaluated beyond every natural frequency",
-    "not-founded": "not founded: |L| not clearly below 1 at the edge (and, towards DC, still moving)",
+    "not-founded": "not founded: |L| not clearly below 1 at the edge (towards DC: still moving)",
 }
 _STYLE = """
 body { font-family: system-ui, sans-serif; color: #1f2a33; background: #fbfbf9;

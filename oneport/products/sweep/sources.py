@@ -6,12 +6,14 @@ load reflections on the common grid out, both referred to the analysis impedance
 reflections — the same preparation (``oneport.products.pair``) made per variant: P of every
 netlist side (its own right-half-plane natural frequencies terminated in the analysis impedance,
 Z = N + P), the DC facts where a netlist supplies its half, the joined circuit's exact count for
-two lumped netlists, the measured load's own grid — so each row is what ``oneport check`` says.
+two lumped netlists and whether the grid reaches beyond their natural frequencies, the measured
+load's own grid — so each row is what ``oneport check`` says.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
+from pathlib import Path
 from typing import Any
 
 import numpy as np
@@ -128,21 +130,26 @@ class LoopSource:
         poles = self.device.poles(z0, values, variants) + self.load.poles(z0, values, variants)
         sign: Any = dc_sign
         if sign is None and (
-            self.dc_from_netlists or self.device.dc_gamma is not None or self.load.dc_gamma is not None
+            self.dc_from_netlists
+            or self.device.dc_gamma is not None
+            or self.load.dc_gamma is not None
         ):
             sign = characteristic_sign_at_dc(
                 self.device.dc(z0, values, variants), self.load.dc(z0, values, variants)
             )
-        exact = None
+        exact: Any = None
+        limit: Any = False
         if self.device.lumped and self.load.lumped:
-            from ...circuit.natural import joined_right_half_plane_counts
+            from ...circuit.natural import lumped_pair_facts
 
-            exact = joined_right_half_plane_counts(
+            exact, limit = lumped_pair_facts(
                 self.device.circuit,
                 self.load.circuit,
+                z0,
                 self.device.given(values),
                 self.load.given(values),
                 variants,
+                float(self.frequency_hz[-1]),
             )
         samples = self.load.samples
         if samples is None and self.load.circuit is None and self.load.gamma is not None:
@@ -155,5 +162,127 @@ class LoopSource:
             load_is_netlist=self.load.circuit is not None,
             load_samples=samples,
             exact_rhp=exact,
-            netlist_limit=False,
+            netlist_limit=limit,
         )
+
+
+@dataclass(frozen=True)
+class SweepSetup:
+    """What ``oneport sweep`` runs: the source, how many device files, what was read, warnings,
+    and the netlist parameters that may vary."""
+
+    source: LoopSource
+    devices: int
+    inputs: list[dict[str, Any]]
+    warnings: tuple[Any, ...]
+    parameters: dict[str, float]
+
+
+def prepare_sweep(
+    devices: list[Any],
+    load: Any,
+    *,
+    measurement_impedance_ohm: float | None = None,
+    device_dc_resistance_ohm: float | None = None,
+    load_dc_resistance_ohm: float | None = None,
+    gamma_uncertainty: float | tuple[float, float] | None = None,
+    frequency_hz: Any = None,
+) -> SweepSetup:
+    """The sweep's source, built by the one preparation the single check uses
+    (:func:`oneport.products.pair.prepare_pair`, once per device file): same reading,
+    alignment, netlist evaluation, DC facts and guards, so each row is what ``oneport check``
+    says of that variant. Several device files share the first one's grid (the others are
+    interpolated onto it) and reference impedance; one device may be a netlist."""
+    from ...analysis.judgement import gamma_of_resistance
+    from ...findings import Finding
+    from ...reading.alignment import interpolate
+    from ..pair import prepare_pair
+
+    paths = [str(path) if isinstance(path, Path) else path for path in devices]
+    if len(paths) > 1 and any(pair_source_is_netlist(path) for path in paths):
+        raise InputError("sweep: give one device netlist, or one or more Touchstone files")
+    options: dict[str, Any] = {
+        "measurement_impedance_ohm": measurement_impedance_ohm,
+        "device_dc_resistance_ohm": device_dc_resistance_ohm,
+        "load_dc_resistance_ohm": load_dc_resistance_ohm,
+        "gamma_uncertainty": gamma_uncertainty,
+        "frequency_hz": frequency_hz,
+    }
+    pairs = [prepare_pair(path, load, **options) for path in paths]
+    first = pairs[0]
+    grid, z0 = first.frequency_hz, first.reference_impedance_ohm
+    device_circuit, load_circuit = first.device.circuit, first.load.circuit
+    device_gamma = (
+        None
+        if device_dc_resistance_ohm is None
+        else gamma_of_resistance(device_dc_resistance_ohm, z0)
+    )
+    load_gamma = (
+        None if load_dc_resistance_ohm is None else gamma_of_resistance(load_dc_resistance_ohm, z0)
+    )
+    if device_circuit is None:
+        gammas = []
+        for pair in pairs:
+            if pair.reference_impedance_ohm != z0:
+                raise InputError(
+                    f"{pair.device.port.source}: analysed in {pair.reference_impedance_ohm:g}"
+                    f" ohm, the first device in {z0:g} ohm; give device files of one reference"
+                    " impedance"
+                )
+            here = pair.frequency_hz
+            if here[0] > grid[0] or here[-1] < grid[-1]:
+                raise InputError(
+                    f"{pair.device.port.source}: does not cover {first.device.port.source}'s"
+                    " band; device files must cover the same frequencies"
+                )
+            gammas.append(interpolate(here, pair.gamma_device, grid))
+        device_side = Side(
+            gamma=np.stack(gammas) if len(gammas) > 1 else gammas[0], dc_gamma=device_gamma
+        )
+    else:
+        device_side = Side(
+            circuit=device_circuit,
+            parameters=tuple(device_circuit.parameters),
+            dc_gamma=device_gamma,
+        )
+    if load_circuit is None:
+        load_side = Side(
+            gamma=first.gamma_load, samples=first.facts.load_samples, dc_gamma=load_gamma
+        )
+    else:
+        load_side = Side(
+            circuit=load_circuit, parameters=tuple(load_circuit.parameters), dc_gamma=load_gamma
+        )
+    source = LoopSource(
+        grid,
+        z0,
+        device_side,
+        load_side,
+        base=replace(first.facts, known_poles=0, dc_sign=None, exact_rhp=None, netlist_limit=False),
+        dc_from_netlists=first.context.dc_facts not in (None, "stated"),
+    )
+    warnings = list(first.context.findings)
+    for side in (first.device, first.load):
+        if side.is_netlist and not side.poles_known and side.note:
+            warnings.append(Finding("netlist-poles-assumed", side.note))
+    return SweepSetup(
+        source=source,
+        devices=len(paths) if device_circuit is None else 1,
+        inputs=[pair.inputs[0].to_dict() for pair in pairs] + [first.inputs[1].to_dict()],
+        warnings=tuple(warnings),
+        parameters={
+            **(device_circuit.parameters if device_circuit is not None else {}),
+            **(load_circuit.parameters if load_circuit is not None else {}),
+        },
+    )
+
+
+def pair_source_is_netlist(source: Any) -> bool:
+    """Whether a side names a netlist (a ``.cir`` path or a Circuit)."""
+    from ..pair import as_circuit
+
+    if isinstance(source, str | Path):
+        from ...circuit import is_circuit_path
+
+        return is_circuit_path(source)
+    return as_circuit(source) is not None
