@@ -137,13 +137,29 @@ def jump_indices(gamma: np.ndarray, noise: Any = 0.0) -> tuple[np.ndarray, ...]:
     if count < width:
         return tuple(np.zeros(0, dtype=np.intp) for _ in range(gamma.ndim))
     steps = np.abs(np.diff(gamma, axis=-1))
-    starts = np.clip(np.arange(count) - JUMP_NEIGHBOURS, 0, count - width)
-    windows = steps[..., starts[:, None] + np.arange(width)]
-    lowest = np.partition(windows, JUMP_NEIGHBOURS, axis=-1)
-    median = 0.5 * (np.max(lowest[..., :JUMP_NEIGHBOURS], axis=-1) + lowest[..., JUMP_NEIGHBOURS])
     floor = np.maximum(JUMP_NOISE_FACTOR * np.asarray(noise, dtype=float), JUMP_FLOOR)
-    jump = (steps > JUMP_RATIO * median) & (steps > np.expand_dims(floor, -1))
-    return tuple(np.nonzero(jump))
+    # A cheap necessary condition first: three of the six others lie below twice their median,
+    # so a jump exceeds JUMP_RATIO/2 times the smallest of its neighbours within three steps
+    # (the intervals at the grid's ends, whose windows are one-sided, are always examined).
+    nearest = np.full(steps.shape, np.inf)
+    for shift in range(1, JUMP_NEIGHBOURS + 1):
+        np.minimum(nearest[..., shift:], steps[..., :-shift], out=nearest[..., shift:])
+        np.minimum(nearest[..., :-shift], steps[..., shift:], out=nearest[..., :-shift])
+    candidate = (steps > 0.5 * JUMP_RATIO * nearest) & (steps > np.expand_dims(floor, -1))
+    candidate[..., :JUMP_NEIGHBOURS] = True
+    candidate[..., -JUMP_NEIGHBOURS:] = True
+    index = np.nonzero(candidate)
+    position = index[-1]
+    starts = np.clip(position - JUMP_NEIGHBOURS, 0, count - width)
+    windows = steps[(*(i[:, None] for i in index[:-1]), starts[:, None] + np.arange(width))]
+    lowest = np.partition(windows, JUMP_NEIGHBOURS, axis=-1)
+    median = 0.5 * (
+        np.max(lowest[..., :JUMP_NEIGHBOURS], axis=-1) + lowest[..., JUMP_NEIGHBOURS]
+    )
+    step = steps[index]
+    limit = np.broadcast_to(floor, steps.shape[:-1])[index[:-1]] if steps.ndim > 1 else floor
+    jump = (step > JUMP_RATIO * median) & (step > limit)
+    return tuple(i[jump] for i in index)
 
 
 def hidden_features(

@@ -1,7 +1,7 @@
 """The frozen result of a stability check, and its JSON form.
 
 Results carry the arrays they were computed from; ``to_dict()`` gives the JSON object of the
-``oneport.check/1`` schema (docs/json-check.md) with arrays only on request. Nothing here
+``oneport.check/2`` schema (docs/json-check.md) with arrays only on request. Nothing here
 computes an analysis or renders text.
 """
 
@@ -18,7 +18,7 @@ from .diagnostics import GridResolution, HiddenResonance
 from .nyquist import Band, Crossing, EdgeClosure, Margins
 from .startup import StartupEstimate
 
-CHECK_SCHEMA = "oneport.check/1"
+CHECK_SCHEMA = "oneport.check/2"
 VERDICTS = ("stable", "unstable", "inconclusive")
 
 
@@ -133,7 +133,7 @@ class CheckResult:
         return drawers[kind](self, ax=ax, **options)
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
-        """The ``oneport.check/1`` JSON object (plain Python types only)."""
+        """The ``oneport.check/2`` JSON object (plain Python types only)."""
         z0 = self.reference_impedance_ohm
         data: dict[str, Any] = {
             "schema": CHECK_SCHEMA,
