@@ -153,9 +153,7 @@ def jump_indices(gamma: np.ndarray, noise: Any = 0.0) -> tuple[np.ndarray, ...]:
     starts = np.clip(position - JUMP_NEIGHBOURS, 0, count - width)
     windows = steps[(*(i[:, None] for i in index[:-1]), starts[:, None] + np.arange(width))]
     lowest = np.partition(windows, JUMP_NEIGHBOURS, axis=-1)
-    median = 0.5 * (
-        np.max(lowest[..., :JUMP_NEIGHBOURS], axis=-1) + lowest[..., JUMP_NEIGHBOURS]
-    )
+    median = 0.5 * (np.max(lowest[..., :JUMP_NEIGHBOURS], axis=-1) + lowest[..., JUMP_NEIGHBOURS])
     step = steps[index]
     limit = np.broadcast_to(floor, steps.shape[:-1])[index[:-1]] if steps.ndim > 1 else floor
     jump = (step > JUMP_RATIO * median) & (step > limit)

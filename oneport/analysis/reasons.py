@@ -120,8 +120,10 @@ def describe(
     hidden = judgement.hidden_resonances()
     at_stake = judgement.features_at_stake()
     uncertainty = _uncertainty(frequency_hz, gamma_device, gamma_load, facts, judgement)
+    device_noise = float(nyquist.estimate_noise(gamma_device))
     gain_bands = [
-        (b.start_hz, b.stop_hz) for b in nyquist.find_bands(frequency_hz, gamma_device, noise)
+        (b.start_hz, b.stop_hz)
+        for b in nyquist.find_bands(frequency_hz, gamma_device, device_noise)
     ]
 
     reasons: list[str] = []
@@ -251,13 +253,21 @@ def _edges(
             " or truncated file looks settled at its last points, so the loop cannot be closed"
             " towards infinite frequency from these data."
         )
-        if high.extend_to_hz is not None:
+        netlists = all(r.version == "netlist" for r in context.inputs)
+        if context.grid_chosen:
+            steps.append(
+                f"Both netlists were evaluated up to {format_frequency(frequency_hz[-1])} and"
+                " |L| is still not below 1 there: the models keep their gain at every"
+                " frequency. Add the parasitics that take it away, as a real device's do, or"
+                " give losses as rser= rather than q= so the loop's limit can be computed."
+            )
+        elif high.extend_to_hz is not None:
             target = format_frequency(high.extend_to_hz)
             steps.append(
                 f"Extend the sweep up to about {target} (device and load both), to where |L| < 1,"
                 " and check again."
             )
-        if context.grid_chosen is False and all(r.version == "netlist" for r in context.inputs):
+        if netlists and not context.grid_chosen:
             steps.append(
                 "Both sides are netlists: leave out --start, --stop and --points and the tool"
                 " evaluates them wherever the answer needs."
@@ -407,8 +417,8 @@ def _resolution_sentence(
     if context.load_grid is None:
         if context.device_grid is None:
             return (
-                "Both sides are netlists, evaluated on a grid refined around their natural"
-                " frequencies: nothing lies unseen between samples."
+                "Both sides are netlists, evaluated on a grid the tool chose and refined where"
+                " the loop moves fast: nothing lies unseen between samples."
                 if context.grid_chosen
                 else "Both sides are netlists, evaluated on the grid given."
             )
@@ -427,13 +437,36 @@ def _resolution_sentence(
     if resolution is None:
         return "The load's grid has no interval where the device has gain."
     listed = ", ".join(f"{format_frequency(a)}-{format_frequency(b)}" for a, b in gain_bands)
+    finest = _finest_resolved(context.load_grid, gain_bands)
+    rising = (
+        f", rising to about {_plain(finest[0])} near {format_frequency(finest[1])}"
+        if finest[0] > 1.5 * resolution.finest_resolvable_q
+        else ""
+    )
     return (
         f"Where the device has gain ({listed}) the load's grid resolves a loaded Q of up to"
-        f" about {resolution.finest_resolvable_q:.2g} (at its coarsest point there, a step of"
+        f" about {_plain(resolution.finest_resolvable_q)} at its coarsest point there (a step of"
         f" {format_frequency(resolution.largest_step_hz)} near"
-        f" {format_frequency(resolution.at_frequency_hz)}): a sharper resonance between its"
-        " samples would be invisible to any test on these data."
+        f" {format_frequency(resolution.at_frequency_hz)}){rising}: a sharper resonance"
+        " between its samples would be invisible to any test on these data."
     )
+
+
+def _plain(value: float) -> str:
+    """Two significant figures, without an exponent for ordinary sizes (0.28, 62, 270)."""
+    return f"{float(f'{value:.2g}'):g}"
+
+
+def _finest_resolved(grid: np.ndarray, bands: list[tuple[float, float]]) -> tuple[float, float]:
+    """The largest f/(2Δf) of the grid's intervals inside ``bands``, and where."""
+    centres = 0.5 * (grid[:-1] + grid[1:])
+    q = centres / (2.0 * np.diff(grid))
+    inside = np.zeros(centres.shape, dtype=bool)
+    for low, high in bands:
+        inside |= (grid[:-1] <= high) & (grid[1:] >= low)
+    q = np.where(inside, q, -np.inf)
+    index = int(np.argmax(q))
+    return float(q[index]), float(centres[index])
 
 
 def _exact_sentence(exact: np.ndarray, count: int | None, doubts: int) -> str:

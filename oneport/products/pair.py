@@ -191,6 +191,7 @@ def prepare_pair(
             except InputError:
                 natural = None  # equations too ill-scaled for the eigenproblem: no exact roots
         if frequency_hz is None:
+            _refuse_blocks(device_circuit, load_circuit)
             grid = netlist_grid(device_circuit, load_circuit, z0)
             grid_chosen = True
         else:
@@ -437,6 +438,22 @@ def _uncertainties(value: float | tuple[float, float] | None) -> tuple[float, fl
     return float(value or 0.0), float(value or 0.0)
 
 
+def _refuse_blocks(*circuits: Any) -> None:
+    """Two netlists and no grid: a Touchstone block is known only inside its band, so the tool
+    cannot choose the grid; say which band to give."""
+    from ..circuit.elements import Block
+
+    for circuit in circuits:
+        for element in circuit.elements:
+            if isinstance(element, Block):
+                band = element.data.frequency_hz
+                raise InputError(
+                    f"{circuit.source}: {element.where()} is a Touchstone block, known only"
+                    f" from {band[0]:.6g} Hz to {band[-1]:.6g} Hz: give the grid (--start,"
+                    " --stop, --points) inside that band"
+                )
+
+
 def _given_grid(frequency_hz: Any) -> np.ndarray:
     grid = np.asarray(frequency_hz, dtype=float)
     if grid.ndim != 1 or grid.size < 2 or np.any(np.diff(grid) <= 0) or grid[0] < 0:
@@ -459,8 +476,11 @@ REFINE_PHASE_RAD = np.deg2rad(10.0)
 REFINE_GAMMA_STEP = 0.05
 #: At most this many points.
 GRID_POINT_LIMIT = 200_000
-#: Without natural frequencies (lines): the probe grid's span, Hz.
+#: Without natural frequencies (lines, q= loss): the probe grid's span, Hz, its points per
+#: decade, and the |L| it must stay below above the chosen top's tenth.
 PROBE_SPAN_HZ = (1e3, 1e12)
+PROBE_POINTS_PER_DECADE = 200
+PROBE_LOOP_GAIN = 0.5
 
 
 def netlist_grid(device: Any, load: Any, z0: float) -> np.ndarray:
@@ -471,8 +491,9 @@ def netlist_grid(device: Any, load: Any, z0: float) -> np.ndarray:
     side terminated in ±Z0) and of F (the joined circuit), with patches of samples across each
     resonance, then halved where F's phase or either Γ still moves too much between samples;
     0 Hz first when the circuits have a DC solution and F(0) ≠ 0. Beyond the last natural
-    frequency a rational L has reached its limit. With lines (no natural frequencies) the span is
-    probed from 1 kHz to 1 THz and cut a decade above where |L| last reaches 0.9.
+    frequency a rational L has reached its limit. With lines or constant-Q elements (no natural
+    frequencies) the span is probed from 1 kHz to 1 THz and cut a decade above where |L| last
+    reaches 0.5.
     """
     from ..circuit.natural import finite_eigenvalues, joined_natural_frequencies, pencils
 
@@ -500,9 +521,10 @@ def netlist_grid(device: Any, load: Any, z0: float) -> np.ndarray:
     else:
         low, high = PROBE_SPAN_HZ
         if not lumped:
-            probe = np.geomspace(low, high, 9 * 50 + 1)
+            decades = math.log10(high / low)
+            probe = np.geomspace(low, high, int(decades * PROBE_POINTS_PER_DECADE) + 1)
             gamma_device, gamma_load = loop(probe)
-            loud = np.flatnonzero(np.abs(gamma_device * gamma_load) >= 0.9)
+            loud = np.flatnonzero(np.abs(gamma_device * gamma_load) >= PROBE_LOOP_GAIN)
             if loud.size and loud[-1] < probe.size - 1:
                 high = min(10.0 * probe[loud[-1]], PROBE_SPAN_HZ[1])
     decades = max(math.log10(high / low), 1.0)
