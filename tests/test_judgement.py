@@ -161,6 +161,7 @@ def test_a_hidden_resonator_is_not_called_stable_and_a_finer_grid_counts_it():
 def test_a_stable_verdict_states_the_resolution_where_the_device_has_gain():
     result = oneport.check(EXAMPLES / "stable" / "device.s1p", _load_file("stable"))
     assert result.verdict == "stable"
+    assert result.hidden_resonances == ()  # its measurement noise passes for no feature
     (sentence,) = [r for r in result.reasons if "resolves a loaded Q" in r]
     # The load's 801-point linear grid (8.12 MHz steps) at its coarsest point inside the band
     # where the demo diode has gain (up to 4.3 GHz): f/(2Δf) at its lowest interval there.
@@ -390,3 +391,50 @@ def test_a_netlist_side_supplies_its_half_of_the_dc_facts(tmp_path):
     assert "netlist's own DC value" in half.premise
     with pytest.raises(oneport.InputError, match="give both"):
         oneport.check(device, _load_file("undecidable"), device_dc_resistance_ohm=-76.0)
+
+
+def test_the_jump_test_is_a_plain_median_of_the_neighbours():
+    # Reference: numpy.median of the six nearest other steps (one-sided windows at the ends),
+    # written out plainly; the fast test (a cheap bound first, the median on candidates only)
+    # must flag exactly the same intervals, with and without a noise floor.
+    from oneport.analysis.diagnostics import JUMP_NOISE_FACTOR, JUMP_RATIO, jump_indices
+
+    def plain(values, noise):
+        steps = np.abs(np.diff(values))
+        count = steps.size
+        flagged = []
+        for i in range(count):
+            start = min(max(i - 3, 0), count - 7)
+            others = [steps[j] for j in range(start, start + 7) if j != i]
+            floor = max(JUMP_NOISE_FACTOR * noise, 1e-6)
+            if steps[i] > JUMP_RATIO * np.median(others) and steps[i] > floor:
+                flagged.append(i)
+        return flagged
+
+    rng = np.random.default_rng(11)
+    for _ in range(200):
+        n = int(rng.integers(8, 40))
+        scale = rng.choice([0.001, 0.01, 0.3], size=n)
+        values = np.cumsum(rng.standard_normal(n) * scale) + 1j * np.cumsum(
+            rng.standard_normal(n) * scale
+        )
+        noise = float(rng.choice([0.0, 0.002]))
+        assert jump_indices(values, noise)[0].tolist() == plain(values, noise)
+
+
+def test_the_load_of_an_oscillator_can_be_a_netlist(tmp_path):
+    # The oscillator's load, prepared as every command prepares it: a netlist is evaluated on
+    # the device's grid in its impedance, with its own right-half-plane natural frequencies
+    # counted (here none: a passive R + L).
+    from oneport.products.pair import prepare_load
+
+    netlist = tmp_path / "load.cir"
+    netlist.write_text(".set R=20 L=3n\nR1 1 2 R\nL1 2 0 L\n.oneport 1\n")
+    grid = np.linspace(1e9, 2e9, 11)
+    side = prepare_load(str(netlist), grid, 75.0)
+    assert side.is_netlist and side.poles == 0 and side.poles_known
+    np.testing.assert_array_equal(side.port.frequency_hz, grid)
+    z = 20.0 + 2j * np.pi * grid * 3e-9  # common practice: Γ = (Z − Z0)/(Z + Z0)
+    np.testing.assert_allclose(side.port.gamma, (z - 75.0) / (z + 75.0), atol=1e-12)
+    measured = prepare_load(_load_file("stable"), grid, 75.0)
+    assert not measured.is_netlist and measured.port.points == 801

@@ -253,8 +253,8 @@ def judge(
     A loop that stays well inside the unit circle is stable:
 
     >>> f = np.linspace(1e6, 1e9, 50)
-    >>> judge(f, np.full(50, 0.5 + 0j), 0.5 * np.exp(-2j * np.pi * f / 1e9)).verdicts()
-    array('stable', dtype=object)
+    >>> str(judge(f, np.full(50, 0.5 + 0j), 0.5 * np.exp(-2j * np.pi * f / 1e9)).verdicts())
+    'stable'
     """
     facts = facts or Facts()
     frequency_hz = np.asarray(frequency_hz, dtype=float)

@@ -174,7 +174,9 @@ class CheckResult:
                 ],
             },
             "uncertainty": self.uncertainty.to_dict(),
-            "natural_frequencies": [_natural(s) for s in self.natural_frequencies if s.imag >= 0],
+            "natural_frequencies": [
+                _natural(s) for s in self.natural_frequencies if s.imag >= -1e-9 * abs(s)
+            ],
             "startup_estimates": [_startup(e, z0) for e in self.startup_estimates],
             "warnings": [w.to_dict() for w in self.warnings],
             "cautions": list(self.cautions),

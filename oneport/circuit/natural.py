@@ -250,8 +250,8 @@ def joined_natural_frequencies(
     >>> load = Circuit("l").resistor("R1", "1", "2", 50.0).inductor("L1", "2", "3", 10e-9)
     >>> load = load.capacitor("C1", "3", "0", 2.533e-12).port("1")
     >>> roots = joined_natural_frequencies(device, load)
-    >>> [f"{r.real:.2e} {abs(r.imag):.4e}" for r in roots]
-    ['5.00e+08 6.2630e+09', '5.00e+08 6.2630e+09']
+    >>> [f"{r.real:.2e} {abs(r.imag):.3e}" for r in roots]
+    ['5.00e+08 6.263e+09', '5.00e+08 6.263e+09']
     """
     for circuit in (device, load):
         if len(circuit.ports) != 1:

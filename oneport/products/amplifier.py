@@ -3,15 +3,13 @@ reflection amplifier (:mod:`oneport.analysis.amplifier` does the arithmetic)."""
 
 from __future__ import annotations
 
+from dataclasses import replace
 from typing import Any
 
 from ..analysis.amplifier import DEFAULT_GAIN_THRESHOLD_DB, AmplifierResult, analyse_amplifier
 from ..errors import InputError
-from ..reading.alignment import renormalise
-from ..reading.preparation import load_one_port
-from ..reading.records import InputRecord
 from .check import judge_prepared
-from .pair import prepare_pair
+from .pair import prepare_device, prepare_pair
 
 
 def screen_amplifier(
@@ -47,20 +45,17 @@ def screen_amplifier(
     if load is not None and port_return_loss_db is not None:
         raise InputError("give either a load (circulator file) or a port return loss, not both")
     if load is None:
-        device_port = load_one_port(device, "device")
-        frequency_hz, gamma = device_port.frequency_hz, device_port.gamma
-        z0 = device_port.reference_impedance_ohm
-        if measurement_impedance_ohm is not None and measurement_impedance_ohm != z0:
-            gamma = renormalise(gamma, z0, measurement_impedance_ohm)
-            z0 = measurement_impedance_ohm
-        return analyse_amplifier(
-            frequency_hz,
-            gamma,
-            z0,
+        prepared = prepare_device(device, measurement_impedance_ohm=measurement_impedance_ohm)
+        port = prepared.port
+        result = analyse_amplifier(
+            port.frequency_hz,
+            port.gamma,
+            port.reference_impedance_ohm,
             gain_threshold_db=gain_threshold_db,
             port_return_loss_db=port_return_loss_db,
-            inputs=(InputRecord.of("device", device_port, z0),),
+            inputs=(prepared.record,),
         )
+        return replace(result, warnings=result.warnings + prepared.findings)
     pair = prepare_pair(device, load, measurement_impedance_ohm=measurement_impedance_ohm)
     nyquist = judge_prepared(pair)
     return analyse_amplifier(

@@ -7,6 +7,7 @@ the one judgement (``analysis.judgement``), described in words (``analysis.reaso
 
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -14,9 +15,10 @@ import numpy as np
 
 from ..analysis.reasons import describe
 from ..analysis.result import CheckResult
+from ..analysis.small_gain import BoundResult, check_return_loss
 from ..reading.preparation import PortSetup, PreparedPort
 from ..reading.touchstone import OnePort
-from .pair import PreparedPair, prepare_pair
+from .pair import PreparedPair, prepare_device, prepare_pair
 
 OneportSource = str | Path | OnePort | PreparedPort | Any
 
@@ -106,3 +108,23 @@ def judge_prepared(pair: PreparedPair) -> CheckResult:
         pair.facts,
         pair.context,
     )
+
+
+def check_load_class(
+    device: OneportSource,
+    load_return_loss_db: float,
+    *,
+    measurement_impedance_ohm: float | None = None,
+    device_uncertainty: float = 0.0,
+    device_setup: PortSetup | None = None,
+) -> BoundResult:
+    """Is ``device`` stable into *every* passive load with at least ``load_return_loss_db`` of
+    return loss? The one small-gain rule (:mod:`oneport.analysis.small_gain`), on the device as
+    the one preparation reads it; ``amplifier --port-return-loss`` asks the same."""
+    prepared = prepare_device(
+        device, measurement_impedance_ohm=measurement_impedance_ohm, device_setup=device_setup
+    )
+    result = check_return_loss(
+        prepared.port, load_return_loss_db, prepared.record, device_uncertainty
+    )
+    return replace(result, warnings=result.warnings + prepared.findings)

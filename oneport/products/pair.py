@@ -279,6 +279,61 @@ def prepare_pair(
     )
 
 
+@dataclass(frozen=True)
+class PreparedDevice:
+    """A measured device alone, in its measurement impedance (for a class of loads)."""
+
+    port: OnePort
+    record: InputRecord
+    findings: tuple[Finding, ...]
+
+
+def prepare_device(
+    device: Any,
+    *,
+    measurement_impedance_ohm: float | None = None,
+    device_setup: PortSetup | None = None,
+) -> PreparedDevice:
+    """The device side of :func:`prepare_pair` without a load: read and prepared the same way
+    (termination, fixture, delay) and referred to its measurement impedance; for the return-loss
+    bound of ``check --load-return-loss`` and ``amplifier --port-return-loss`` alike. A netlist
+    device is refused: a class of loads needs the device's data."""
+    if as_circuit(device) is not None:
+        raise InputError(
+            "a bound over a class of loads needs a measured device file, not a netlist"
+        )
+    side = _data_side(device, device_setup, "device")
+    port = side.port
+    findings = side.findings
+    z0 = port.reference_impedance_ohm
+    if measurement_impedance_ohm is not None:
+        if not measurement_impedance_ohm > 0:
+            raise InputError(
+                f"measurement impedance {measurement_impedance_ohm!r} ohm: a positive number of"
+                " ohms is needed"
+            )
+        if measurement_impedance_ohm != z0:
+            findings += (
+                Finding(
+                    "device-renormalised",
+                    f"The device file is referred to {z0:g} ohm but was stated to be measured"
+                    f" in {measurement_impedance_ohm:g} ohm; it was brought back to its"
+                    " measurement impedance.",
+                    {"file_reference_impedance_ohm": z0},
+                ),
+            )
+            port = replace(
+                port,
+                gamma=renormalise(port.gamma, z0, measurement_impedance_ohm),
+                reference_impedance_ohm=float(measurement_impedance_ohm),
+            )
+    record = replace(
+        InputRecord.of("device", side.port, port.reference_impedance_ohm),
+        preparation=side.steps,
+    )
+    return PreparedDevice(port, record, findings)
+
+
 def prepare_load(
     load: Any,
     frequency_hz: np.ndarray,
