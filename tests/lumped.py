@@ -16,6 +16,7 @@ import numpy as np
 from hypothesis import strategies as st
 
 from oneport import OnePort
+from oneport.circuit import Circuit
 
 from helpers import Z0
 
@@ -23,6 +24,18 @@ from helpers import Z0
 S_UNIT = 1e9
 
 Impedance = tuple[np.poly1d, np.poly1d]
+
+
+class Lumped(tuple):
+    """Impedance polynomials ``(n, d)`` that remember how the circuit was built (``tree``), so
+    the same circuit can be handed to ``oneport`` as a netlist (:func:`circuit`)."""
+
+    tree: tuple
+
+    def __new__(cls, numerator: np.poly1d, denominator: np.poly1d, tree: tuple) -> Lumped:
+        made = super().__new__(cls, (numerator, denominator))
+        made.tree = tree
+        return made
 
 
 # --- elements and connections ----------------------------------------------------------------
@@ -46,7 +59,7 @@ def resistor(resistance_ohm: float) -> Impedance:
     >>> [part.coeffs.tolist() for part in resistor(50.0)]
     [[50.0], [1.0]]
     """
-    return np.poly1d([float(resistance_ohm)]), np.poly1d([1.0])
+    return Lumped(np.poly1d([float(resistance_ohm)]), np.poly1d([1.0]), ("R", resistance_ohm))
 
 
 def inductor(inductance_h: float) -> Impedance:
@@ -62,7 +75,7 @@ def inductor(inductance_h: float) -> Impedance:
     tuple of numpy.poly1d
         ``(L·s, 1)``.
     """
-    return np.poly1d([float(inductance_h), 0.0]), np.poly1d([1.0])
+    return Lumped(np.poly1d([float(inductance_h), 0.0]), np.poly1d([1.0]), ("L", inductance_h))
 
 
 def capacitor(capacitance_f: float) -> Impedance:
@@ -78,7 +91,7 @@ def capacitor(capacitance_f: float) -> Impedance:
     tuple of numpy.poly1d
         ``(1, C·s)``.
     """
-    return np.poly1d([1.0]), np.poly1d([float(capacitance_f), 0.0])
+    return Lumped(np.poly1d([1.0]), np.poly1d([float(capacitance_f), 0.0]), ("C", capacitance_f))
 
 
 def series(*parts: Impedance) -> Impedance:
@@ -106,7 +119,7 @@ def series(*parts: Impedance) -> Impedance:
             numerator * other_denominator + other_numerator * denominator,
             denominator * other_denominator,
         )
-    return numerator, denominator
+    return Lumped(numerator, denominator, ("series", tuple(_tree(part) for part in parts)))
 
 
 def parallel(*parts: Impedance) -> Impedance:
@@ -134,7 +147,49 @@ def parallel(*parts: Impedance) -> Impedance:
             numerator * other_numerator,
             numerator * other_denominator + other_numerator * denominator,
         )
-    return numerator, denominator
+    return Lumped(numerator, denominator, ("parallel", tuple(_tree(part) for part in parts)))
+
+
+def _tree(part: Impedance) -> tuple:
+    tree = getattr(part, "tree", None)
+    if tree is None:
+        raise TypeError("only circuits built with resistor/inductor/capacitor/series/parallel")
+    return tree
+
+
+def _wire(tree: tuple) -> bool:
+    return tree[0] == "R" and abs(tree[1]) < 1e-12
+
+
+def circuit(z: Impedance, source: str = "circuit") -> Circuit:
+    """The same circuit as an ``oneport`` netlist (:class:`~oneport.circuit.Circuit`), its port
+    from node ``p`` to ground; a resistor below 1 pΩ in series is a wire (netlists refuse 0 Ω).
+
+    Examples
+    --------
+    >>> built = circuit(series(resistor(10.0), inductor(1e-9)), "R+L")
+    >>> [element.name for element in built.elements]
+    ['R1', 'L2']
+    """
+    built = Circuit(source)
+    counter = iter(range(1, 1_000_000))
+
+    def place(tree: tuple, a: str, b: str) -> None:
+        kind = tree[0]
+        if kind in ("R", "L", "C"):
+            method = {"R": built.resistor, "L": built.inductor, "C": built.capacitor}[kind]
+            method(f"{kind}{next(counter)}", a, b, float(tree[1]))
+        elif kind == "series":
+            children = [child for child in tree[1] if not _wire(child)] or [tree[1][0]]
+            nodes = [a, *[f"n{next(counter)}" for _ in children[:-1]], b]
+            for child, start, stop in zip(children, nodes[:-1], nodes[1:], strict=True):
+                place(child, start, stop)
+        else:
+            for child in tree[1]:
+                place(child, a, b)
+
+    place(_tree(z), "p", "0")
+    return built.port("p")
 
 
 def tunnel_diode(rs_ohm: float, ls_h: float, rd_ohm: float, cj_f: float) -> Impedance:

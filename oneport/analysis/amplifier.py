@@ -5,7 +5,10 @@ circulator port — must keep |Γd·ΓL| < 1 at every frequency for the small-ga
 guarantee no encirclement of +1 (given the device is stable in Z0), so the port's return loss
 must exceed 20·log10|Γd| dB wherever |Γd| > 1. With a finite match the voltage gain lies between
 |Γd|/(1 + |Γd·ΓL|) and |Γd|/(1 − |Γd·ΓL|), the power gain between their squares (METHODS §6).
-With the port's own file, the Nyquist check with the actual load decides.
+With the port's own file, the Nyquist check with the actual load decides. Whether the bound
+holds is :func:`oneport.analysis.small_gain.small_gain_bound`'s answer, the one rule ``check
+--load-return-loss`` uses too, in the same words (``guaranteed``, ``not-guaranteed``,
+``inconclusive``).
 
 Computation only: arrays in, a frozen :class:`AmplifierResult` out. The product that reads files
 is :func:`oneport.products.amplifier.screen_amplifier`; the pictures are in
@@ -25,15 +28,13 @@ from ..findings import Finding
 from ..reading.records import InputRecord
 from ..units import format_frequency
 from .result import CheckResult
+from .small_gain import EdgeBound, SmallGainBound, bound_premise, bound_words, small_gain_bound
 
-AMPLIFIER_SCHEMA = "oneport.amplifier/1"
-VERDICTS = ("stable", "not-guaranteed", "unstable", "inconclusive")
+AMPLIFIER_SCHEMA = "oneport.amplifier/2"
+VERDICTS = ("guaranteed", "not-guaranteed", "stable", "unstable", "inconclusive")
 DEFAULT_GAIN_THRESHOLD_DB = 10.0
 #: The bandwidth is where the gain stays within this many dB of its peak.
 BANDWIDTH_DROP_DB = 3.0
-#: Margin (dB) the port's return loss must keep over the gain at a sweep edge for the bound
-#: to be carried beyond the sweep, on top of the gain's rise over the outermost octave.
-EDGE_MARGIN_DB = 1.0
 
 
 @dataclass(frozen=True)
@@ -61,26 +62,16 @@ class GainBand:
 
 
 @dataclass(frozen=True)
-class EdgeBound:
-    """Whether the small-gain bound can be carried beyond one sweep edge."""
-
-    side: str
-    founded: bool
-    margin_db: float | None
-    rise_db: float
-    note: str
-
-
-@dataclass(frozen=True)
 class AmplifierResult:
     """Everything the screening found, frozen.
 
     Attributes
     ----------
     verdict : str
-        ``stable`` (guaranteed for the stated port match, or stable with the load by the
-        Nyquist count), ``not-guaranteed`` (the small-gain bound fails for the stated match),
-        ``unstable`` (Nyquist count with the load) or ``inconclusive``.
+        With a stated port match (or none needed: no gain), the small-gain rule's
+        ``guaranteed``, ``not-guaranteed`` or ``inconclusive``; with the port's file, the
+        Nyquist check's ``stable``, ``unstable`` or ``inconclusive``; with neither,
+        ``inconclusive``.
     basis : str
         ``small-gain``, ``nyquist`` or ``none`` (no port stated).
     gain_db, required_return_loss_db : ndarray
@@ -125,6 +116,7 @@ class AmplifierResult:
     port_reflection: np.ndarray | None = field(repr=False, default=None)
     gain_bounds_db: tuple[np.ndarray, np.ndarray] | None = field(repr=False, default=None)
     gain_with_load_db: np.ndarray | None = field(repr=False, default=None)
+    bound: SmallGainBound | None = None
 
     @property
     def ripple_at_peak_db(self) -> tuple[float, float] | None:
@@ -137,9 +129,9 @@ class AmplifierResult:
     @property
     def guaranteed(self) -> bool | None:
         """Whether the small-gain bound holds in band and beyond both edges (None: no port)."""
-        if self.port_margin_db is None:
+        if self.bound is None:
             return None
-        return self.port_margin_db > 0 and all(edge.founded for edge in self.edges)
+        return self.bound.guaranteed
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
         """The ``oneport.amplifier/1`` JSON object (docs/json-amplifier.md)."""
@@ -200,12 +192,15 @@ class AmplifierResult:
                 "gain_upper_db": _finite_or_none(at_peak[1]),
             },
             "worst_ripple_db": _finite_or_none(float(np.max(upper - lower))),
+            "small_gain_verdict": None if self.bound is None else self.bound.verdict,
+            "at_stake_ranges_hz": (
+                [] if self.bound is None else [list(r) for r in self.bound.at_stake_ranges_hz]
+            ),
             "edges": [
                 {
                     "side": edge.side,
                     "founded": edge.founded,
                     "margin_db": edge.margin_db,
-                    "rise_over_outer_octave_db": edge.rise_db,
                     "note": edge.note,
                 }
                 for edge in self.edges
@@ -270,7 +265,7 @@ def analyse_amplifier(
     >>> f = np.linspace(0.0, 1e9, 11)
     >>> result = analyse_amplifier(f, np.full(11, 5.0 + 0j), 50.0, port_return_loss_db=20.0)
     >>> round(result.peak_gain_db, 2), result.verdict
-    (13.98, 'stable')
+    (13.98, 'guaranteed')
     """
     frequency_hz, gamma_device, port = _validated(
         frequency_hz, gamma_device, port_return_loss_db, gamma_port
@@ -288,25 +283,23 @@ def analyse_amplifier(
     margin: float | None = None
     margin_frequency: float | None = None
     edges: tuple[EdgeBound, ...] = ()
+    bound = None
     if port is not None:
-        slack = -20.0 * np.log10(np.maximum(port, 1e-300)) - gain_db
-        margin, margin_frequency = float(np.min(slack)), float(frequency_hz[np.argmin(slack)])
-        edges = (
-            _edge(frequency_hz, gain_db, slack, "low"),
-            _edge(frequency_hz, gain_db, slack, "high"),
-        )
+        bound = small_gain_bound(frequency_hz, gamma_device, port)
+        margin, margin_frequency = bound.margin_db, bound.margin_frequency_hz
+        edges = bound.edges
     with_load = None
     if gamma_port is not None:
         effective = gamma_device / (1.0 - gamma_device * gamma_port)
         with_load = 20.0 * np.log10(np.maximum(np.abs(effective), 1e-300))
-    partial = _Partial(frequency_hz, gain_db, margin, edges, nyquist)
+    partial = _Partial(frequency_hz, gain_db, required, z0, bound, source, nyquist)
     verdict, basis, reasons, steps = _decide(partial)
     return AmplifierResult(
         verdict=verdict,
         basis=basis,
         reasons=tuple(reasons),
         next_steps=tuple(steps),
-        premise=_premise(z0, frequency_hz),
+        premise=bound_premise(z0, frequency_hz) if nyquist is None else nyquist.premise,
         reference_impedance_ohm=z0,
         gain_threshold_db=float(gain_threshold_db),
         peak_gain_db=float(gain_db[peak]),
@@ -331,6 +324,7 @@ def analyse_amplifier(
         port_reflection=port,
         gain_bounds_db=bounds,
         gain_with_load_db=with_load,
+        bound=bound,
     )
 
 
@@ -387,43 +381,14 @@ def _port_return_loss(stated: float | None, port: np.ndarray | None) -> float | 
     return float(-20.0 * np.log10(np.maximum(np.max(port), 1e-300)))
 
 
-def _edge(frequency_hz: np.ndarray, gain_db: np.ndarray, slack: np.ndarray, side: str) -> EdgeBound:
-    """Can the bound be carried beyond the edge? Yes at 0 Hz; else if the slack there exceeds
-    the gain's rise towards the edge over the outermost octave plus ``EDGE_MARGIN_DB``."""
-    edge = 0 if side == "low" else frequency_hz.size - 1
-    if side == "low" and frequency_hz[0] == 0.0:
-        margin = float(slack[0])
-        return EdgeBound(side, margin > 0, margin, 0.0, "The sweep includes 0 Hz.")
-    if side == "low":
-        inner = min(
-            int(np.searchsorted(frequency_hz, 2.0 * frequency_hz[0])), frequency_hz.size - 1
-        )
-    else:
-        inner = max(int(np.searchsorted(frequency_hz, 0.5 * frequency_hz[-1])) - 1, 0)
-    rise = max(float(gain_db[edge] - gain_db[inner]), 0.0)
-    margin = float(slack[edge])
-    founded = margin > rise + EDGE_MARGIN_DB
-    where = format_frequency(frequency_hz[edge])
-    note = (
-        f"At {where} the port's return loss"
-        + (
-            f" exceeds the gain by {margin:.1f} dB"
-            if margin >= 0
-            else f" falls {-margin:.1f} dB short of the gain"
-        )
-        + " and the gain"
-        f" rises by {rise:.1f} dB towards the edge over the outermost octave"
-        + ("." if founded else ": the bound cannot be carried beyond the sweep.")
-    )
-    return EdgeBound(side, founded, margin, rise, note)
-
-
 @dataclass(frozen=True)
 class _Partial:
     frequency_hz: np.ndarray
     gain_db: np.ndarray
-    margin: float | None
-    edges: tuple[EdgeBound, ...]
+    required_db: np.ndarray
+    z0: float
+    bound: SmallGainBound | None
+    source: str | None
     nyquist: CheckResult | None
 
 
@@ -433,7 +398,7 @@ def _decide(partial: _Partial) -> tuple[str, str, list[str], list[str]]:
     worst = format_frequency(float(f[np.argmax(gain_db)]))
     if partial.nyquist is not None:
         return _decide_with_load(partial, peak, worst)
-    if partial.margin is None:
+    if partial.bound is None:
         return (
             "inconclusive",
             "none",
@@ -443,42 +408,13 @@ def _decide(partial: _Partial) -> tuple[str, str, list[str], list[str]]:
             ],
             ["State the port's return loss (--port-return-loss) or give its file (--load)."],
         )
-    if partial.margin <= 0.0:
-        return (
-            "not-guaranteed",
-            "small-gain",
-            [
-                f"The small-gain bound fails: the port's return loss falls short of the gain by"
-                f" {-partial.margin:.1f} dB. It may or may not oscillate, depending on the port's"
-                " phase; the bound no longer guarantees anything."
-            ],
-            [
-                f"Use a port with at least {peak:.1f} dB return loss (plus margin), or check with"
-                " the actual port file (--load)."
-            ],
-        )
-    unfounded = [edge for edge in partial.edges if not edge.founded]
-    if unfounded:
-        return (
-            "inconclusive",
-            "small-gain",
-            [
-                "The small-gain bound holds across the sweep with"
-                f" {partial.margin:.1f} dB to spare, but not clearly beyond it:",
-                *[edge.note for edge in unfounded],
-            ],
-            ["Extend the sweep until the gain has fallen well below the port's return loss."],
-        )
-    port = "any passive port" if peak < 0.0 else "the stated port match"
-    return (
-        "stable",
-        "small-gain",
-        [
-            f"Guaranteed stable for {port}: |gamma_device * gamma_port| < 1 at every"
-            f" frequency, with {partial.margin:.1f} dB to spare (small-gain bound)."
-        ],
-        [],
+    what = (
+        "any passive port (the device has no gain)"
+        if partial.source == "any-passive-port"
+        else "the stated port match"
     )
+    reasons, steps = bound_words(partial.bound, partial.required_db, f, partial.z0, what)
+    return partial.bound.verdict, "small-gain", reasons, steps
 
 
 def _decide_with_load(
@@ -487,10 +423,11 @@ def _decide_with_load(
     nyquist = partial.nyquist
     assert nyquist is not None
     reasons = list(nyquist.reasons)
-    guaranteed = partial.margin is not None and partial.margin > 0
-    if guaranteed:
+    bound = partial.bound
+    if bound is not None and bound.guaranteed:
         reasons.append(
-            f"The small-gain bound also holds with this port ({partial.margin:.1f} dB to spare)."
+            f"The small-gain bound also holds with this port ({bound.margin_db:.1f} dB beyond"
+            " the data's scatter)."
         )
     else:
         reasons.append(
@@ -499,21 +436,11 @@ def _decide_with_load(
             " the same part may not behave the same."
         )
     steps = list(nyquist.next_steps)
-    if not guaranteed:
+    if bound is None or not bound.guaranteed:
         steps.append(
             f"For a guarantee, the port needs at least {peak:.1f} dB return loss at {worst}."
         )
     return nyquist.verdict, "nyquist", reasons, steps
-
-
-def _premise(z0: float, frequency_hz: np.ndarray) -> str:
-    band = f"{format_frequency(frequency_hz[0])} to {format_frequency(frequency_hz[-1])}"
-    return (
-        f"The small-gain bound proves stability only if the device is stable terminated in"
-        f" {z0:g} ohm (as a device measured on a VNA without oscillating is) and the port's"
-        f" match holds at every frequency, in and out of band; it is checked over {band}."
-        " It is a small-signal result."
-    )
 
 
 def _bands(frequency_hz: np.ndarray, gain_db: np.ndarray, threshold: float) -> list[GainBand]:

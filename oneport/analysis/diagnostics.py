@@ -8,6 +8,9 @@ interpolation (a coarse load put on a fine device grid looks smooth and is not):
   Im Z of a passive load jumping from large positive to large negative between two samples
   means a pole of Z (a parallel resonance) lies between them; the same on Im Y means a zero of
   Z (a series resonance). A pole–zero pair between two samples is invisible to both.
+- An isolated jump: across a resistive network a resonance shows no clean reactive sign change,
+  only one step of Γ far larger than the steps of its neighbours (compared with a robust local
+  median of them, and with the data's noise).
 - The finest loaded Q a grid resolves is about f / (2 Δf).
 
 Pure computation on arrays; no verdicts, no printing.
@@ -16,6 +19,7 @@ Pure computation on arrays; no verdicts, no printing.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -25,14 +29,27 @@ FOSTER_JUMP_THRESHOLD = 0.1
 #: ... and at both samples the reactance must be this many times the resistance (the samples
 #: lie outside the resonance's half-power band, so the resonance is narrower than the step).
 FOSTER_REACTIVE_RATIO = 3.0
+#: A step of Γ counts as an isolated jump when it exceeds this many times the median of its
+#: neighbours' steps: a resonance whose loaded Q is about 1.3 times the finest the grid resolves
+#: (f/(2Δf)) already gives 5; one the grid resolves gives under 4 (its neighbours move too).
+JUMP_RATIO = 5.0
+#: Neighbouring steps on each side that the median takes.
+JUMP_NEIGHBOURS = 3
+#: ... and when it exceeds this many times the scatter of Γ (noise alone almost never does).
+JUMP_NOISE_FACTOR = 6.0
+#: ... and this absolute size (|ΔΓ|): rounding wiggles of a flat computed trace are no sign.
+JUMP_FLOOR = 1e-6
 
 
 @dataclass(frozen=True)
 class HiddenResonance:
-    """A sample interval of a passive one-port that Foster's theorem says holds a resonance."""
+    """A sample interval of a passive one-port where something sharp lies between the samples:
+    Foster's theorem says a resonance is there, or Γ jumps far more than around it."""
 
     source: str
-    kind: str  # "parallel" (pole of Z, seen on Im Z) or "series" (zero of Z, seen on Im Y)
+    #: "parallel" (pole of Z, seen on Im Z), "series" (zero of Z, seen on Im Y), or "jump" (an
+    #: isolated step of Γ far larger than its neighbours')
+    kind: str
     start_hz: float
     stop_hz: float
 
@@ -100,6 +117,70 @@ def _reactive_jump(gamma: np.ndarray, parallel: np.ndarray) -> np.ndarray:
     return (imaginary > FOSTER_JUMP_THRESHOLD) & (imaginary >= FOSTER_REACTIVE_RATIO * real)
 
 
+def jump_indices(gamma: np.ndarray, noise: Any = 0.0) -> tuple[np.ndarray, ...]:
+    """Sample intervals where Γ jumps far more than its neighbours do, as sparse indices.
+
+    ``gamma`` has shape (..., n); ``noise`` (the scatter of Γ, as
+    :func:`oneport.analysis.nyquist.estimate_noise` gives it) broadcasts to the leading shape.
+    Returns index arrays of the intervals, as ``numpy.nonzero`` on shape (..., n − 1).
+
+    An interval's step |Γ[i+1] − Γ[i]| is a jump when it exceeds ``JUMP_RATIO`` times the
+    median of the ``2·JUMP_NEIGHBOURS`` nearest other steps (one-sided at the grid's ends),
+    ``JUMP_NOISE_FACTOR`` times the noise and ``JUMP_FLOOR``. The median of the others is read
+    from the sorted window of seven steps with the interval's own: a step more than twice that
+    median sits in the window's upper half, so the others' median is the mean of the window's
+    third and fourth smallest. Grids of fewer than eight points give none.
+    """
+    gamma = np.asarray(gamma, dtype=complex)
+    count = gamma.shape[-1] - 1
+    width = 2 * JUMP_NEIGHBOURS + 1
+    if count < width:
+        return tuple(np.zeros(0, dtype=np.intp) for _ in range(gamma.ndim))
+    steps = np.abs(np.diff(gamma, axis=-1))
+    floor = np.maximum(JUMP_NOISE_FACTOR * np.asarray(noise, dtype=float), JUMP_FLOOR)
+    # A cheap necessary condition first: three of the six others lie below twice their median,
+    # so a jump exceeds JUMP_RATIO/2 times the smallest of its neighbours within three steps
+    # (the intervals at the grid's ends, whose windows are one-sided, are always examined).
+    nearest = np.full(steps.shape, np.inf)
+    for shift in range(1, JUMP_NEIGHBOURS + 1):
+        np.minimum(nearest[..., shift:], steps[..., :-shift], out=nearest[..., shift:])
+        np.minimum(nearest[..., :-shift], steps[..., shift:], out=nearest[..., :-shift])
+    candidate = (steps > 0.5 * JUMP_RATIO * nearest) & (steps > np.expand_dims(floor, -1))
+    candidate[..., :JUMP_NEIGHBOURS] = True
+    candidate[..., -JUMP_NEIGHBOURS:] = True
+    index = np.nonzero(candidate)
+    position = index[-1]
+    starts = np.clip(position - JUMP_NEIGHBOURS, 0, count - width)
+    windows = steps[(*(i[:, None] for i in index[:-1]), starts[:, None] + np.arange(width))]
+    lowest = np.partition(windows, JUMP_NEIGHBOURS, axis=-1)
+    median = 0.5 * (np.max(lowest[..., :JUMP_NEIGHBOURS], axis=-1) + lowest[..., JUMP_NEIGHBOURS])
+    step = steps[index]
+    limit = np.broadcast_to(floor, steps.shape[:-1])[index[:-1]] if steps.ndim > 1 else floor
+    jump = (step > JUMP_RATIO * median) & (step > limit)
+    return tuple(i[jump] for i in index)
+
+
+def hidden_features(
+    frequency_hz: np.ndarray,
+    gamma: np.ndarray,
+    reference_impedance_ohm: float,
+    source: str,
+    noise: float = 0.0,
+) -> list[HiddenResonance]:
+    """Every sample interval of a passive one-port where something sharp may hide: Foster
+    violations (:func:`foster_violations`) and isolated jumps (:func:`jump_indices`), in
+    frequency order (an interval both tests flag is listed once, as Foster's)."""
+    found = {
+        (r.start_hz, r.stop_hz): r
+        for r in foster_violations(frequency_hz, gamma, reference_impedance_ohm, source)
+    }
+    (index,) = jump_indices(gamma, noise)
+    for i in index.tolist():
+        interval = (float(frequency_hz[i]), float(frequency_hz[i + 1]))
+        found.setdefault(interval, HiddenResonance(source, "jump", *interval))
+    return [found[key] for key in sorted(found)]
+
+
 def foster_violations(
     frequency_hz: np.ndarray, gamma: np.ndarray, reference_impedance_ohm: float, source: str
 ) -> list[HiddenResonance]:
@@ -138,22 +219,25 @@ def foster_violations(
 
 def grid_resolution(
     frequency_hz: np.ndarray, source: str, where: np.ndarray | None = None
-) -> GridResolution:
+) -> GridResolution | None:
     """The finest loaded Q the grid resolves, f / (2Δf), at its coarsest sample interval.
 
     ``where`` (frequency pairs [low, high] as an array of shape (k, 2)) limits the search to the
-    stretches that matter — for the check, where the device has |Γd| ≥ 1 inside the analysed
-    band, since a hidden resonance elsewhere cannot reach +1 with a passive load. Without it,
-    or when no interval falls inside, the whole grid counts.
+    sample intervals that overlap those stretches — for the check, where the device has
+    |Γd| ≥ 1, since a hidden resonance elsewhere cannot reach +1 with a passive load. None when
+    no interval overlaps them (or the grid has fewer than two points).
     """
+    if frequency_hz.size < 2:
+        return None
     steps = np.diff(frequency_hz)
     centres = 0.5 * (frequency_hz[:-1] + frequency_hz[1:])
     q = centres / (2.0 * steps)
-    if where is not None and len(where):
+    if where is not None:
         inside = np.zeros(centres.shape, dtype=bool)
-        for low, high in where:
-            inside |= (centres >= low) & (centres <= high)
-        if inside.any():
-            q = np.where(inside, q, np.inf)
+        for low, high in np.reshape(where, (-1, 2)):
+            inside |= (frequency_hz[:-1] <= high) & (frequency_hz[1:] >= low)
+        if not inside.any():
+            return None
+        q = np.where(inside, q, np.inf)
     index = int(np.argmin(q))
     return GridResolution(source, float(q[index]), float(centres[index]), float(steps[index]))

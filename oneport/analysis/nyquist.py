@@ -14,6 +14,7 @@ axis beyond +1 outside the sweep. Where that assumption is not founded the count
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Any
 
@@ -24,19 +25,30 @@ import numpy as np
 UNSAFE_PHASE_STEP_RAD = np.deg2rad(120.0)
 #: Above this step (rad) unwrapping still works but the grid is coarse: a warning.
 COARSE_PHASE_STEP_RAD = np.deg2rad(45.0)
-#: The edge closure is founded by settling when L's motion per octave at the edge, and its
+#: The low edge closure is founded by settling when L's motion per octave at the edge, and its
 #: distance from the real axis, stay below this fraction of |F| there.
 SETTLED_FRACTION = 0.5
+#: |L| < 1 founds an edge only by more than this many times the data's scatter there ...
+NOISE_MARGIN = 3.0
+#: ... estimated from the differences of these orders over this many samples at the edge
+#: (:func:`estimate_noise`: higher orders keep a smooth, finely sampled trace from passing for
+#: noise).
+EDGE_NOISE_SAMPLES = 16
+EDGE_NOISE_ORDERS = (2, 3, 4, 5)
 
 
 @dataclass(frozen=True)
 class EdgeClosure:
     """How the sampled band is closed towards DC (``side="low"``) or infinity (``"high"``).
 
-    ``basis`` is ``"dc-sample"`` (the data include 0 Hz), ``"loop-gain-below-unity"``
-    (|L| < 1 at the edge), ``"settled"`` (L has stopped moving, far from +1) or
-    ``"not-founded"``. ``sign_at_limit`` is the sign of the real F(0) or F(∞) the closure implies
-    (0 when not founded). ``motion`` is |ΔL| per octave over the outermost octave.
+    ``basis`` is one of :data:`CLOSURE_BASES`: ``"dc-sample"`` (the data include 0 Hz),
+    ``"loop-gain-below-unity"`` (|L| < 1 at the edge by more than ``margin``), ``"settled"``
+    (towards DC only: L has stopped moving, far from +1), ``"dc-resistances"`` (DC facts),
+    ``"netlist-limit"`` (towards infinity, both sides lumped netlists evaluated beyond every
+    natural frequency), or ``"not-founded"``. ``sign_at_limit`` is the sign of the real F(0) or
+    F(∞) the closure implies (0 when not founded). ``motion`` is |ΔL| per octave over the
+    outermost octave; ``margin`` what |L| had to stay below 1 by (the data's scatter there
+    times ``NOISE_MARGIN`` plus the stated |Γ| errors' worst effect).
     """
 
     side: str
@@ -45,6 +57,7 @@ class EdgeClosure:
     loop_gain_at_edge: complex
     motion: float
     extend_to_hz: float | None
+    margin: float = 0.0
 
     @property
     def founded(self) -> bool:
@@ -190,8 +203,16 @@ def _reference_angle(sign: np.ndarray, imaginary: np.ndarray) -> np.ndarray:
     return np.where(np.asarray(sign) < 0, side * np.pi, 0.0)
 
 
-#: Closure bases by code, as :func:`close_edges` returns them.
-CLOSURE_BASES = ("not-founded", "dc-sample", "loop-gain-below-unity", "settled")
+#: Closure bases by code, as :func:`close_edges` (codes 0–3) and the judgement (4, 5) give them.
+CLOSURE_BASES = (
+    "not-founded",
+    "dc-sample",
+    "loop-gain-below-unity",
+    "settled",
+    "dc-resistances",
+    "netlist-limit",
+)
+NOT_FOUNDED, DC_SAMPLE, BELOW_UNITY, SETTLED, DC_RESISTANCES, NETLIST_LIMIT = range(6)
 
 
 @dataclass(frozen=True)
@@ -201,26 +222,36 @@ class EdgeClosures:
     basis_code: np.ndarray  # index into CLOSURE_BASES
     sign_at_limit: np.ndarray  # +1, −1, or 0 when not founded
     motion: np.ndarray
+    margin: np.ndarray
+    edge_loop_gain: np.ndarray  # the larger of |L| at the edge sample and its five-point median
 
     @property
     def founded(self) -> np.ndarray:
         """True where the closing assumption has a basis in the data."""
-        return self.basis_code != 0
+        return self.basis_code != NOT_FOUNDED
 
 
-def close_edges(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> EdgeClosures:
+def close_edges(
+    frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str, uncertainty: Any = 0.0
+) -> EdgeClosures:
     """Decide, for every loop gain at once, whether its band closes towards DC or infinity.
 
-    ``loop_gain`` has shape (..., n); the result arrays have shape (...). The rules:
+    ``loop_gain`` has shape (..., n); ``uncertainty`` (the worst change of L at the edge that
+    stated |Γ| errors allow) broadcasts to the leading shape; the result arrays have shape
+    (...). The rules (METHODS §2):
 
     - ``dc-sample``: the low edge is 0 Hz; F(0) takes the sign of Re F there.
-    - ``loop-gain-below-unity``: |L| < 1 at the edge sample and in a five-point median there.
-    - ``settled``: L has stopped moving far from +1 — its motion per octave over the outermost
-      octave of the sweep (or the whole of a narrower one), and F's distance from the real
-      axis, are both below ``SETTLED_FRACTION`` of |F| at the edge (medians, so measurement
-      noise does not pass for motion). Near DC a settled L moves by less over the rest of the
-      way to 0 Hz than over its first octave, so the estimate errs on the safe side. F at the
-      limit takes the sign of Re F at the edge.
+    - ``loop-gain-below-unity``: |L| at the edge sample and in a five-point median there stays
+      below 1 by more than ``NOISE_MARGIN`` times the data's scatter over the outermost
+      ``EDGE_NOISE_SAMPLES`` samples plus ``uncertainty``. F at the limit is positive.
+    - ``settled`` (towards DC only): L has stopped moving far from +1 — its motion per octave
+      over the outermost octave of the sweep (or the whole of a narrower one), and F's distance
+      from the real axis, are both below ``SETTLED_FRACTION`` of |F| at the edge (medians, so
+      measurement noise does not pass for motion). A lumped circuit tends to its DC values, and
+      near DC a settled L moves by less over the rest of the way to 0 Hz than over its first
+      octave. F at the limit takes the sign of Re F at the edge. Towards infinity nothing
+      settles for sure: above a sweep, parasitics and the load's resonances are unknown, and a
+      truncated file looks settled at its last points.
     - otherwise ``not-founded``.
     """
     loop_gain = np.asarray(loop_gain, dtype=complex)
@@ -228,38 +259,63 @@ def close_edges(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> E
     edge_value = loop_gain[..., edge]
     smoothed_edge = _smoothed(loop_gain, edge)
     motion = motion_per_octave(frequency_hz, loop_gain, side)
+    window = slice(0, EDGE_NOISE_SAMPLES) if side == "low" else slice(-EDGE_NOISE_SAMPLES, None)
+    scatter = estimate_noise(loop_gain[..., window], EDGE_NOISE_ORDERS)
+    margin = NOISE_MARGIN * scatter + np.asarray(uncertainty)
     f_edge = 1.0 - smoothed_edge
-    below_unity = (np.abs(smoothed_edge) < 1.0) & (np.abs(edge_value) < 1.0)
-    spread = np.maximum(motion, np.abs(f_edge.imag))
-    settled = spread < SETTLED_FRACTION * np.abs(f_edge)
+    largest = np.maximum(np.abs(smoothed_edge), np.abs(edge_value))
+    below_unity = largest + margin < 1.0
+    settled = np.zeros(below_unity.shape, dtype=bool)
+    if side == "low":
+        spread = np.maximum(motion, np.abs(f_edge.imag))
+        settled = spread < SETTLED_FRACTION * np.abs(f_edge)
     sign_of_real = np.where(f_edge.real > 0, 1, -1)
-    code = np.where(below_unity, 2, np.where(settled, 3, 0))
+    code = np.where(below_unity, BELOW_UNITY, np.where(settled, SETTLED, NOT_FOUNDED))
     sign = np.where(below_unity, 1, np.where(settled, sign_of_real, 0))
     if side == "low" and frequency_hz[0] == 0.0:
-        code = np.ones_like(code)
+        code = np.full_like(code, DC_SAMPLE)
         sign = np.where((1.0 - edge_value).real > 0, 1, -1)
         motion = np.zeros_like(motion)
-    return EdgeClosures(code, sign, motion)
+    margin = np.broadcast_to(margin, code.shape)
+    return EdgeClosures(code, sign, motion, margin, largest)
 
 
-def close_edge(frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str) -> EdgeClosure:
+def close_edge(
+    frequency_hz: np.ndarray, loop_gain: np.ndarray, side: str, uncertainty: float = 0.0
+) -> EdgeClosure:
     """The closure of one loop gain's edge (:func:`close_edges` for a single trace)."""
-    closures = close_edges(frequency_hz, loop_gain, side)
+    closures = close_edges(frequency_hz, loop_gain, side, uncertainty)
+    return edge_closure(frequency_hz, loop_gain, side, closures, ())
+
+
+def edge_closure(
+    frequency_hz: np.ndarray,
+    loop_gain: np.ndarray,
+    side: str,
+    closures: EdgeClosures,
+    index: tuple[int, ...],
+    basis_code: int | None = None,
+    sign: int | None = None,
+) -> EdgeClosure:
+    """One variant's :class:`EdgeClosure` (``index`` into the closures' leading shape),
+    with the basis and sign the judgement settled on when they differ from the data's."""
     n = frequency_hz.size
     edge = 0 if side == "low" else n - 1
-    basis = CLOSURE_BASES[int(closures.basis_code)]
+    code = int(closures.basis_code[index]) if basis_code is None else basis_code
+    basis = CLOSURE_BASES[code]
     extend = None
     if basis == "not-founded":
         count = min(n, max(4, n // 20))
         outer = slice(0, count) if side == "low" else slice(n - count, n)
-        extend = _extend_to(frequency_hz[outer], loop_gain[outer], frequency_hz[edge], side)
+        extend = extend_to(frequency_hz[outer], loop_gain[outer], frequency_hz[edge], side)
     return EdgeClosure(
         side,
         basis,
-        int(closures.sign_at_limit),
+        int(closures.sign_at_limit[index]) if sign is None else sign,
         complex(loop_gain[edge]),
-        float(closures.motion),
+        float(closures.motion[index]),
         extend,
+        float(closures.margin[index]),
     )
 
 
@@ -301,13 +357,15 @@ def _octave_ends(frequency_hz: np.ndarray, side: str) -> tuple[int, int]:
 def closure_columns(frequency_hz: np.ndarray) -> np.ndarray:
     """The sample indices :func:`close_edges` reads, at both edges, ascending.
 
-    They are the five-sample windows (:func:`_smoothed`) around each edge sample and around the
-    inner end of its outermost octave, so ``close_edges(frequency_hz[c], loop_gain[..., c],
-    side)`` equals ``close_edges(frequency_hz, loop_gain, side)``: a sweep computes L at these
-    few columns for the closures instead of keeping every sample.
+    They are the outermost ``EDGE_NOISE_SAMPLES`` at each edge (for the scatter) and the
+    five-sample windows (:func:`_smoothed`) around the inner end of each outermost octave, so
+    ``close_edges(frequency_hz[c], loop_gain[..., c], side)`` equals
+    ``close_edges(frequency_hz, loop_gain, side)``: a sweep computes L at these few columns for
+    the closures instead of keeping every sample.
     """
     count = frequency_hz.size
-    columns: set[int] = set()
+    columns: set[int] = set(range(min(count, EDGE_NOISE_SAMPLES)))
+    columns.update(range(max(0, count - EDGE_NOISE_SAMPLES), count))
     for side in ("low", "high"):
         for centre in _octave_ends(frequency_hz, side):
             columns.update(
@@ -316,17 +374,44 @@ def closure_columns(frequency_hz: np.ndarray) -> np.ndarray:
     return np.array(sorted(columns), dtype=np.intp)
 
 
-def _extend_to(f: np.ndarray, values: np.ndarray, edge_frequency: float, side: str) -> float:
-    """Where to extend the sweep so the edge would likely close: a decade, or where |L| < 1."""
+def extend_to(f: np.ndarray, values: np.ndarray, edge_frequency: float, side: str) -> float:
+    """Where to extend the sweep so the edge would likely close, rounded to a plain figure.
+
+    Down: a decade below the edge. Up: where the loop gain's slope (dB per octave over the
+    outermost samples) would bring |L| to −3 dB, at least half an octave and at most about
+    100 times beyond the edge; ten times the edge when |L| is not falling.
+    """
     if side == "low":
-        return edge_frequency / 10.0
+        return round_frequency(edge_frequency / 10.0, down=True)
     decibels = 20.0 * np.log10(np.maximum(np.abs(values), 1e-300))
     octaves = np.log2(f)
     slope_per_octave = np.polyfit(octaves, decibels, 1)[0] if np.ptp(octaves) > 0 else 0.0
+    target = edge_frequency * 10.0
     if slope_per_octave < -1e-3:
         needed_octaves = (decibels[-1] + 3.0) / -slope_per_octave
-        return float(edge_frequency * 2.0 ** min(max(needed_octaves, 0.5), 6.6))
-    return edge_frequency * 10.0
+        target = float(edge_frequency * 2.0 ** min(max(needed_octaves, 0.5), 6.6))
+    return round_frequency(target)
+
+
+#: Plain mantissas a suggested frequency is rounded to.
+_PLAIN_MANTISSAS = (1.0, 1.5, 2.0, 3.0, 5.0, 7.0, 10.0)
+
+
+def round_frequency(frequency_hz: float, down: bool = False) -> float:
+    """``frequency_hz`` rounded up (or down) to 1, 1.5, 2, 3, 5 or 7 times a power of ten.
+
+    >>> round_frequency(4.37e9), round_frequency(4.37e9, down=True)
+    (5000000000.0, 3000000000.0)
+    """
+    if not frequency_hz > 0:
+        return float(frequency_hz)
+    decade = 10.0 ** np.floor(np.log10(frequency_hz))
+    mantissa = frequency_hz / decade
+    if down:
+        chosen = max(m for m in _PLAIN_MANTISSAS if m <= mantissa * (1 + 1e-12))
+    else:
+        chosen = min(m for m in _PLAIN_MANTISSAS if m >= mantissa * (1 - 1e-12))
+    return float(chosen * decade)
 
 
 def find_crossings(
@@ -343,6 +428,8 @@ def find_crossings(
     crossings = []
     for index in np.flatnonzero(upward | downward):
         a, b = imaginary[index], imaginary[index + 1]
+        if frequency_hz[index] == 0.0 and a == 0.0:
+            continue  # the contour meets its mirror image at 0 Hz: F(0)'s sign closes it
         t = a / (a - b)
         value = complex(loop_gain[index] + t * (loop_gain[index + 1] - loop_gain[index]))
         if value.real <= 1.0:
@@ -464,20 +551,30 @@ def find_margins(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> Margins:
     )
 
 
-def estimate_noise(loop_gain: np.ndarray) -> Any:
-    """Standard deviation of the point-to-point scatter of L (robust, from second differences).
+def estimate_noise(loop_gain: np.ndarray, orders: tuple[int, ...] = (2,)) -> Any:
+    """Standard deviation of the point-to-point scatter of L (robust, from its differences).
 
     A float for one trace, an array of the leading shape for several.
 
-    For white noise of σ on each sample, the second difference has σ·√6; the median absolute
-    value keeps real curvature (a resonance) from inflating the estimate.
+    For white noise of σ on each sample, the k-th difference has σ·√C(2k, k) (√6 for the
+    second); the median absolute value keeps real curvature (a resonance) from inflating the
+    estimate. With several ``orders`` the smallest estimate is taken: white noise gives them all
+    alike, while a smooth curve's higher differences shrink fast, so a finely sampled smooth
+    trace is not mistaken for a noisy one.
     """
     loop_gain = np.asarray(loop_gain)
-    if loop_gain.shape[-1] < 3:
+    estimates = []
+    for order in orders:
+        if loop_gain.shape[-1] <= order:
+            continue
+        difference = np.diff(loop_gain, n=order, axis=-1)
+        # For complex Gaussian noise |difference| is Rayleigh; its median is σ_c·sqrt(ln 4) where
+        # σ_c is the per-component deviation times sqrt(C(2k, k)). Report the complex (total)
+        # deviation of L.
+        spread = np.sqrt(math.comb(2 * order, order))
+        per_component = np.median(np.abs(difference), axis=-1) / np.sqrt(np.log(4.0)) / spread
+        estimates.append(per_component * np.sqrt(2.0))
+    if not estimates:
         return 0.0 if loop_gain.ndim == 1 else np.zeros(loop_gain.shape[:-1])
-    second = np.diff(loop_gain, n=2, axis=-1)
-    # For complex Gaussian noise |second| is Rayleigh; its median is σ_c·sqrt(ln 4) where σ_c is
-    # the per-component deviation times sqrt(6). Report the complex (total) deviation of L.
-    per_component = np.median(np.abs(second), axis=-1) / np.sqrt(np.log(4.0)) / np.sqrt(6.0)
-    total = per_component * np.sqrt(2.0)
+    total = np.min(estimates, axis=0)
     return float(total) if np.ndim(total) == 0 else total

@@ -26,10 +26,13 @@ from ..reading.records import InputRecord
 from ..units import format_frequency
 from .rational import DEFAULT_MAX_ORDER, FitSet, RationalModel, fit_with_variants, validated_samples
 
-POLES_SCHEMA = "oneport.poles/1"
-#: Two roots of different fits match when closer than this times max(|s|, 0.1·ω_max).
+POLES_SCHEMA = "oneport.poles/2"
+#: Two roots of different fits match when closer than this times the root's scale,
+#: max(|s|, ω_low), ω_low = 2π times the band's lowest frequency (at least 1e-4 of its highest).
 DEFAULT_MATCH_TOLERANCE = 0.03
-#: A root closer than this times max(|s|, 0.1·ω_max) to a pole (or zero) is nearly cancelled.
+#: A root closer than this times its scale to a pole (or zero) is nearly cancelled. The scale is
+#: the root's own: a real root at 0.3e9 /s is not "near" a pole 3e8 /s away because the band
+#: happens to reach 100 GHz.
 DEFAULT_CANCELLATION_TOLERANCE = 0.01
 #: Roots whose frequency lies beyond the band by more than this fraction of its width, or whose
 #: |σ|/2π exceeds the width, are extrapolations.
@@ -119,6 +122,12 @@ class PoleZeroResult:
         RMS of |F − model| over the data (F is dimensionless).
     nyquist_encirclements : int or None
         The Nyquist count it was compared with (:func:`with_count_check`), if any.
+    fit_verdict : str or None
+        The fit's own verdict when :func:`with_count_check` was given the check: ``verdict`` is
+        then the one judgement's (the count's), and the reasons say whether the fit agrees, and
+        if not which to believe and why.
+    device_character : DeviceCharacter or None
+        The device's character, when asked for.
     frequency_hz, characteristic : ndarray
         The fitted data; ``model`` the fitted rational function.
     """
@@ -143,6 +152,8 @@ class PoleZeroResult:
     characteristic: np.ndarray = field(repr=False)
     model: RationalModel = field(repr=False)
     nyquist_encirclements: int | None = None
+    fit_verdict: str | None = None
+    device_character: Any = None
 
     @property
     def trusted_rhp_count(self) -> int:
@@ -185,6 +196,7 @@ class PoleZeroResult:
                 ],
             },
             "nyquist_encirclements": self.nyquist_encirclements,
+            "fit_verdict": self.verdict if self.fit_verdict is None else self.fit_verdict,
             "warnings": [w.to_dict() for w in self.warnings],
             "cautions": list(self.cautions),
             "inputs": _inputs_json(self.inputs, self.frequency_hz),
@@ -198,6 +210,8 @@ class PoleZeroResult:
                 "characteristic": _complex_list(self.characteristic),
                 "model": _complex_list(self.model.evaluate(2j * np.pi * self.frequency_hz)),
             }
+        if self.device_character is not None:
+            data["device_character"] = self.device_character.to_dict()
         return data
 
 
@@ -239,7 +253,7 @@ def assess_roots(
     """
     rules = rules or TrustRules()
     low, high = fits.frequency_range_hz
-    scale = 0.1 * 2.0 * np.pi * high
+    scale = 2.0 * np.pi * max(low, 1e-4 * high)
     primary = _upper_half(roots_of(fits.primary), high)
     opposite = opposite_of(fits.primary)
     variant_roots = [(variant.kind, roots_of(variant.model)) for variant in fits.variants]
@@ -556,14 +570,72 @@ def compare_with_count(pole_result: PoleZeroResult, encirclements: int | None) -
     ]
 
 
-def with_count_check(pole_result: PoleZeroResult, encirclements: int | None) -> PoleZeroResult:
-    """The result with the Nyquist count recorded and :func:`compare_with_count`'s warnings."""
+def with_count_check(pole_result: PoleZeroResult, count: Any) -> PoleZeroResult:
+    """The fit beside the count: the Nyquist count recorded, with :func:`compare_with_count`'s
+    warnings.
+
+    ``count`` is the check (:class:`~oneport.analysis.result.CheckResult`) of the same pair, or
+    only its ``encirclements`` (int or None). Given the check, the result's ``verdict`` becomes
+    the check's — one judgement behind every command — with the fit's own kept as
+    ``fit_verdict``, and the reasons open with the count and say whether the fit agrees, and
+    where it does not, which to believe and why: the count, with its stated assumptions, unless
+    it is inconclusive.
+    """
+    check = None if count is None or isinstance(count, int | np.integer) else count
+    encirclements = count if check is None else check.encirclements
     extra = tuple(compare_with_count(pole_result, encirclements))
-    return replace(
+    result = replace(
         pole_result,
         nyquist_encirclements=encirclements,
         warnings=pole_result.warnings + extra,
     )
+    if check is None:
+        return result
+    return replace(
+        result,
+        verdict=check.verdict,
+        fit_verdict=pole_result.verdict,
+        reasons=(*_count_and_fit(pole_result, check, extra), *pole_result.reasons),
+    )
+
+
+def _count_and_fit(fit: PoleZeroResult, check: Any, disagreement: tuple[Finding, ...]) -> list[str]:
+    """The count's answer, and the fit's against it in one plain sentence."""
+    count = check.encirclements
+    trusted = fit.trusted_rhp_count
+    modes = [m for m in in_reach(fit.natural_frequencies) if m.rhp and m.trusted]
+    listed = "; ".join(_describe(m) for m in modes)
+    if count is None:
+        first = (
+            "The Nyquist count cannot decide on these data (see oneport check's reasons: "
+            + " ".join(check.reasons[:1])
+            + ")"
+        )
+        if modes:
+            return [
+                first + ".",
+                f"The fit finds {trusted} trusted right-half-plane natural frequency(ies)"
+                f" ({listed}): treat the circuit as unstable until a wider or finer sweep lets"
+                " the count decide. The fit cannot show stability beyond its band either.",
+            ]
+        return [
+            first + ".",
+            "The fit finds no trusted right-half-plane natural frequency within reach of the"
+            " band, which shows nothing about what lies outside it: the verdict stays open.",
+        ]
+    first = f"The Nyquist count gives Z = {count} ({check.verdict})."
+    if not disagreement:
+        agree = f"The fit agrees: {trusted} trusted right-half-plane natural frequency(ies)" + (
+            f" ({listed})." if listed else "."
+        )
+        return [first, agree]
+    return [
+        first,
+        f"The fit's trusted right-half-plane zeros ({trusted}) disagree with it. Believe the"
+        " count: it rests only on the premise and the closures it states, while the fit can"
+        " miss or invent roots (order, band edges, noise, near cancellations); see the"
+        " warning for the likely cause.",
+    ]
 
 
 def _likely_reasons(result: PoleZeroResult, encirclements: int) -> list[str]:

@@ -1,7 +1,7 @@
 """The frozen result of a stability check, and its JSON form.
 
 Results carry the arrays they were computed from; ``to_dict()`` gives the JSON object of the
-``oneport.check/1`` schema (docs/json-check.md) with arrays only on request. Nothing here
+``oneport.check/2`` schema (docs/json-check.md) with arrays only on request. Nothing here
 computes an analysis or renders text.
 """
 
@@ -18,7 +18,7 @@ from .diagnostics import GridResolution, HiddenResonance
 from .nyquist import Band, Crossing, EdgeClosure, Margins
 from .startup import StartupEstimate
 
-CHECK_SCHEMA = "oneport.check/1"
+CHECK_SCHEMA = "oneport.check/2"
 VERDICTS = ("stable", "unstable", "inconclusive")
 
 
@@ -74,6 +74,9 @@ class CheckResult:
         How the band was closed towards DC and towards infinity.
     frequency_hz, gamma_device, gamma_load, loop_gain : ndarray
         The analysed arrays (Hz; complex, referred to ``reference_impedance_ohm``).
+    natural_frequencies : tuple of complex
+        When both sides are lumped netlists: the joined circuit's natural frequencies s (1/s),
+        exact (generalized eigenvalues of its nodal equations); empty otherwise.
     """
 
     verdict: str
@@ -91,7 +94,7 @@ class CheckResult:
     noise_estimate: float
     uncertainty: Uncertainty
     hidden_resonances: tuple[HiddenResonance, ...]
-    grid_resolution: tuple[GridResolution, GridResolution]
+    grid_resolution: tuple[GridResolution, ...]
     startup_estimates: tuple[StartupEstimate, ...]
     warnings: tuple[Finding, ...]
     cautions: tuple[str, ...]
@@ -102,6 +105,7 @@ class CheckResult:
     gamma_device: np.ndarray = field(repr=False)
     gamma_load: np.ndarray = field(repr=False)
     loop_gain: np.ndarray = field(repr=False)
+    natural_frequencies: tuple[complex, ...] = ()
 
     @property
     def frequency_range_hz(self) -> tuple[float, float]:
@@ -129,7 +133,7 @@ class CheckResult:
         return drawers[kind](self, ax=ax, **options)
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
-        """The ``oneport.check/1`` JSON object (plain Python types only)."""
+        """The ``oneport.check/2`` JSON object (plain Python types only)."""
         z0 = self.reference_impedance_ohm
         data: dict[str, Any] = {
             "schema": CHECK_SCHEMA,
@@ -170,6 +174,9 @@ class CheckResult:
                 ],
             },
             "uncertainty": self.uncertainty.to_dict(),
+            "natural_frequencies": [
+                _natural(s) for s in self.natural_frequencies if s.imag >= -1e-9 * abs(s)
+            ],
             "startup_estimates": [_startup(e, z0) for e in self.startup_estimates],
             "warnings": [w.to_dict() for w in self.warnings],
             "cautions": list(self.cautions),
@@ -246,6 +253,19 @@ def _startup(estimate: StartupEstimate, z0: float) -> dict[str, Any]:
     }
 
 
+def _natural(root: complex) -> dict[str, Any]:
+    real = abs(root.imag) <= 1e-9 * abs(root)
+    return {
+        "frequency_hz": 0.0 if real else root.imag / (2.0 * np.pi),
+        "sigma_per_s": root.real,
+        "rhp": root.real > 0,
+        "trusted": True,
+        "real": real,
+        "multiplicity": 1 if real else 2,
+        "latch_up": real and root.real > 0,
+    }
+
+
 def _closure(closure: EdgeClosure) -> dict[str, Any]:
     return {
         "basis": closure.basis,
@@ -254,4 +274,5 @@ def _closure(closure: EdgeClosure) -> dict[str, Any]:
         "loop_gain_at_edge": complex_json(closure.loop_gain_at_edge),
         "extrapolated_motion": closure.motion,
         "extend_to_hz": closure.extend_to_hz,
+        "margin": closure.margin,
     }

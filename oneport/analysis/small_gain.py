@@ -1,15 +1,19 @@
-"""Worst-case loads: is the device stable into *every* passive load matched at least this well?
+"""The one small-gain rule: is a device stable into *every* passive load matched at least so well?
 
-The small-gain bound (METHODS §6): with no right-half-plane poles on either side, a load with
-|ΓL| ≤ ρ cannot make the loop encircle +1 if |Γd|·ρ < 1 at every frequency. So the load's
-required return loss at each frequency is 20·log10 |Γd| (0 dB, any passive load, where
-|Γd| ≤ 1), and the class "return loss ≥ RL" (ρ = 10^(−RL/20)) is guaranteed when the largest
-required return loss stays below RL. "Not guaranteed" is not "unstable": some load of the class
-might oscillate, not necessarily the one you will build.
+With no right-half-plane poles on either side, a load with |ΓL| ≤ ρ cannot make the loop encircle
++1 if |Γd|·ρ < 1 at every frequency (METHODS §6), so the load's required return loss at each
+frequency is 20·log10 |Γd| (0 dB, any passive load, where |Γd| ≤ 1). :func:`small_gain_bound`
+is the rule behind ``check --load-return-loss`` and ``amplifier --port-return-loss`` (and the
+amplifier's port file), with one set of words (CONVENTIONS.md): ``guaranteed``,
+``not-guaranteed`` (some load of the class could oscillate, not necessarily the one you build),
+``inconclusive`` (the bound holds, but not by more than the data's scatter and the stated |Γ|
+errors somewhere).
 
-The bound must hold outside the sweep as well; it is taken as founded at an edge where
-|Γd|·ρ ≤ 1/2 (half the bound), or where Γd has settled (|Γd|·ρ plus four octaves' worth of
-its motion there stays below 1); otherwise the answer is inconclusive.
+The bound must hold outside the sweep as well. As for the Nyquist closure (METHODS §2), it is
+founded beyond an edge only where it holds there by more than that scatter and error: |Γd|·ρ is
+the worst loop gain over the class, so this is the same test as |L| < 1 at the edge. The answer
+then rests on |Γd|·ρ staying below 1 beyond both edges, which the premise states; a constant
+device whose bound holds with margin at both edges is guaranteed.
 """
 
 from __future__ import annotations
@@ -29,10 +33,219 @@ from ..units import format_frequency
 from . import nyquist
 from .result import CHECK_SCHEMA, _band
 
-#: |Γd|·ρ at or below this at a sweep edge founds the bound beyond it.
-EDGE_FRACTION = 0.5
-#: Or Γd has settled: |Γd|·ρ plus this many octaves' worth of its edge motion stays below 1.
-SETTLED_MOTION_FACTOR = 4.0
+#: The verdict words of a guarantee over a class of loads (CONVENTIONS.md).
+BOUND_VERDICTS = ("guaranteed", "not-guaranteed", "inconclusive")
+
+
+@dataclass(frozen=True)
+class EdgeBound:
+    """Whether the small-gain bound is carried beyond one sweep edge, and by how much (dB)."""
+
+    side: str
+    founded: bool
+    margin_db: float | None
+    note: str
+
+
+@dataclass(frozen=True)
+class SmallGainBound:
+    """The small-gain rule applied to one device and one class of loads.
+
+    Attributes
+    ----------
+    verdict : str
+        One of :data:`BOUND_VERDICTS`.
+    worst_loop_gain : float
+        max over the band of |Γd|·ρ (the class's worst loop gain), at ``worst_frequency_hz``.
+    margin_db : float
+        min over the band of −20·log10((|Γd| + δd + 3σ)·ρ): how far the bound holds beyond the
+        data's scatter σ and the stated device error δd (negative: it does not), at
+        ``margin_frequency_hz``.
+    failing_bands : tuple of Band
+        Where |Γd|·ρ ≥ 1.
+    at_stake_ranges_hz : tuple of (float, float)
+        Where the bound holds on the data but not beyond scatter and error.
+    edges : (EdgeBound, EdgeBound)
+        The low and the high edge.
+    """
+
+    verdict: str
+    worst_loop_gain: float
+    worst_frequency_hz: float
+    margin_db: float
+    margin_frequency_hz: float
+    failing_bands: tuple[nyquist.Band, ...]
+    at_stake_ranges_hz: tuple[tuple[float, float], ...]
+    edges: tuple[EdgeBound, EdgeBound]
+    scatter: float
+
+    @property
+    def guaranteed(self) -> bool:
+        """True when every load of the class is stable with this device."""
+        return self.verdict == "guaranteed"
+
+
+def required_return_loss_db(gamma_device: np.ndarray) -> np.ndarray:
+    """Return loss a load needs for the small-gain bound: 20·log10 |Γd|, at least 0 dB.
+
+    Examples
+    --------
+    A pure −100 Ω in 50 Ω has |Γd| = (100 + 50)/(100 − 50) = 3, so the load needs 9.54 dB:
+
+    >>> round(float(required_return_loss_db(np.array([(-100 - 50) / (-100 + 50)]))[0]), 2)
+    9.54
+    """
+    return np.maximum(20.0 * np.log10(np.abs(gamma_device)), 0.0)
+
+
+def small_gain_bound(
+    frequency_hz: np.ndarray,
+    gamma_device: np.ndarray,
+    reflection_bound: Any,
+    device_uncertainty: float = 0.0,
+    load_uncertainty: float = 0.0,
+) -> SmallGainBound:
+    """The small-gain rule for loads with |ΓL| ≤ ``reflection_bound`` (ρ; a number, or one per
+    frequency for a port file's |ΓL|), by the module docstring.
+
+    Examples
+    --------
+    A constant −75 Ω in 50 Ω (|Γd| = 5, 13.98 dB of gain) against loads of 14.5 dB return loss:
+    the bound holds by 0.52 dB at every frequency, both edges included.
+
+    >>> f = np.linspace(1e9, 2e9, 11)
+    >>> bound = small_gain_bound(f, np.full(11, 5.0 + 0j), 10 ** (-14.5 / 20))
+    >>> bound.verdict, round(bound.margin_db, 2)
+    ('guaranteed', 0.52)
+    """
+    frequency_hz = np.asarray(frequency_hz, dtype=float)
+    gamma_device = np.asarray(gamma_device, dtype=complex)
+    rho = np.broadcast_to(np.asarray(reflection_bound, dtype=float), frequency_hz.shape)
+    rho = np.minimum(rho + load_uncertainty, np.inf)
+    magnitude = np.abs(gamma_device)
+    scatter = float(nyquist.estimate_noise(gamma_device, nyquist.EDGE_NOISE_ORDERS))
+    worst_loop = magnitude * np.asarray(reflection_bound, dtype=float)
+    guarded = (magnitude + device_uncertainty + nyquist.NOISE_MARGIN * scatter) * rho
+    with np.errstate(divide="ignore"):
+        margin = -20.0 * np.log10(np.maximum(guarded, 1e-300))
+    worst = int(np.argmax(worst_loop))
+    tightest = int(np.argmin(margin))
+    failing = nyquist.find_bands(frequency_hz, worst_loop.astype(complex))
+    stake = (guarded >= 1.0) & (worst_loop < 1.0)
+    edges = (_edge(frequency_hz, margin, "low"), _edge(frequency_hz, margin, "high"))
+    if worst_loop[worst] >= 1.0:
+        verdict = "not-guaranteed"
+    elif margin[tightest] <= 0.0:
+        verdict = "inconclusive"
+    else:
+        verdict = "guaranteed"
+    return SmallGainBound(
+        verdict=verdict,
+        worst_loop_gain=float(worst_loop[worst]),
+        worst_frequency_hz=float(frequency_hz[worst]),
+        margin_db=float(margin[tightest]),
+        margin_frequency_hz=float(frequency_hz[tightest]),
+        failing_bands=tuple(failing),
+        at_stake_ranges_hz=_ranges(frequency_hz, stake),
+        edges=edges,
+        scatter=scatter,
+    )
+
+
+def _edge(frequency_hz: np.ndarray, margin: np.ndarray, side: str) -> EdgeBound:
+    index = 0 if side == "low" else frequency_hz.size - 1
+    value = float(margin[index])
+    where = format_frequency(frequency_hz[index])
+    if side == "low" and frequency_hz[0] == 0.0:
+        return EdgeBound(side, value > 0, value, "The sweep includes 0 Hz.")
+    beyond = "below" if side == "low" else "above"
+    if value > 0:
+        note = (
+            f"At the {side} edge ({where}) the bound holds by {value:.2f} dB beyond the data's"
+            f" scatter and the stated errors; it is assumed to hold {beyond} the sweep too."
+        )
+    else:
+        note = (
+            f"At the {side} edge ({where}) the bound does not hold by more than the data's"
+            f" scatter and the stated errors ({value:+.2f} dB), so it cannot be carried {beyond}"
+            " the sweep."
+        )
+    return EdgeBound(side, value > 0, value, note)
+
+
+def _ranges(frequency_hz: np.ndarray, mask: np.ndarray) -> tuple[tuple[float, float], ...]:
+    edges = np.flatnonzero(np.diff(np.concatenate(([0], mask.astype(int), [0]))))
+    return tuple(
+        (float(frequency_hz[start]), float(frequency_hz[stop - 1]))
+        for start, stop in zip(edges[::2], edges[1::2], strict=True)
+    )
+
+
+def bound_words(
+    bound: SmallGainBound,
+    required_db: np.ndarray,
+    frequency_hz: np.ndarray,
+    z0: float,
+    what: str,
+) -> tuple[list[str], list[str]]:
+    """Reasons and next steps for a bound, the same words in every command; ``what`` names the
+    class ("every passive load with at least 14.5 dB return loss", "the stated port match")."""
+    worst = int(np.argmax(required_db))
+    need = f"{required_db[worst]:.2f} dB return loss at {format_frequency(frequency_hz[worst])}"
+    if bound.verdict == "not-guaranteed":
+        return (
+            [
+                f"NOT GUARANTEED: the small-gain bound fails for {what}: at"
+                f" {format_frequency(bound.worst_frequency_hz)} |gamma_d|*rho ="
+                f" {bound.worst_loop_gain:.3g}, so some such load could make the device oscillate"
+                f" (not necessarily the one you build). It needs at least {need} (in {z0:g} ohm).",
+            ],
+            [
+                f"Specify at least {required_db[worst]:.1f} dB return loss (plus margin) across the"
+                " failing bands, or check the actual load with its file (--load)."
+            ],
+        )
+    if bound.verdict == "inconclusive":
+        listed = ", ".join(
+            f"{format_frequency(a)}-{format_frequency(b)}" if a != b else format_frequency(a)
+            for a, b in bound.at_stake_ranges_hz
+        )
+        return (
+            [
+                f"The small-gain bound holds for {what} on the data, but not by more than their"
+                f" scatter and the stated |gamma| errors at {listed} (margin"
+                f" {bound.margin_db:+.2f} dB): the guarantee cannot be given.",
+                *[edge.note for edge in bound.edges if not edge.founded],
+            ],
+            [
+                "Measure the device more accurately there (calibration, averaging), or ask for"
+                f" more return loss than {required_db[worst]:.1f} dB."
+            ],
+        )
+    return (
+        [
+            f"GUARANTEED: {what} keeps the loop gain below 1 at every frequency, by"
+            f" {bound.margin_db:.2f} dB beyond the data's scatter and the stated errors (worst"
+            f" |gamma_d|*rho = {bound.worst_loop_gain:.3g} at"
+            f" {format_frequency(bound.worst_frequency_hz)}): small-signal stable into all of"
+            " them. The guarantee rests on the device being stable in its measurement impedance"
+            " and on the bound holding beyond both sweep edges, as it does at them.",
+        ],
+        [],
+    )
+
+
+def bound_premise(z0: float, frequency_hz: np.ndarray) -> str:
+    """What every small-gain answer rests on."""
+    band = f"{format_frequency(frequency_hz[0])} to {format_frequency(frequency_hz[-1])}"
+    return (
+        f"The small-gain bound proves stability only if the device is stable terminated in"
+        f" {z0:g} ohm (its measurement impedance, as a device measured on a VNA without"
+        f" oscillating is) and the load's match holds at every frequency. It is checked over"
+        f" {band}; beyond the sweep it is assumed to keep holding, as it does at both edges by"
+        " more than the data's scatter. A class verdict: 'not guaranteed' does not mean a"
+        " particular load will oscillate. It is a small-signal result."
+    )
 
 
 @dataclass(frozen=True)
@@ -54,11 +267,12 @@ class BoundResult:
     frequency_hz: np.ndarray = field(repr=False)
     gamma_device: np.ndarray = field(repr=False)
     required_return_loss_db: np.ndarray = field(repr=False)
+    bound: SmallGainBound | None = None
 
     @property
     def guaranteed(self) -> bool:
         """True when every load of the class is stable with this device."""
-        return self.verdict == "stable"
+        return self.verdict == "guaranteed"
 
     @property
     def frequency_range_hz(self) -> tuple[float, float]:
@@ -66,7 +280,7 @@ class BoundResult:
         return float(self.frequency_hz[0]), float(self.frequency_hz[-1])
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
-        """The ``oneport.check/1`` object in its ``return-loss-bound`` mode."""
+        """The ``oneport.check`` object in its ``return-loss-bound`` mode."""
         z0 = self.reference_impedance_ohm
         data: dict[str, Any] = {
             "schema": CHECK_SCHEMA,
@@ -92,6 +306,7 @@ class BoundResult:
                 "worst_db": self.worst_required_return_loss_db,
                 "worst_frequency_hz": self.worst_frequency_hz,
             },
+            "bound": None if self.bound is None else bound_json(self.bound, z0),
             "warnings": [w.to_dict() for w in self.warnings],
             "cautions": list(self.cautions),
             "inputs": [record.to_dict() for record in self.inputs],
@@ -107,20 +322,30 @@ class BoundResult:
         return data
 
 
-def required_return_loss_db(gamma_device: np.ndarray) -> np.ndarray:
-    """Return loss a load needs for the small-gain bound: 20·log10 |Γd|, at least 0 dB.
+def bound_json(bound: SmallGainBound, z0: float) -> dict[str, Any]:
+    """JSON form of a :class:`SmallGainBound` (shared by check and amplifier)."""
+    return {
+        "reference_impedance_ohm": z0,
+        "verdict": bound.verdict,
+        "worst_loop_gain": bound.worst_loop_gain,
+        "worst_frequency_hz": bound.worst_frequency_hz,
+        "margin_db": bound.margin_db,
+        "margin_frequency_hz": bound.margin_frequency_hz,
+        "device_scatter": bound.scatter,
+        "at_stake_ranges_hz": [list(r) for r in bound.at_stake_ranges_hz],
+        "edges": [
+            {"side": e.side, "founded": e.founded, "margin_db": e.margin_db, "note": e.note}
+            for e in bound.edges
+        ],
+    }
 
-    Examples
-    --------
-    A pure −100 Ω in 50 Ω has |Γd| = (100 + 50)/(100 − 50) = 3, so the load needs 9.54 dB:
 
-    >>> round(float(required_return_loss_db(np.array([(-100 - 50) / (-100 + 50)]))[0]), 2)
-    9.54
-    """
-    return np.maximum(20.0 * np.log10(np.abs(gamma_device)), 0.0)
-
-
-def check_return_loss(device: OnePort, return_loss_db: float, record: InputRecord) -> BoundResult:
+def check_return_loss(
+    device: OnePort,
+    return_loss_db: float,
+    record: InputRecord,
+    device_uncertainty: float = 0.0,
+) -> BoundResult:
     """Is ``device`` stable into every passive load with at least ``return_loss_db``?"""
     if not (np.isfinite(return_loss_db) and return_loss_db >= 0):
         raise InputError(
@@ -133,71 +358,32 @@ def check_return_loss(device: OnePort, return_loss_db: float, record: InputRecor
         )
     rho = 10 ** (-return_loss_db / 20)
     frequency_hz, gamma = device.frequency_hz, device.gamma
-    required = required_return_loss_db(gamma)
-    worst = int(np.argmax(required))
-    worst_loop = np.abs(gamma) * rho
-    failing = nyquist.find_bands(frequency_hz, worst_loop.astype(complex))
     z0 = device.reference_impedance_ohm
-    reasons: list[str] = []
-    steps: list[str] = []
-    warnings: list[Finding] = []
-    edges_founded = True
-    for index, side in ((0, "low"), (-1, "high")):
-        motion = nyquist.motion_per_octave(frequency_hz, gamma, side) * rho
-        settled = worst_loop[index] + SETTLED_MOTION_FACTOR * motion < 1.0
-        if worst_loop[index] > EDGE_FRACTION and not settled:
-            edges_founded = False
-            reasons.append(
-                f"At the {side} edge ({format_frequency(frequency_hz[index])}) |Γd|·ρ ="
-                f" {worst_loop[index]:.2f}: the device may exceed the bound just outside the"
-                " sweep, so the guarantee cannot be extended beyond it."
-            )
-            steps.append(
-                f"Measure the device {'lower' if side == 'low' else 'higher'} in frequency,"
-                " until |Γd| falls well below the bound."
-            )
-    if worst_loop.max() >= 1.0:
-        verdict = "unstable"
-        reasons.insert(
-            0,
-            f"NOT GUARANTEED: some passive load with {return_loss_db:g} dB return loss could"
-            f" make this device oscillate. At {format_frequency(frequency_hz[worst])} the device"
-            f" has |Γd| = {abs(gamma[worst]):.3g}, so the load needs at least"
-            f" {required[worst]:.2f} dB return loss there (in {z0:g} ohm).",
-        )
-        steps.append(
-            f"Specify the load's return loss above {required[worst]:.1f} dB (plus margin) across"
-            " the failing bands, or check the actual load with --load."
-        )
-    elif not edges_founded:
-        verdict = "inconclusive"
-    else:
-        verdict = "stable"
-        reasons.insert(
-            0,
-            f"GUARANTEED: every passive load with at least {return_loss_db:g} dB return loss"
-            f" keeps the loop gain below 1 (worst |Γd|·ρ = {worst_loop.max():.3g} at"
-            f" {format_frequency(frequency_hz[worst])}); small-signal stable into all of them.",
-        )
-    premise = (
-        f"The bound assumes the device is stable terminated in {z0:g} ohm (its measurement"
-        " impedance) and that |Γd|·ρ stays below 1 outside the sweep as well. A class verdict:"
-        " 'not guaranteed' does not mean a particular load will oscillate."
+    required = required_return_loss_db(gamma)
+    bound = small_gain_bound(frequency_hz, gamma, rho, device_uncertainty)
+    reasons, steps = bound_words(
+        bound,
+        required,
+        frequency_hz,
+        z0,
+        f"every passive load with at least {return_loss_db:g} dB return loss",
     )
+    worst = int(np.argmax(required))
     return BoundResult(
-        verdict=verdict,
+        verdict=bound.verdict,
         reasons=tuple(reasons),
         next_steps=tuple(steps),
-        premise=premise,
+        premise=bound_premise(z0, frequency_hz),
         load_return_loss_db=float(return_loss_db),
         worst_required_return_loss_db=float(required[worst]),
         worst_frequency_hz=float(frequency_hz[worst]),
-        failing_bands=tuple(failing),
-        warnings=tuple(warnings),
+        failing_bands=bound.failing_bands,
+        warnings=(),
         cautions=CAUTIONS,
         inputs=(record,),
         reference_impedance_ohm=z0,
         frequency_hz=frequency_hz,
         gamma_device=gamma,
         required_return_loss_db=required,
+        bound=bound,
     )

@@ -1,11 +1,12 @@
-"""The check for many variants at once: every array here has the variants on leading axes.
+"""The pass over every sample that the judgement reduces per variant, and the sweep's view of it.
 
-A sweep or a Monte Carlo run hands over loop gains of shape (..., n) on one grid; this room
-returns per-variant arrays (count, verdict code, margins, oscillation frequency) computed with
-the same rules as the single check (``nyquist.close_edges``, the phase steps and count of
-``nyquist.count_encirclements``, the unwrapping limit, and Foster's test on the load), so a
-variant's row equals what :func:`oneport.check` says of it. No Python loop over variants:
-one pass over the samples in cache-sized blocks of variants, then per-variant arithmetic.
+A sweep or a Monte Carlo run hands over loop gains of shape (..., n) on one grid. The rules that
+turn them into verdicts live in one place, :func:`oneport.analysis.judgement.judge`; this room
+holds the one pass over the samples it needs (in cache-sized blocks of variants, into reused
+buffers: the phase steps of F, their sum and largest size, where a large step falls inside
+|L| ≥ 1, min |F| and max |L|, the crossings of the real axis, the hidden features of a netlist
+load, the slack the stated |Γ| errors leave) and :func:`analyse_variants`, the per-variant arrays
+a sweep table takes, kept for callers that hand over arrays only. No Python loop over variants.
 """
 
 from __future__ import annotations
@@ -16,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import nyquist
-from .diagnostics import foster_jump_indices
+from .diagnostics import foster_jump_indices, jump_indices
 
 #: Verdict codes in the per-variant arrays.
 VERDICT_CODES = ("stable", "unstable", "inconclusive")
@@ -57,10 +58,11 @@ def analyse_variants(
     gamma_device: np.ndarray,
     gamma_load: np.ndarray,
     reference_impedance_ohm: float,
-    dc_sign: int | None = None,
+    dc_sign: int | np.ndarray | None = None,
     load_poles_known: bool = False,
+    facts: object = None,
 ) -> VariantAnalysis:
-    """The single check's analysis for every variant at once.
+    """The judgement's per-variant arrays for reflections given as arrays.
 
     Parameters
     ----------
@@ -68,69 +70,26 @@ def analyse_variants(
         The common grid, Hz.
     gamma_device, gamma_load : ndarray of complex, shapes broadcasting to (..., n)
         Both referred to ``reference_impedance_ohm`` (the device's measurement impedance).
-    dc_sign : {+1, −1}, optional
-        The sign of F(0) from stated DC resistances, overriding the data's low-edge closure.
+    dc_sign : {+1, −1} or array of them, optional
+        The sign of F(0) from DC facts, overriding the data's low-edge closure.
     load_poles_known : bool
-        True for a netlist load: an active one then does not leave its poles unknown. For
-        measured loads, a variant whose |ΓL| exceeds 1 beyond the data's scatter is
+        True for a netlist load: an active one then does not leave its poles unknown, and its
+        hidden features are looked for on this grid. A measured load given this way is taken
+        to be on its own grid; a variant whose |ΓL| exceeds 1 beyond the data's scatter is
         inconclusive, as in the single check.
+    facts : oneport.analysis.judgement.Facts, optional
+        Everything else the judgement takes (P, stated |Γ| errors, the load's own grid, …);
+        when given, ``dc_sign`` and ``load_poles_known`` must be left at their defaults.
     """
-    gamma_device = np.asarray(gamma_device, dtype=complex)
-    gamma_load = np.asarray(gamma_load, dtype=complex)
-    shape = np.broadcast_shapes(gamma_device.shape, gamma_load.shape)
-    leading = shape[:-1]
-    flat = (math.prod(leading), shape[-1])
-    device = np.broadcast_to(gamma_device, shape).reshape(flat)
-    load = np.broadcast_to(gamma_load, shape).reshape(flat)
-    sample = _sample_pass(device, load, measured_load=not load_poles_known)
-    # The closures read L at a few columns near each edge only (nyquist.closure_columns).
-    edge_columns = nyquist.closure_columns(frequency_hz)
-    edge_frequency_hz = frequency_hz[edge_columns]
-    edge_loop_gain = device[:, edge_columns] * load[:, edge_columns]
-    low = nyquist.close_edges(edge_frequency_hz, edge_loop_gain, "low")
-    high = nyquist.close_edges(edge_frequency_hz, edge_loop_gain, "high")
-    low_code, low_sign = low.basis_code, low.sign_at_limit
-    if dc_sign is not None:
-        low_code = np.full(low_code.shape, -1)  # the DC facts: founded, outside CLOSURE_BASES
-        low_sign = np.full(low_sign.shape, dc_sign)
-    step = sample.largest_step
-    known = (low_code != 0) & high.founded & (step <= nyquist.UNSAFE_PHASE_STEP_RAD)
-    count = nyquist.count_from_phase_change(
-        sample.in_band_phase,
-        edge_loop_gain[:, 0],
-        edge_loop_gain[:, -1],
-        np.where(low_sign == 0, 1, low_sign),
-        np.where(high.sign_at_limit == 0, 1, high.sign_at_limit),
-    )
-    hidden = _hidden_resonance_at_stake(device, sample.foster_rows, sample.foster_columns)
-    verdict = np.where(
-        ~known | (count < 0),
-        INCONCLUSIVE,
-        np.where(count == 0, STABLE, UNSTABLE),
-    )
-    verdict = np.where(hidden & (verdict != INCONCLUSIVE), INCONCLUSIVE, verdict)
-    if not load_poles_known:
-        active = sample.largest_load > 1.0 + 3.0 * sample.scatter + 1e-9
-        verdict = np.where(active, INCONCLUSIVE, verdict)
-    frequency, modes = _carrying_crossings(frequency_hz, device.shape[0], sample.crossings)
-    unstable = known & (count > 0)
-    columns = {
-        "verdict_code": verdict,
-        "encirclements": np.where(known, count, 0),
-        "count_known": known,
-        "latch_up": known & (count % 2 == 1),
-        "oscillation_frequency_hz": np.where(unstable, frequency, np.nan),
-        "oscillatory_modes": np.where(unstable, modes, 0),
-        "min_distance": sample.min_distance,
-        "min_distance_frequency_hz": frequency_hz[sample.closest],
-        "worst_loop_gain": sample.worst_loop_gain,
-        "worst_loop_gain_frequency_hz": frequency_hz[sample.loudest],
-        "largest_phase_step_rad": step,
-        "low_closure_code": low_code,
-        "high_closure_code": high.basis_code,
-        "hidden_resonance": hidden,
-    }
-    return VariantAnalysis(**{name: value.reshape(leading) for name, value in columns.items()})
+    from .judgement import Facts, judge
+
+    if facts is None:
+        facts = Facts(dc_sign=dc_sign, load_is_netlist=load_poles_known)
+    elif dc_sign is not None or load_poles_known:
+        raise TypeError("give dc_sign and load_poles_known inside facts, not beside them")
+    assert isinstance(facts, Facts)
+    judgement = judge(frequency_hz, gamma_device, gamma_load, facts)
+    return judgement.variant_analysis()
 
 
 #: Samples (variants × points) per block of the pass over every sample: its working arrays
@@ -141,7 +100,7 @@ BLOCK_SAMPLES = 1 << 16
 
 
 @dataclass(frozen=True)
-class _Crossings:
+class Crossings:
     """Intervals where Im L changes sign, rows ascending, with L at both ends."""
 
     rows: np.ndarray
@@ -151,33 +110,54 @@ class _Crossings:
 
 
 @dataclass(frozen=True)
-class _SamplePass:
-    """What the analysis needs from every sample, reduced per variant (rows of (V, n)).
+class SamplePass:
+    """What the judgement needs from every sample, reduced per variant (rows of (V, n)).
 
-    The crossing candidates and Foster's candidates on the load are sparse; ``scatter`` (the
-    noise of L, :func:`nyquist.estimate_noise`) and ``largest_load`` (max |ΓL|) are computed
-    for measured loads only (zeros otherwise).
+    ``large_step`` is the largest phase step of F between samples where |L| ≥ 1 at either end
+    (``large_step_column`` its interval; −1 where there is none). The crossing candidates and
+    the hidden features of a netlist load (``feature_rows``, ``feature_columns``,
+    ``feature_kinds``: 0 parallel, 1 series, 2 jump) are sparse. ``scatter`` (the noise of L,
+    :func:`nyquist.estimate_noise`) and ``largest_load`` (max |ΓL|) are computed for measured
+    loads only, ``slack`` (min of |1 − L| less the worst change stated |Γ| errors allow) only
+    when errors are stated (zeros otherwise).
     """
 
     in_band_phase: np.ndarray
     largest_step: np.ndarray
+    large_step: np.ndarray
+    large_step_column: np.ndarray
     closest: np.ndarray
     min_distance: np.ndarray
     loudest: np.ndarray
     worst_loop_gain: np.ndarray
-    crossings: _Crossings
-    foster_rows: np.ndarray
-    foster_columns: np.ndarray
+    crossings: Crossings
+    feature_rows: np.ndarray
+    feature_columns: np.ndarray
+    feature_kinds: np.ndarray
     scatter: np.ndarray
     largest_load: np.ndarray
+    slack: np.ndarray
+    slack_column: np.ndarray
 
 
-def _sample_pass(device: np.ndarray, load: np.ndarray, measured_load: bool) -> _SamplePass:
+FEATURE_KINDS = ("parallel", "series", "jump")
+
+
+def sample_pass(
+    device: np.ndarray,
+    load: np.ndarray,
+    measured_load: bool,
+    features_here: bool,
+    uncertainty: tuple[float, float] = (0.0, 0.0),
+) -> SamplePass:
     """One pass over (V, n) samples in cache-sized blocks of variants (see BLOCK_SAMPLES).
 
     Per block: L = Γd·ΓL, F = 1 − L, the phase steps of F (:func:`nyquist.phase_steps`'s rule),
-    their sum and largest magnitude, min |F| and max |L| with where they occur, the sign changes
-    of Im L (crossing candidates) and Foster's candidates on the load.
+    their sum and largest magnitude, the largest inside |L| ≥ 1, min |F| and max |L| with where
+    they occur, the sign changes of Im L (crossing candidates), the load's hidden features on this
+    grid when it is its own (``features_here``: a netlist evaluated here, or a measured load
+    given only here; Foster's test and isolated jumps), and for a measured load the scatter of L
+    and max |ΓL|.
     """
     variants, points = load.shape
     rows_per_block = max(1, min(variants, BLOCK_SAMPLES // max(points, 1)))
@@ -188,21 +168,26 @@ def _sample_pass(device: np.ndarray, load: np.ndarray, measured_load: bool) -> _
     step_buffer = np.empty((rows_per_block, max(points - 1, 0)))
     in_band = np.empty(variants)
     largest = np.empty(variants)
+    large_step = np.zeros(variants)
+    large_step_column = np.full(variants, -1, dtype=np.intp)
     closest = np.empty(variants, dtype=np.intp)
     min_distance = np.empty(variants)
     loudest = np.empty(variants, dtype=np.intp)
     worst = np.empty(variants)
     scatter = np.zeros(variants)
     largest_load = np.zeros(variants)
+    slack = np.zeros(variants)
+    slack_column = np.zeros(variants, dtype=np.intp)
+    device_error, load_error = uncertainty
     crossings: list[tuple[np.ndarray, ...]] = []
-    fosters: list[tuple[np.ndarray, ...]] = []
+    features: list[tuple[np.ndarray, ...]] = []
     for start in range(0, variants, rows_per_block):
         stop = min(start + rows_per_block, variants)
         block = slice(start, stop)
         size = stop - start
         within = np.arange(size)
-        (rows, columns), _ = foster_jump_indices(load[block])  # while the block is in cache
-        fosters.append((rows + start, columns))
+        if features_here:  # while the block is in cache
+            features.append(_features(load[block], start, measured_load))
         l_block = np.multiply(device[block], load[block], out=l_buffer[:size])
         f_block = np.subtract(1.0, l_block, out=f_buffer[:size])
         # np.angle(F): arctan2 runs faster on contiguous copies of the parts than on the views.
@@ -214,37 +199,78 @@ def _sample_pass(device: np.ndarray, load: np.ndarray, measured_load: bool) -> _
         steps = np.subtract(angle[:, 1:], angle[:, :-1], out=step_buffer[:size])
         nyquist.wrap_steps(steps)
         np.sum(steps, axis=-1, out=in_band[block])
-        np.max(np.abs(steps, out=steps), axis=-1, out=largest[block])
+        np.abs(steps, out=steps)
+        np.max(steps, axis=-1, out=largest[block])
+        loop_magnitude = np.abs(l_block, out=angle)
+        loudest[block] = np.argmax(loop_magnitude, axis=-1)
+        worst[block] = loop_magnitude[within, loudest[block]]
+        if points > 1:
+            # A phase step inside |L| >= 1 (at either end of the interval).
+            inside = (loop_magnitude[:, 1:] >= 1.0) | (loop_magnitude[:, :-1] >= 1.0)
+            masked = np.where(inside, steps, 0.0)
+            column = np.argmax(masked, axis=-1)
+            large_step[block] = masked[within, column]
+            large_step_column[block] = np.where(large_step[block] > 0, column, -1)
+        if device_error or load_error:
+            change = (
+                np.abs(device[block]) * load_error
+                + np.abs(load[block]) * device_error
+                + device_error * load_error
+            )
+            margin = np.abs(f_block) - np.broadcast_to(change, f_block.shape)
+            slack_column[block] = np.argmin(margin, axis=-1)
+            slack[block] = margin[within, slack_column[block]]
         magnitude = np.abs(f_block, out=angle)
         closest[block] = np.argmin(magnitude, axis=-1)
         min_distance[block] = magnitude[within, closest[block]]
-        magnitude = np.abs(l_block, out=angle)
-        loudest[block] = np.argmax(magnitude, axis=-1)
-        worst[block] = magnitude[within, loudest[block]]
         negative = l_block.imag < 0
-        change = negative[:, :-1] != negative[:, 1:]
+        change_sign = negative[:, :-1] != negative[:, 1:]
         # flatnonzero and divmod: the indices of nonzero, several times faster.
-        rows, columns = np.divmod(np.flatnonzero(change), max(change.shape[1], 1))
+        rows, columns = np.divmod(np.flatnonzero(change_sign), max(change_sign.shape[1], 1))
         crossings.append(
             (rows + start, columns, l_block[rows, columns], l_block[rows, columns + 1])
         )
         if measured_load:
             scatter[block] = nyquist.estimate_noise(l_block)
             largest_load[block] = np.max(np.abs(load[block]), axis=-1)
-    foster_rows, foster_columns = _joined(fosters, (_NO_INDEX, _NO_INDEX))
-    return _SamplePass(
+    feature_rows, feature_columns, feature_kinds = _joined(
+        features, (_NO_INDEX, _NO_INDEX, _NO_INDEX)
+    )
+    return SamplePass(
         in_band_phase=in_band,
         largest_step=largest,
+        large_step=large_step,
+        large_step_column=large_step_column,
         closest=closest,
         min_distance=min_distance,
         loudest=loudest,
         worst_loop_gain=worst,
-        crossings=_Crossings(*_joined(crossings, (_NO_INDEX, _NO_INDEX, _NO_VALUE, _NO_VALUE))),
-        foster_rows=foster_rows,
-        foster_columns=foster_columns,
+        crossings=Crossings(*_joined(crossings, (_NO_INDEX, _NO_INDEX, _NO_VALUE, _NO_VALUE))),
+        feature_rows=feature_rows,
+        feature_columns=feature_columns,
+        feature_kinds=feature_kinds,
         scatter=scatter,
         largest_load=largest_load,
+        slack=slack,
+        slack_column=slack_column,
     )
+
+
+def _features(load: np.ndarray, first_row: int, measured: bool) -> tuple[np.ndarray, ...]:
+    """Hidden features of a load on the analysis grid (rows, columns, kinds), rows ascending,
+    each interval once (Foster's kind where both tests flag it); a measured load's jumps must
+    stand out of its own scatter too."""
+    (rows, columns), parallel = foster_jump_indices(load)
+    noise = nyquist.estimate_noise(load) if measured else 0.0
+    jump_rows, jump_columns = jump_indices(load, noise)
+    width = max(load.shape[1], 1)
+    keys = np.concatenate([rows * width + columns, jump_rows * width + jump_columns])
+    kinds = np.concatenate(
+        [np.where(parallel, 0, 1), np.full(jump_rows.size, 2, dtype=np.intp)]
+    ).astype(np.intp)
+    keys, first = np.unique(keys, return_index=True)
+    rows, columns = np.divmod(keys, width)
+    return rows + first_row, columns, kinds[first]
 
 
 _NO_INDEX = np.zeros(0, dtype=np.intp)
@@ -260,8 +286,8 @@ def _joined(
     return tuple(np.concatenate([part[i] for part in parts]) for i in range(len(empty)))
 
 
-def _carrying_crossings(
-    frequency_hz: np.ndarray, variants: int, crossings: _Crossings
+def carrying_crossings(
+    frequency_hz: np.ndarray, variants: int, crossings: Crossings
 ) -> tuple[np.ndarray, np.ndarray]:
     """Lowest clockwise crossing beyond +1 that survives cancellation, and how many survive.
 
@@ -273,7 +299,9 @@ def _carrying_crossings(
     a, b = crossings.before.imag, crossings.after.imag
     t = a / (a - b)
     real_at = crossings.before.real + t * (crossings.after.real - crossings.before.real)
-    keep = real_at > 1.0
+    # A 0 Hz sample on the real axis is where the contour meets its mirror image, closed by F(0)'s
+    # sign, not a crossing (nyquist.find_crossings skips it too).
+    keep = (real_at > 1.0) & ~((frequency_hz[columns] == 0.0) & (a == 0.0))
     rows, columns, t, a = rows[keep], columns[keep], t[keep], a[keep]
     direction = np.where(a < 0, -1, 1)  # up across the axis: counterclockwise
     frequency = np.full(variants, np.nan)
@@ -296,14 +324,15 @@ def _carrying_crossings(
     return frequency, modes
 
 
-def _hidden_resonance_at_stake(
-    device: np.ndarray, rows: np.ndarray, columns: np.ndarray
-) -> np.ndarray:
-    """Foster's candidates on the load (rows, columns of (V, n)), where the device has |Γd| ≥ 1
-    nearby: the single check looks at |Γd| in the interval and one sample either side."""
-    at_stake = np.zeros(device.shape[0], dtype=bool)
-    last = device.shape[1] - 1
-    for offset in (-1, 0, 1, 2):
-        nearby = np.clip(columns + offset, 0, last)
-        at_stake[rows[np.abs(device[rows, nearby]) >= 1.0]] = True
-    return at_stake
+def flatten_variants(
+    gamma_device: np.ndarray, gamma_load: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, tuple[int, ...]]:
+    """Both reflections broadcast to one shape and flattened to (V, n), with the leading shape."""
+    gamma_device = np.asarray(gamma_device, dtype=complex)
+    gamma_load = np.asarray(gamma_load, dtype=complex)
+    shape = np.broadcast_shapes(gamma_device.shape, gamma_load.shape)
+    leading = shape[:-1]
+    flat = (math.prod(leading), shape[-1])
+    device = np.broadcast_to(gamma_device, shape).reshape(flat)
+    load = np.broadcast_to(gamma_load, shape).reshape(flat)
+    return device, load, leading

@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import argparse
-from dataclasses import replace
 from typing import Any, TextIO
 
 from ..errors import InputError
@@ -122,31 +121,28 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the check and print it; return the verdict's exit code."""
-    from ..analysis.small_gain import check_return_loss
-    from ..products.check import check
+    from ..products.check import check, check_load_class
     from ..reading.preparation import PortSetup
-    from ..reading.records import InputRecord
     from ..rendering.check_text import render, render_bound, verdict_line
 
-    device = _side(arguments.device, _device_setup(arguments), "device")
     impedance = measurement_impedance(arguments)
+    device_setup = _device_setup(arguments)
     result: Any
     if arguments.load_return_loss is not None:
-        if impedance is not None or arguments.plot or arguments.report or arguments.poles:
+        if arguments.plot or arguments.report or arguments.poles:
             raise InputError(
-                "--measurement-impedance, --poles, --plot and --report go with --load, not with"
-                " --load-return-loss"
+                "--poles, --plot and --report go with --load, not with --load-return-loss"
             )
-        if isinstance(device, str):
-            raise InputError("--load-return-loss needs a measured device file, not a netlist")
-        port = device.one_port
-        record = InputRecord.of("device", port, port.reference_impedance_ohm)
-        result = check_return_loss(
-            port,
+        uncertainty = _uncertainty(arguments.gamma_uncertainty)
+        result = check_load_class(
+            arguments.device,
             parse_decibels(arguments.load_return_loss, option="--load-return-loss"),
-            replace(record, preparation=device.steps),
+            measurement_impedance_ohm=impedance,
+            device_uncertainty=float(
+                uncertainty[0] if isinstance(uncertainty, tuple) else uncertainty or 0.0
+            ),
+            device_setup=device_setup,
         )
-        result = replace(result, warnings=result.warnings + device.findings)
         text = render_bound(result)
         line = text.splitlines()[0]
     else:
@@ -155,8 +151,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
             delay_s=_time(arguments.load_delay, "--load-delay"),
         )
         result = check(
-            device,
-            _side(arguments.load, load_setup, "load"),
+            arguments.device,
+            arguments.load,
             measurement_impedance_ohm=impedance,
             device_dc_resistance_ohm=_resistance(
                 arguments.device_dc_resistance, "--device-dc-resistance"
@@ -166,6 +162,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
             ),
             gamma_uncertainty=_uncertainty(arguments.gamma_uncertainty),
             frequency_hz=grid_from_options(arguments, required=False),
+            device_setup=device_setup,
+            load_setup=load_setup,
         )
         text = render(result)
         line = verdict_line(result)
@@ -187,21 +185,6 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     return exit_code(result.verdict)
 
 
-def _side(path: str, setup: Any, role: str) -> Any:
-    """A netlist path as it is (the check evaluates it), or the prepared Touchstone one-port."""
-    from ..reading.files import is_netlist_path
-    from ..reading.preparation import PortSetup, prepare
-
-    if not is_netlist_path(path):
-        return prepare(path, setup, role)
-    if setup != PortSetup(terminated_port=setup.terminated_port):
-        raise InputError(
-            f"{path}: termination, fixture and delay options apply to Touchstone files; describe"
-            " them in the netlist instead"
-        )
-    return path
-
-
 def _second_opinion(result: Any) -> Any:
     """The pole–zero identification of F = 1 − L, cross-checked with the count."""
     from ..analysis.pole_zero import identify_natural_frequencies, with_count_check
@@ -212,7 +195,7 @@ def _second_opinion(result: Any) -> Any:
         reference_impedance_ohm=result.reference_impedance_ohm,
         inputs=result.inputs,
     )
-    return with_count_check(fitted, result.encirclements)
+    return with_count_check(fitted, result)
 
 
 def _with_second_opinion(text: str, second: Any) -> str:

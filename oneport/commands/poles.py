@@ -61,45 +61,20 @@ def _positive_int(text: str) -> int:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Fit, cross-check with the Nyquist count, print; return the verdict's exit code."""
-    from ..analysis.pole_zero import (
-        DEFAULT_MAX_ORDER,
-        identify_natural_frequencies,
-        with_count_check,
-    )
-    from ..products.check import analyse_pair, load_one_port
-    from ..reading.alignment import align
+    from ..products.poles import poles
     from ..rendering.poles_text import render, verdict_line
 
-    impedance = measurement_impedance(arguments)
-    device = load_one_port(arguments.device, "device")
-    load = load_one_port(arguments.load, "load")
-    pair = align(device, load, impedance)
-    nyquist = analyse_pair(pair, device, load)
-    result = identify_natural_frequencies(
-        pair.frequency_hz,
-        1.0 - pair.gamma_device * pair.gamma_load,
-        reference_impedance_ohm=pair.reference_impedance_ohm,
-        max_order=arguments.max_order or DEFAULT_MAX_ORDER,
-        inputs=nyquist.inputs,
+    result = poles(
+        arguments.device,
+        arguments.load,
+        measurement_impedance_ohm=measurement_impedance(arguments),
+        max_order=arguments.max_order,
+        character=arguments.character,
     )
-    result = with_count_check(result, nyquist.encirclements)
-    character = None
-    if arguments.character:
-        from ..analysis.character import characterise_device
-
-        character = characterise_device(
-            pair.frequency_hz,
-            pair.gamma_device,
-            pair.reference_impedance_ohm,
-            load_gamma=pair.gamma_load,
-        )
     if arguments.json:
-        data = result.to_dict(include_arrays=arguments.include_arrays)
-        if character is not None:
-            data["device_character"] = character.to_dict()
-        write_json(data, out)
+        write_json(result.to_dict(include_arrays=arguments.include_arrays), out)
     elif arguments.quiet:
         print(verdict_line(result), file=out)
     else:
-        out.write(render(result, character))
+        out.write(render(result, result.device_character))
     return exit_code(result.verdict)

@@ -170,6 +170,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         device_dc_resistance_ohm=sides["device_dc"],
         load_dc_resistance_ohm=sides["load_dc"],
         gamma_uncertainty=sides["uncertainty"],
+        device_setup=sides["device_setup"],
+        load_setup=sides["load_setup"],
         frequency_hz=grid_from_options(arguments, required=False),
     )
     if plot_target is not None:
@@ -192,14 +194,16 @@ def _check_inputs(arguments: argparse.Namespace) -> dict[str, Any]:
     move, this is the one function to re-point.
     """
     from ..reading.preparation import PortSetup
-    from .check import _device_setup, _resistance, _side, _time, _uncertainty
+    from .check import _device_setup, _resistance, _time, _uncertainty
 
     load_setup = PortSetup(
         fixture_path=arguments.load_fixture, delay_s=_time(arguments.load_delay, "--load-delay")
     )
     return {
-        "device": _side(arguments.device, _device_setup(arguments), "device"),
-        "load": _side(arguments.load, load_setup, "load"),
+        "device": arguments.device,
+        "load": arguments.load,
+        "device_setup": _device_setup(arguments),
+        "load_setup": load_setup,
         "device_dc": _resistance(arguments.device_dc_resistance, "--device-dc-resistance"),
         "load_dc": _resistance(arguments.load_dc_resistance, "--load-dc-resistance"),
         "uncertainty": _uncertainty(arguments.gamma_uncertainty),

@@ -7,8 +7,6 @@ import argparse
 import sys
 from typing import Any, TextIO
 
-import numpy as np
-
 from ..errors import InputError
 from ..units import parse_quantity
 from .common import add_grid_options, add_output_options, grid_from_options, write_json
@@ -71,7 +69,8 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     command.add_argument(
         "--reference-impedance",
         metavar="OHMS",
-        help="Z0 when both sides are netlists (default 50ohm)",
+        help="the analysis impedance: for a netlist device the Z0 it is analysed in (default"
+        " 50ohm), for device files the impedance they were measured in (default: their own)",
     )
     out = command.add_argument_group("output")
     out.add_argument(
@@ -89,7 +88,9 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         "--threads", type=int, help="threads in this process (default 1; --workers uses cores)"
     )
     run_group.add_argument(
-        "--chunk-size", type=int, help="variants per chunk (default: about 1e6 samples)"
+        "--chunk-size",
+        type=int,
+        help="variants per chunk, 1 or more (default: about 1e6 samples)",
     )
     add_output_options(command, json_help="print the summary as one JSON object", arrays=False)
     return command
@@ -140,114 +141,33 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
 
 
 def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
-    from ..circuit import is_circuit_path, read_circuit
-    from ..products.sweep.sources import LoopSource, Side
-    from ..reading.alignment import align, renormalise
-    from ..reading.touchstone import read_one_port
+    """The sweep's source, built by the one preparation the single check uses."""
+    from ..circuit import is_circuit_path
+    from ..products.sweep.sources import prepare_sweep
 
-    device_paths = arguments.devices
-    device_circuit = None
-    if len(device_paths) == 1 and is_circuit_path(device_paths[0]):
-        device_circuit = read_circuit(device_paths[0])
-    elif any(is_circuit_path(path) for path in device_paths):
-        raise InputError("sweep: give one device netlist, or one or more Touchstone files")
-    load_circuit = read_circuit(arguments.load) if is_circuit_path(arguments.load) else None
-    inputs = [{"role": "device", "path": p} for p in device_paths] + [
-        {"role": "load", "path": arguments.load}
-    ]
-
-    if device_circuit is None:
-        devices = [read_one_port(path) for path in device_paths]
-        first = devices[0]
-        frequency_hz, z0 = first.frequency_hz, first.reference_impedance_ohm
-        gammas = []
-        for device in devices:
-            if device.reference_impedance_ohm != z0:
-                raise InputError(
-                    f"{device.source}: referred to {device.reference_impedance_ohm:g} ohm, the"
-                    f" first device to {z0:g} ohm; give device files of one reference impedance"
-                )
-            pair = align(first, device)
-            if pair.frequency_hz.size != frequency_hz.size:
-                raise InputError(
-                    f"{device.source}: does not cover {first.source}'s band; device files must"
-                    " cover the same frequencies"
-                )
-            gammas.append(pair.gamma_load)
-        device_side = Side(gamma=np.stack(gammas) if len(gammas) > 1 else first.gamma)
-    else:
-        if load_circuit is None:
-            load = read_one_port(arguments.load)
-            frequency_hz = load.frequency_hz
-            z0 = _resistance(arguments.reference_impedance) or 50.0
-        else:
-            frequency_hz = grid_from_options(arguments, required=True)
-            z0 = _resistance(arguments.reference_impedance) or 50.0
-        device_side = Side(circuit=device_circuit, parameters=tuple(device_circuit.parameters))
-
-    if load_circuit is not None:
-        load_side = Side(circuit=load_circuit, parameters=tuple(load_circuit.parameters))
-    else:
-        load = read_one_port(arguments.load)
-        if device_circuit is None:
-            pair = align(devices[0], load)
-            if pair.frequency_hz.size != frequency_hz.size:
-                frequency_hz = pair.frequency_hz
-                inside = np.isin(devices[0].frequency_hz, frequency_hz)
-                device_side = Side(
-                    gamma=device_side.gamma[..., inside] if device_side.gamma is not None else None
-                )
-            load_side = Side(gamma=pair.gamma_load)
-        else:
-            load_side = Side(gamma=renormalise(load.gamma, load.reference_impedance_ohm, z0))
-    dc_sign = _dc_sign(arguments, z0)
-    source = LoopSource(frequency_hz, z0, device_side, load_side)
-    warnings = [
-        finding
-        for role, circuit in (("device", device_circuit), ("load", load_circuit))
-        if circuit is not None
-        for finding in _premise_findings(circuit, role, z0)
-    ]
+    both_netlists = is_circuit_path(arguments.devices[0]) and is_circuit_path(arguments.load)
+    prepared = prepare_sweep(
+        arguments.devices,
+        arguments.load,
+        measurement_impedance_ohm=_resistance(
+            arguments.reference_impedance, "--reference-impedance"
+        ),
+        device_dc_resistance_ohm=_resistance(
+            arguments.device_dc_resistance, "--device-dc-resistance"
+        ),
+        load_dc_resistance_ohm=_resistance(arguments.load_dc_resistance, "--load-dc-resistance"),
+        frequency_hz=grid_from_options(arguments, required=both_netlists),
+    )
     return {
-        "source": source,
-        "frequency_hz": frequency_hz,
-        "z0": z0,
-        "dc_sign": dc_sign,
-        "devices": len(device_paths) if device_circuit is None else 1,
-        "inputs": inputs,
-        "warnings": warnings,
-        "parameters": {
-            **(device_circuit.parameters if device_circuit is not None else {}),
-            **(load_circuit.parameters if load_circuit is not None else {}),
-        },
+        "source": prepared.source,
+        "frequency_hz": prepared.source.frequency_hz,
+        "z0": prepared.source.reference_impedance_ohm,
+        "dc_sign": None,
+        "devices": prepared.devices,
+        "inputs": prepared.inputs,
+        "warnings": list(prepared.warnings),
+        "parameters": prepared.parameters,
     }
-
-
-def _premise_findings(circuit: Any, role: str, z0: float) -> list[Any]:
-    """A warning when a netlist side, at its nominal values, is unstable terminated in Z0.
-
-    The sweep counts N only (P = 0 assumed for every variant, as for measured data); the single
-    check adds a netlist's own right-half-plane poles, so the two would differ there.
-    """
-    from ..errors import InputError as _InputError
-    from ..findings import Finding
-
-    try:
-        roots = np.asarray(circuit.natural_frequencies(termination_ohm=z0))
-    except _InputError:
-        return []
-    unstable = int(np.sum(roots.real > 0))
-    if not unstable:
-        return []
-    return [
-        Finding(
-            "netlist-unstable-in-reference",
-            f"The {role} netlist ({circuit.source}) at its nominal values has {unstable}"
-            f" natural frequency(ies) in the right half plane terminated in {z0:g} ohm: the"
-            " sweep's counts assume none (P = 0) and are wrong by that many; use oneport check"
-            " on single variants, which adds them.",
-        )
-    ]
 
 
 def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
@@ -284,22 +204,8 @@ def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
     return grid_plan(specifications, [known.get(n.lower(), n) for n in arguments.log])
 
 
-def _resistance(text: str | None) -> float | None:
-    return None if text is None else parse_quantity(text, "resistance", option="resistance")
-
-
-def _dc_sign(arguments: argparse.Namespace, z0: float) -> int | None:
-    device = _resistance(arguments.device_dc_resistance)
-    load = _resistance(arguments.load_dc_resistance)
-    if (device is None) != (load is None):
-        raise InputError(
-            "DC resistances: give both --device-dc-resistance and --load-dc-resistance"
-        )
-    if device is None or load is None:
-        return None
-    gamma_device = (device - z0) / (device + z0)
-    gamma_load = (load - z0) / (load + z0)
-    return 1 if 1.0 - gamma_device * gamma_load > 0 else -1
+def _resistance(text: str | None, option: str) -> float | None:
+    return None if text is None else parse_quantity(text, "resistance", option=option)
 
 
 def _progress(total: int) -> tuple[Any, Any]:

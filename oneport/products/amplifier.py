@@ -3,14 +3,13 @@ reflection amplifier (:mod:`oneport.analysis.amplifier` does the arithmetic)."""
 
 from __future__ import annotations
 
+from dataclasses import replace
 from typing import Any
 
 from ..analysis.amplifier import DEFAULT_GAIN_THRESHOLD_DB, AmplifierResult, analyse_amplifier
-from ..analysis.judgement import analyse_pair
 from ..errors import InputError
-from ..reading.alignment import align, renormalise
-from ..reading.preparation import load_one_port
-from ..reading.records import InputRecord
+from .check import judge_prepared
+from .pair import prepare_device, prepare_pair
 
 
 def screen_amplifier(
@@ -27,10 +26,12 @@ def screen_amplifier(
     ----------
     device : path, OnePort or skrf.Network
         The negative-resistance device.
-    load : path, OnePort or skrf.Network, optional
-        What faces the device (the circulator port): the Nyquist check with it decides.
+    load : path, OnePort, skrf.Network or netlist, optional
+        What faces the device (the circulator port): the Nyquist check with it decides, through
+        the same preparation and judgement as ``oneport.check``.
     port_return_loss_db : float, optional
-        The port's guaranteed return loss, dB (≥ 0), when no file is given.
+        The port's guaranteed return loss, dB (≥ 0), when no file is given: the small-gain rule
+        of ``check --load-return-loss`` decides.
     gain_threshold_db : float
         Gain (dB) a band must reach to be listed.
     measurement_impedance_ohm : float, optional
@@ -43,24 +44,20 @@ def screen_amplifier(
 
     if load is not None and port_return_loss_db is not None:
         raise InputError("give either a load (circulator file) or a port return loss, not both")
-    device_port = load_one_port(device, "device")
     if load is None:
-        frequency_hz, gamma = device_port.frequency_hz, device_port.gamma
-        z0 = device_port.reference_impedance_ohm
-        if measurement_impedance_ohm is not None and measurement_impedance_ohm != z0:
-            gamma = renormalise(gamma, z0, measurement_impedance_ohm)
-            z0 = measurement_impedance_ohm
-        return analyse_amplifier(
-            frequency_hz,
-            gamma,
-            z0,
+        prepared = prepare_device(device, measurement_impedance_ohm=measurement_impedance_ohm)
+        port = prepared.port
+        result = analyse_amplifier(
+            port.frequency_hz,
+            port.gamma,
+            port.reference_impedance_ohm,
             gain_threshold_db=gain_threshold_db,
             port_return_loss_db=port_return_loss_db,
-            inputs=(InputRecord.of("device", device_port, z0),),
+            inputs=(prepared.record,),
         )
-    load_port = load_one_port(load, "load")
-    pair = align(device_port, load_port, measurement_impedance_ohm)
-    nyquist = analyse_pair(pair, device_port, load_port)
+        return replace(result, warnings=result.warnings + prepared.findings)
+    pair = prepare_pair(device, load, measurement_impedance_ohm=measurement_impedance_ohm)
+    nyquist = judge_prepared(pair)
     return analyse_amplifier(
         pair.frequency_hz,
         pair.gamma_device,

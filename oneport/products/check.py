@@ -1,7 +1,7 @@
 """The check product: device and load, as the user names them, to a stability verdict.
 
-Data flow: read (``reading.touchstone``, or a netlist through ``circuit``) → align
-(``reading.alignment``) → the judgement (``analysis.judgement``) → frozen
+Data flow: the one preparation (``products.pair``: read, prepare, align, evaluate netlists) →
+the one judgement (``analysis.judgement``), described in words (``analysis.reasons``) → frozen
 :class:`~oneport.analysis.result.CheckResult`. It never prints, plots or exits.
 """
 
@@ -13,13 +13,12 @@ from typing import Any
 
 import numpy as np
 
-from ..analysis.judgement import CheckOptions, analyse_pair
+from ..analysis.reasons import describe
 from ..analysis.result import CheckResult
-from ..errors import InputError
-from ..reading.alignment import align
-from ..reading.files import is_netlist_path
-from ..reading.preparation import PreparedPort, load_one_port
+from ..analysis.small_gain import BoundResult, check_return_loss
+from ..reading.preparation import PortSetup, PreparedPort
 from ..reading.touchstone import OnePort
+from .pair import PreparedPair, prepare_device, prepare_pair
 
 OneportSource = str | Path | OnePort | PreparedPort | Any
 
@@ -33,6 +32,8 @@ def check(
     load_dc_resistance_ohm: float | None = None,
     gamma_uncertainty: float | tuple[float, float] | None = None,
     frequency_hz: np.ndarray | None = None,
+    device_setup: PortSetup | None = None,
+    load_setup: PortSetup | None = None,
 ) -> CheckResult:
     """Will ``device`` oscillate (or latch up) when connected to ``load``? Small-signal check.
 
@@ -49,11 +50,15 @@ def check(
         to this impedance, never the device to the load's.
     device_dc_resistance_ohm, load_dc_resistance_ohm : float, optional
         DC facts that close the contour towards DC: the device's I–V slope at the bias point
-        and the bias network's DC resistance, Ω (give both).
+        and the bias network's DC resistance, Ω (give both, or one when the other side is a
+        netlist, whose own DC value is then used).
     gamma_uncertainty : float or (float, float), optional
         Worst-case absolute error of |Γ|, for both sides or (device, load).
     frequency_hz : ndarray, optional
-        The grid, Hz, when both sides are netlists.
+        The grid, Hz, when both sides are netlists; default: chosen from their natural
+        frequencies, from DC to beyond the last of them.
+    device_setup, load_setup : PortSetup, optional
+        Termination, fixture and delay of a Touchstone side given as a path.
 
     Returns
     -------
@@ -62,122 +67,64 @@ def check(
 
     Examples
     --------
+    A bare −30 Ω (no dynamics) in series with 0.5 nH, into 100 Ω: the device keeps its gain
+    to the top of a 5 GHz sweep, so nothing founds the closure towards infinity there; swept
+    to 200 GHz, where the inductance has taken the gain away, it is stable.
+
     >>> import skrf
-    >>> frequency = skrf.Frequency(0.1, 5, 201, unit="GHz")
-    >>> media = skrf.media.DefinedGammaZ0(frequency, z0=50)
-    >>> device = media.resistor(-30) ** media.short()  # a bare -30 ohm: no dynamics
-    >>> result = check(device, media.resistor(100) ** media.short())
+    >>> def sides(top_ghz):
+    ...     frequency = skrf.Frequency(0.1, top_ghz, 2001, unit="GHz")
+    ...     media = skrf.media.DefinedGammaZ0(frequency, z0=50)
+    ...     device = media.resistor(-30) ** media.inductor(0.5e-9) ** media.short()
+    ...     return device, media.resistor(100) ** media.short()
+    >>> check(*sides(5)).verdict
+    'inconclusive'
+    >>> result = check(*sides(200))
     >>> result.verdict, result.encirclements
     ('stable', 0)
     """
-    if isinstance(gamma_uncertainty, tuple):
-        device_uncertainty, load_uncertainty = gamma_uncertainty
-    else:
-        device_uncertainty = load_uncertainty = gamma_uncertainty or 0.0
-    device_port, load_port, known_poles, notes = _resolve_sides(
-        device, load, measurement_impedance_ohm, frequency_hz
+    return judge_prepared(
+        prepare_pair(
+            device,
+            load,
+            measurement_impedance_ohm=measurement_impedance_ohm,
+            device_dc_resistance_ohm=device_dc_resistance_ohm,
+            load_dc_resistance_ohm=load_dc_resistance_ohm,
+            gamma_uncertainty=gamma_uncertainty,
+            device_setup=device_setup,
+            load_setup=load_setup,
+            frequency_hz=frequency_hz,
+        )
     )
-    options = CheckOptions(
-        measurement_impedance_ohm=measurement_impedance_ohm,
-        device_dc_resistance_ohm=device_dc_resistance_ohm,
-        load_dc_resistance_ohm=load_dc_resistance_ohm,
-        device_uncertainty=float(device_uncertainty),
-        load_uncertainty=float(load_uncertainty),
-        known_poles=known_poles,
-        premise_notes=notes,
-        load_poles_known=_as_circuit(load) is not None,
-    )
-    pair = align(device_port, load_port, options.measurement_impedance_ohm)
-    result = analyse_pair(pair, device_port, load_port, options)
-    # What the reader could not confirm (no option line, ignored port-impedance comments).
-    reading = device_port.warnings + load_port.warnings
-    prepared = [(i, s) for i, s in enumerate((device, load)) if isinstance(s, PreparedPort)]
-    if not prepared and not reading:
-        return result
-    inputs = list(result.inputs)
-    findings = [*result.warnings, *reading]
-    for index, source in prepared:
-        inputs[index] = replace(inputs[index], preparation=source.steps)
-        findings += source.findings
-    return replace(result, inputs=(inputs[0], inputs[1]), warnings=tuple(findings))
 
 
-def _resolve_sides(
+def judge_prepared(pair: PreparedPair) -> CheckResult:
+    """The single check of a prepared pair: the one judgement, described in words."""
+    return describe(
+        pair.frequency_hz,
+        pair.gamma_device,
+        pair.gamma_load,
+        pair.reference_impedance_ohm,
+        pair.facts,
+        pair.context,
+    )
+
+
+def check_load_class(
     device: OneportSource,
-    load: OneportSource,
-    measurement_impedance_ohm: float | None,
-    frequency_hz: np.ndarray | None,
-) -> tuple[OnePort, OnePort, int, tuple[str, ...]]:
-    """Both sides as one-ports on a common footing; netlist sides evaluated and their premise
-    checked. Returns the ports, the known right-half-plane poles of F and premise notes."""
-    device_circuit, load_circuit = _as_circuit(device), _as_circuit(load)
-    if device_circuit is None and load_circuit is None:
-        return load_one_port(device, "device"), load_one_port(load, "load"), 0, ()
-    from ..circuit import one_port_from_circuit
-
-    # Evaluate from the path where there is one, so the record carries the netlist's checksum.
-    device_netlist = device if isinstance(device, str | Path) else device_circuit
-    load_netlist = load if isinstance(load, str | Path) else load_circuit
-    if device_circuit is not None and load_circuit is not None:
-        if frequency_hz is None:
-            raise InputError(
-                "both sides are netlists: give the frequency grid (--start, --stop, --points)"
-            )
-        grid = np.asarray(frequency_hz, dtype=float)
-        z0 = measurement_impedance_ohm or 50.0
-        device_port = one_port_from_circuit(device_netlist, grid, z0)
-        load_port = one_port_from_circuit(load_netlist, grid, z0)
-    elif device_circuit is not None:
-        load_port = load_one_port(load, "load")
-        z0 = measurement_impedance_ohm or 50.0
-        device_port = one_port_from_circuit(device_netlist, load_port.frequency_hz, z0)
-    else:
-        device_port = load_one_port(device, "device")
-        z0 = measurement_impedance_ohm or device_port.reference_impedance_ohm
-        load_port = one_port_from_circuit(load_netlist, device_port.frequency_hz, z0)
-    poles, notes = 0, []
-    for role, circuit in (("device", device_circuit), ("load", load_circuit)):
-        if circuit is None:
-            continue
-        found, note = _netlist_poles(circuit, role, z0)
-        poles += found
-        notes.append(note)
-    return device_port, load_port, poles, tuple(notes)
-
-
-def _as_circuit(source: OneportSource) -> Any:
-    """The :class:`~oneport.circuit.Circuit` a source describes, or None for data."""
-    if isinstance(source, str | Path):
-        if not is_netlist_path(source):
-            return None  # a Touchstone file: the circuit package is not even imported
-        from ..circuit import read_circuit
-
-        return read_circuit(source)
-    if isinstance(source, OnePort | PreparedPort):
-        return None
-    from ..circuit import Circuit
-
-    return source if isinstance(source, Circuit) else None
-
-
-def _netlist_poles(circuit: Any, role: str, z0: float) -> tuple[int, str]:
-    """Right-half-plane natural frequencies of a netlist side terminated in ``z0``."""
-    try:
-        roots = np.asarray(circuit.natural_frequencies(termination_ohm=z0))
-    except InputError:
-        return 0, (
-            f"The {role} netlist ({circuit.source}) has elements without a polynomial (lines,"
-            f" blocks, constant Q): its stability terminated in {z0:g} ohm was not checked and"
-            " is assumed."
-        )
-    unstable = int(np.sum(roots.real > 0))
-    if unstable:
-        return unstable, (
-            f"The {role} netlist ({circuit.source}) terminated in {z0:g} ohm has {unstable}"
-            " natural frequencies in the right half plane (P); they are poles of F and are"
-            " added to the count (Z = N + P)."
-        )
-    return 0, (
-        f"The {role} netlist ({circuit.source}) was checked: terminated in {z0:g} ohm all its"
-        " natural frequencies lie in the left half plane (P = 0)."
+    load_return_loss_db: float,
+    *,
+    measurement_impedance_ohm: float | None = None,
+    device_uncertainty: float = 0.0,
+    device_setup: PortSetup | None = None,
+) -> BoundResult:
+    """Is ``device`` stable into *every* passive load with at least ``load_return_loss_db`` of
+    return loss? The one small-gain rule (:mod:`oneport.analysis.small_gain`), on the device as
+    the one preparation reads it; ``amplifier --port-return-loss`` asks the same."""
+    prepared = prepare_device(
+        device, measurement_impedance_ohm=measurement_impedance_ohm, device_setup=device_setup
     )
+    result = check_return_loss(
+        prepared.port, load_return_loss_db, prepared.record, device_uncertainty
+    )
+    return replace(result, warnings=result.warnings + prepared.findings)

@@ -15,6 +15,7 @@ if TYPE_CHECKING:
     from ..analysis.amplifier import AmplifierResult, GainBand
 
 _HEADLINE = {
+    "guaranteed": "GUARANTEED STABLE",
     "stable": "STABLE",
     "not-guaranteed": "NOT GUARANTEED",
     "unstable": "UNSTABLE",

@@ -139,7 +139,8 @@ def _margins(result: CheckResult) -> list[str]:
 def _closure(result: CheckResult) -> list[str]:
     words = {
         "dc-sample": "the data include 0 Hz",
-        "dc-resistances": "from the stated DC resistances",
+        "dc-resistances": "from the DC facts",
+        "netlist-limit": "both netlists evaluated beyond every natural frequency",
         "loop-gain-below-unity": "|L| < 1 at the edge",
         "settled": "L has settled, far from +1",
         "not-founded": "NOT FOUNDED",
@@ -212,8 +213,8 @@ def render_bound(result: BoundResult) -> str:
     """The text report of a worst-case-load (return-loss bound) check."""
     low, high = result.frequency_range_hz
     headline = {
-        "stable": "GUARANTEED STABLE (small-signal) for the load class",
-        "unstable": "NOT GUARANTEED for the load class",
+        "guaranteed": "GUARANTEED STABLE (small-signal) for the load class",
+        "not-guaranteed": "NOT GUARANTEED for the load class",
         "inconclusive": "INCONCLUSIVE: the data cannot decide",
     }[result.verdict]
     parts = [

@@ -37,7 +37,9 @@ _CLOSURE_WORDS = {
     "dc-sample": "the data include 0 Hz",
     "loop-gain-below-unity": "|L| < 1 at the edge",
     "settled": "L has settled, far from +1",
-    "not-founded": "not founded: |L| ≥ 1 and L still moving at the edge",
+    "dc-resistances": "from the DC facts",
+    "netlist-limit": "both netlists evaluated beyond every natural frequency",
+    "not-founded": "not founded: |L| not clearly below 1 at the edge (towards DC: still moving)",
 }
 _STYLE = """
 body { font-family: system-ui, sans-serif; color: #1f2a33; background: #fbfbf9;

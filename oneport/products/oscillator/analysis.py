@@ -161,12 +161,12 @@ def netlist_load(
 ) -> OnePort:
     """A load netlist evaluated on the device's grid in the device's measurement impedance.
 
-    The one place the oscillator turns a netlist load into data; it stands in for the shared
-    preparation of device and load sides that every command will use.
+    The one place the oscillator turns a netlist load into data, through the preparation every
+    command shares (:func:`oneport.products.pair.prepare_load`).
     """
-    from ...circuit import one_port_from_circuit
+    from ..pair import prepare_load
 
-    return one_port_from_circuit(load, frequency_hz, reference_impedance_ohm)
+    return prepare_load(load, frequency_hz, reference_impedance_ohm).port
 
 
 def choose_form(description: DeviceDescription, requested: str | None) -> tuple[str, str]:
@@ -361,10 +361,9 @@ def _count(
         )
     else:
         circuit = _linearised(description, level)
-        grid = None if isinstance(load, OnePort) else _count_grid(pair.frequency_hz)
-        result = check(
-            circuit, load, measurement_impedance_ohm=pair.reference_impedance_ohm, frequency_hz=grid
-        )
+        # Against a netlist load the two lumped sides need no grid: the check's preparation
+        # evaluates them from DC to beyond every natural frequency.
+        result = check(circuit, load, measurement_impedance_ohm=pair.reference_impedance_ohm)
     found: tuple[Any, ...] = ()
     located: bool | None = None
     if modes and result.verdict == "unstable" and result.encirclements:

@@ -44,6 +44,8 @@ def stabilise(
     load_dc_resistance_ohm: float | None = None,
     gamma_uncertainty: float | tuple[float, float] | None = None,
     frequency_hz: np.ndarray | None = None,
+    device_setup: Any = None,
+    load_setup: Any = None,
 ) -> StabiliseResult:
     """Which network at the device's port (or in a load netlist) makes the pair stable, and how
     much of it? Small-signal advice, every suggestion verified by the full check.
@@ -74,7 +76,7 @@ def stabilise(
     bias_current, bias_voltage : float or str, optional
         The device's DC bias (A, V; ``"20mA"``) for the resistors' drop and dissipation.
     measurement_impedance_ohm, device_dc_resistance_ohm, load_dc_resistance_ohm,
-    gamma_uncertainty, frequency_hz
+    gamma_uncertainty, frequency_hz, device_setup, load_setup
         As for :func:`oneport.check`.
 
     Returns
@@ -95,7 +97,7 @@ def stabilise(
     ('stabilised', {'resistance_ohm': 24.0})
     >>> edges = result.suggestions[0].stable_range["resistance_ohm"]
     >>> round(edges.low, 1), round(edges.high, 1)
-    (8.6, 66.1)
+    (8.6, 66.0)
     """
     minimum, decibels = goal.parse_margins(margin)
     keep_hz = goal.parse_frequency(keep, "--keep")
@@ -124,6 +126,8 @@ def stabilise(
         load_dc_resistance_ohm=load_dc_resistance_ohm,
         gamma_uncertainty=gamma_uncertainty,
         frequency_hz=frequency_hz,
+        device_setup=device_setup,
+        load_setup=load_setup,
     )
     chosen = [
         *placements.port_placements(pair, names),

@@ -89,6 +89,46 @@ class Placement:
         given.update(parameters or {})
         return np.asarray(self.circuit.gamma(pair.frequency_hz, z0, **_columns(given)))
 
+    def probe(
+        self, values: dict[str, np.ndarray], parameters: dict[str, np.ndarray] | None = None
+    ) -> Any:
+        """The changed load of each candidate evaluated at any frequencies, as the judgement asks
+        between the analysis grid's samples (``Facts.load_probe``): what the added network does
+        between samples is then seen, not mistaken for a hidden feature of the load."""
+        pair = self.pair
+        from ..pair import NetlistProbe
+
+        z0 = pair.reference_impedance_ohm
+        count = max(np.asarray(v).size for v in values.values())
+        if not self.at_port:
+            given = {_PARAMETER_NAMES[key]: value for key, value in values.items()}
+            given.update(parameters or {})
+            return NetlistProbe(self.circuit, z0, _per_candidate(given, count))
+        base: Any
+        if pair.load_circuit is not None:
+            base = NetlistProbe(pair.load_circuit, z0, _per_candidate(parameters or {}, count))
+        else:
+            # A measured load is taken linearly between the analysis samples, as everywhere
+            # else; the network added to it is exact. (Its own hidden features were judged on
+            # its own grid by the check of the pair as given: with any at stake there is no
+            # advice.)
+            base = _interpolated(pair.frequency_hz, pair.gamma_load)
+        chosen = _per_candidate(values, count)
+
+        def changed(rows: np.ndarray, frequency_hz: np.ndarray) -> np.ndarray:
+            gamma = base(rows, frequency_hz)
+            result = np.empty_like(gamma)
+            grids, group = np.unique(frequency_hz, axis=0, return_inverse=True)
+            for index, grid in enumerate(grids):
+                members = np.flatnonzero(group.reshape(-1) == index)
+                picked = {key: value[rows[members]] for key, value in chosen.items()}
+                result[members] = families.add_network(
+                    gamma[members], self.family, grid, picked, z0
+                )
+            return result
+
+        return changed
+
     def amplifier_gamma(self, values: dict[str, np.ndarray], columns: np.ndarray) -> Any:
         """Γ of the device with a port network absorbed, at grid ``columns`` (None elsewhere)."""
         if not self.at_port:
@@ -324,3 +364,26 @@ def _with_values(circuit: Any, values: dict[str, float]) -> Any:
 def _columns(values: dict[str, Any]) -> dict[str, Any]:
     """Parameter arrays (V,) as the netlist takes them: they broadcast to the leading shape."""
     return {name: np.asarray(value, dtype=float) for name, value in values.items()}
+
+
+def _per_candidate(values: dict[str, Any], count: int) -> dict[str, np.ndarray]:
+    """Values as one float per candidate (a scalar repeated)."""
+    return {
+        key: np.broadcast_to(np.asarray(value, dtype=float), (count,))
+        for key, value in values.items()
+    }
+
+
+def _interpolated(frequency_hz: np.ndarray, gamma: np.ndarray) -> Any:
+    """A load known on the analysis grid, taken linearly between its samples, as a probe."""
+
+    def between(rows: np.ndarray, at_hz: np.ndarray) -> np.ndarray:
+        from ...reading.alignment import interpolate
+
+        flat = np.asarray(at_hz, dtype=float).reshape(-1)
+        order = np.argsort(flat)
+        values = np.empty(flat.size, dtype=complex)
+        values[order] = interpolate(frequency_hz, gamma, flat[order])
+        return values.reshape(np.shape(at_hz))
+
+    return between

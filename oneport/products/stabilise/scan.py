@@ -150,7 +150,7 @@ class Scanner:
             dc = placement.load_dc_resistance(values, self.load_dc, parameters)
             if dc is not None:
                 signs = adapter.dc_signs(self.device_dc, dc, pair.reference_impedance_ohm)
-        judged = adapter.judge_variants(pair, loads, signs)
+        judged = adapter.judge_variants(pair, loads, signs, placement.probe(values, parameters))
         codes = np.asarray(judged.verdict_code)
         met = goal.goal_met(self.requirement, judged)
         unseen = self._corner_below_data(placement, values, judged, signs is not None)

@@ -52,7 +52,10 @@ def verify(
         {key: np.array([value]) for key, value in values.items()}, load_dc_resistance_ohm
     )
     result = adapter.check_pair(
-        placement.pair, source, None if dc_after is None else float(dc_after[0])
+        placement.pair,
+        source,
+        None if dc_after is None else float(dc_after[0]),
+        placement.probe({key: np.array([value]) for key, value in values.items()}),
     )
     met = goal_met_by_check(result, requirement)
     if (

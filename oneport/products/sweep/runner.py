@@ -2,7 +2,8 @@
 
 A chunk is the unit of work: a slice of the plan's variants, evaluated by a *variant source*
 (a picklable callable: parameter arrays in, device and load reflections on the common grid
-out) and analysed by :func:`oneport.analysis.variants.analyse_variants`. Memory stays bounded by the
+out, with the facts the single check would know of each variant) and judged by the one
+judgement, :func:`oneport.analysis.judgement.judge`. Memory stays bounded by the
 chunk size; the result is the same whichever way the chunks are run, since each chunk is
 computed alone and the table is assembled in chunk order. Ctrl-C stops after the chunks already
 finished, which stay valid.
@@ -18,7 +19,8 @@ from typing import Any
 
 import numpy as np
 
-from ...analysis.variants import VERDICT_CODES, analyse_variants
+from ...analysis.judgement import Facts, judge
+from ...analysis.variants import VERDICT_CODES
 from .plan import SweepPlan
 
 VariantSource = Callable[[dict[str, np.ndarray]], tuple[np.ndarray, np.ndarray]]
@@ -48,7 +50,11 @@ class SweepResult:
 def chunk_bounds(
     variants: int, points: int, chunk_size: int | None = None
 ) -> list[tuple[int, int]]:
-    """(start, stop) of every chunk."""
+    """(start, stop) of every chunk; ``chunk_size`` must be a positive number of variants."""
+    if chunk_size is not None and chunk_size < 1:
+        from ...errors import InputError
+
+        raise InputError(f"--chunk-size {chunk_size}: give a whole number of variants, 1 or more")
     size = chunk_size or max(1, CHUNK_SAMPLES // max(points, 1))
     return [(start, min(start + size, variants)) for start in range(0, variants, size)]
 
@@ -60,17 +66,26 @@ def run_chunk(
     reference_impedance_ohm: float,
     dc_sign: int | None,
 ) -> dict[str, np.ndarray]:
-    """Evaluate and analyse one chunk; return its table columns."""
+    """Evaluate and judge one chunk; return its table columns.
+
+    A :class:`~oneport.products.sweep.sources.LoopSource` gives each variant's facts (P of
+    netlist sides, DC facts, the load's own grid, …); another callable gets the facts of a
+    measured load on this grid (or a netlist load when it says ``load_poles_known``).
+    """
     gamma_device, gamma_load = source(parameters)
     rows = next(iter(parameters.values())).shape[0] if parameters else 1
-    analysis = analyse_variants(
-        frequency_hz,
-        gamma_device,
-        gamma_load,
-        reference_impedance_ohm,
-        dc_sign,
-        load_poles_known=bool(getattr(source, "load_poles_known", False)),
-    )
+    shape = np.broadcast_shapes(np.shape(gamma_device), np.shape(gamma_load))
+    if len(shape) == 1:  # nothing the chunk varies reaches the reflections
+        gamma_device = np.broadcast_to(gamma_device, (rows, shape[0]))
+        gamma_load = np.broadcast_to(gamma_load, (rows, shape[0]))
+    facts_of = getattr(source, "facts", None)
+    if facts_of is not None:
+        facts = facts_of(parameters, dc_sign)
+    else:
+        facts = Facts(
+            dc_sign=dc_sign, load_is_netlist=bool(getattr(source, "load_poles_known", False))
+        )
+    analysis = judge(frequency_hz, gamma_device, gamma_load, facts).variant_analysis()
     columns = {name: np.asarray(values) for name, values in parameters.items()}
     for name in (
         "verdict_code",
