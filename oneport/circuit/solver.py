@@ -1,12 +1,18 @@
-"""Gaussian elimination of many small systems at once, one numpy operation per matrix entry.
+"""Gaussian elimination of many small systems at once, one numpy operation per step or entry.
 
 The equations of every (variant, frequency) point share one sparsity pattern, so elimination
 loops over matrix indices in Python (following the symbolic plan of
-:mod:`~oneport.circuit.topology`) and each step is a vector operation over all points. A small
-LAPACK call per point would be far slower. Op-amp and controlled-source rows have zero
-diagonals, so each column is pivoted per point: the row of largest magnitude among the plan's
-candidates is chosen, and rows are swapped only at the points that need it. Rows are scaled to
-unit maximum first, so a pivot below :data:`PIVOT_TOLERANCE` marks the point as singular.
+:mod:`~oneport.circuit.topology`) and each operation runs over all points. A small LAPACK call
+per point would be far slower.
+
+:func:`solve_sparse` is the first try: the stored coefficients only (a few per row, in the
+order of the plan's minimum-degree ordering), eliminated on the diagonal without row
+exchanges, each column in one gather–multiply–scatter. A point whose diagonal pivot is small
+next to the coefficients below it (a multiplier above :data:`GROWTH_LIMIT`), or tiny, is
+marked instead of trusted; :func:`solve` solves those points again with row exchanges: each
+column is pivoted per point, the row of largest magnitude among the plan's candidates chosen
+and rows swapped only at the points that need it. Rows are scaled to unit maximum first, so a
+pivot below :data:`PIVOT_TOLERANCE` marks the point as singular.
 """
 
 from __future__ import annotations
@@ -15,10 +21,91 @@ from collections.abc import Sequence
 
 import numpy as np
 
-from .topology import EliminationStep
+from .topology import EliminationStep, Plan
 
 #: A pivot this small (rows scaled to unit maximum) means the equations are singular there.
 PIVOT_TOLERANCE = 1e-13
+#: A multiplier (coefficient below the pivot / pivot) larger than this sends the point to
+#: elimination with row exchanges: the threshold of threshold pivoting (1/0.1, the common
+#: choice of sparse LU codes), which bounds growth, so both solvers agree to rounding.
+GROWTH_LIMIT = 10.0
+
+
+def solve_sparse(values: np.ndarray, plan: Plan) -> tuple[np.ndarray, np.ndarray]:
+    """Solve the stored [A | b] of every point for the plan's last ``solved`` unknowns.
+
+    Parameters
+    ----------
+    values : ndarray of complex, shape (len(plan.entries), M)
+        The coefficients at M points, in the plan's storage order; overwritten.
+    plan : Plan
+
+    Returns
+    -------
+    solution : ndarray of complex, shape (solved, K, M)
+        The last ``solved`` unknowns for each of the K right-hand sides.
+    unsure : ndarray of bool, shape (M,)
+        Points to solve again with row exchanges (their solution is not to be used).
+    """
+    unsure = _scale_stored_rows(values, plan)
+    for step in plan.steps:
+        pivot = values[step.pivot]
+        magnitude = np.abs(pivot)
+        unsure |= ~(magnitude > PIVOT_TOLERANCE)
+        if not step.below.size:
+            continue
+        below = values[step.below]
+        # A multiplier is below/pivot: bounded by GROWTH_LIMIT where the largest coefficient
+        # below (max(|re|, |im|), within √2 of its magnitude) is at most that many pivots.
+        unsure |= ~(_largest_part(below).max(axis=0) <= GROWTH_LIMIT * magnitude)
+        if step.right.size:
+            with np.errstate(divide="ignore", invalid="ignore"):
+                multipliers = below * (1.0 / pivot)
+            update = multipliers[:, None, :] * values[step.right][None, :, :]
+            values[step.updated] -= update.reshape(-1, values.shape[1])
+    return _back_substitute_stored(values, plan), unsure
+
+
+def _largest_part(values: np.ndarray) -> np.ndarray:
+    """max(|re|, |im|) of complex ``values``, elementwise (cheaper than the magnitude)."""
+    return np.maximum(np.abs(values.real), np.abs(values.imag))
+
+
+def _scale_stored_rows(values: np.ndarray, plan: Plan) -> np.ndarray:
+    """Divide each row by its largest coefficient (largest of |re|, |im|); a zero row is
+    marked. Any row scale leaves the solution as it is; this one keeps the pivot checks
+    relative."""
+    unsure = np.zeros(values.shape[1], dtype=bool)
+    starts = plan.row_starts
+    for row in range(plan.size):
+        coefficients = values[starts[row] : starts[row + 1]]
+        largest = _largest_part(coefficients).max(axis=0)
+        zero = largest == 0.0
+        if zero.any():
+            unsure |= zero
+            largest[zero] = 1.0
+        coefficients *= np.reciprocal(largest)
+    return unsure
+
+
+def _back_substitute_stored(values: np.ndarray, plan: Plan) -> np.ndarray:
+    size, ports = plan.size, len(plan.ports)
+    first = size - plan.solved
+    index = plan.index
+    solution = np.empty((plan.solved, ports, values.shape[1]), dtype=values.dtype)
+    for unknown in range(size - 1, first - 1, -1):
+        total = np.zeros((ports, values.shape[1]), dtype=values.dtype)
+        for k in range(ports):
+            entry = index.get((unknown, size + k))
+            if entry is not None:
+                total[k] = values[entry]
+        for column in range(unknown + 1, size):
+            entry = index.get((unknown, column))
+            if entry is not None:
+                total -= values[entry] * solution[column - first]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            solution[unknown - first] = total / values[index[unknown, unknown]]
+    return solution
 
 
 def solve(
