@@ -112,7 +112,8 @@ def scattering(
         for first in range(0, problem.variants, variant_chunk):
             variants = slice(first, min(first + variant_chunk, problem.variants))
             chunk = _Chunk(problem, axis, window, variants, workspace, compact)
-            chunk.scattering(reference_impedance_ohm, result[variants, :, :, window[0] : window[-1] + 1])
+            out = result[variants, :, :, window[0] : window[-1] + 1]
+            chunk.scattering(reference_impedance_ohm, out)
     if not np.isfinite(result).all():
         _refuse_non_finite(problem, frequency_hz, result)
     return result

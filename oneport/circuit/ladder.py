@@ -99,7 +99,8 @@ class _Reduction:
                 for node in element.nodes:
                     self.two_ports_at.setdefault(node, set()).add(self.next_id)
             else:
-                self._add_edge(element.nodes[0], element.nodes[-1], LadderNode("leaf", element=element))
+                leaf = LadderNode("leaf", element=element)
+                self._add_edge(element.nodes[0], element.nodes[-1], leaf)
 
     def run(self) -> LadderNode | None:
         queue = deque(sorted(set(self.edges_at) | set(self.two_ports_at)))
@@ -339,12 +340,11 @@ def _line_section(line: Line, context: StampContext, end: str, termination: Part
     c = characteristic if form == "z" else 1.0 / characteristic
     tr, ti = (t.real, t.imag) if form == "z" else (t.real, -t.imag)
     # N = T + c·t and D = c + T·t with T = a + jb; the result c·N/D = c·N·conj(D)/|D|².
-    numerator_real, numerator_imaginary = a + c * tr, b + c * ti
-    denominator_real = c + (a * tr - b * ti)
-    denominator_imaginary = a * ti + b * tr
-    scale = c / (denominator_real * denominator_real + denominator_imaginary * denominator_imaginary)
-    real = (numerator_real * denominator_real + numerator_imaginary * denominator_imaginary) * scale
-    imaginary = (numerator_imaginary * denominator_real - numerator_real * denominator_imaginary) * scale
+    n_real, n_imaginary = a + c * tr, b + c * ti
+    d_real, d_imaginary = c + (a * tr - b * ti), a * ti + b * tr
+    scale = c / (d_real * d_real + d_imaginary * d_imaginary)
+    real = (n_real * d_real + n_imaginary * d_imaginary) * scale
+    imaginary = (n_imaginary * d_real - n_real * d_imaginary) * scale
     return form, real, imaginary
 
 

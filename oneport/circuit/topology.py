@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import functools
 import heapq
+import itertools
 from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -310,7 +311,7 @@ def _augment(start: int, rows_of: list[list[int]], column_of_row: list[int]) -> 
             visited.add(row)
             if column_of_row[row] < 0:
                 column_of_row[row] = column
-                for (parent, _, _), (_, _, via) in zip(stack, stack[1:], strict=False):
+                for (parent, _, _), (_, _, via) in itertools.pairwise(stack):
                     assert via is not None
                     column_of_row[via] = parent
                 return True
