@@ -24,14 +24,18 @@ from ..errors import InputError
 from ..units import format_frequency
 from .elements import Element, StampContext
 from .ladder import LadderNode, evaluate_ladder
-from .solver import solve, solve_sparse
+from .solver import Stored, solve, solve_sparse
 from .topology import Plan
 
 #: Memory for the stored coefficients of one elimination chunk (a copy and the step
 #: temporaries add about as much again). Fastest of 1 to 64 MiB on a 12-node bridged netlist
 #: here (benchmarks/README.md): large enough that each numpy call runs over many thousands
 #: of points, small enough that a chunk's coefficients stay in the processor's caches.
-MATRIX_BUDGET_BYTES = 8 * 2**20
+MATRIX_BUDGET_BYTES = 16 * 2**20
+#: Points per elimination chunk at least, whatever the budget: below this, a large netlist's
+#: thousands of small steps cost more in numpy calls than in arithmetic (a 2,000-resistor
+#: mesh: 16 MiB alone gives 44 points a chunk and twice the time; benchmarks/README.md).
+LEAST_POINTS = 256
 #: Points per chunk at most on the closed-form path: 512 KiB per real temporary, large
 #: enough that per-chunk overhead vanishes and small enough to stay in cache (measured fastest
 #: of 4,096 to 2,097,152 here; benchmarks/README.md).
@@ -100,7 +104,7 @@ def scattering(
         points = CHUNK_POINTS
     else:
         stored = len((compact or plan).entries)
-        points = max(1, MATRIX_BUDGET_BYTES // (16 * stored))
+        points = max(LEAST_POINTS, MATRIX_BUDGET_BYTES // (16 * stored))
     frequencies = frequency_hz.size
     frequency_chunk = min(frequencies, points)
     variant_chunk = max(1, min(problem.variants, points // frequency_chunk))
@@ -311,20 +315,26 @@ class _Chunk:
 
 
 def _solve_with_exchanges(plan: Plan, stored: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Solve the points of ``stored`` (coefficients, (entries, K)) by elimination with row
-    exchanges on the full matrix, in batches that keep each matrix within the budget."""
-    size, ports = plan.size, len(plan.ports)
-    rows = np.fromiter((row for row, _ in plan.entries), dtype=np.intp)
-    columns = np.fromiter((column for _, column in plan.entries), dtype=np.intp)
+    """Solve the points of ``stored`` (the plan's coefficients, (entries, K)) by elimination
+    with row exchanges, in batches within the budget."""
+    steps, index = plan.pivoted
+    ports = len(plan.ports)
+    # The assembled coefficients (fill-in positions of the other plan hold zeros, skipped).
+    moved = [
+        (position, index[entry]) for position, entry in enumerate(plan.entries) if entry in index
+    ]
+    source = np.array([a for a, _ in moved], dtype=np.intp)
+    target = np.array([b for _, b in moved], dtype=np.intp)
     count = stored.shape[1]
-    batch = max(1, MATRIX_BUDGET_BYTES // (16 * size * (size + ports)))
+    batch = max(LEAST_POINTS, MATRIX_BUDGET_BYTES // (16 * len(index)))
     solution = np.empty((plan.solved, ports, count), dtype=complex)
     singular = np.zeros(count, dtype=bool)
     for first in range(0, count, batch):
         part = slice(first, min(first + batch, count))
-        matrix = np.zeros((size, size + ports, part.stop - part.start), dtype=complex)
-        matrix[rows, columns] = stored[:, part]
-        solution[:, :, part], singular[part] = solve(matrix, plan.pivoted_steps, plan.solved)
+        values = np.zeros((len(index), part.stop - part.start), dtype=complex)
+        values[target] = stored[source, part]
+        matrix = Stored(values, index)
+        solution[:, :, part], singular[part] = solve(matrix, steps, plan.size, ports, plan.solved)
     return solution, singular
 
 
@@ -360,8 +370,8 @@ def _refuse_non_finite(problem: Problem, frequency_hz: np.ndarray, result: np.nd
         if not finite:
             raise InputError(
                 f"{problem.source}: {element.where()} has no finite value {where}: its values"
-                " are too large or too small for this frequency; give values within the"
-                " bounds of docs/netlist.md"
+                " are too large or too small for this frequency (value bounds: docs/netlist.md);"
+                " keep the grid and the values within them"
             )
     raise InputError(
         f"{problem.source}: the circuit equations overflow {where}: no finite answer; look"

@@ -112,10 +112,16 @@ class Plan:
         return {entry: position for position, entry in enumerate(self.entries)}
 
     @functools.cached_property
-    def pivoted_steps(self) -> tuple[EliminationStep, ...]:
+    def pivoted(self) -> tuple[tuple[EliminationStep, ...], dict[tuple[int, int], int]]:
         """The symbolic elimination with row exchanges among candidate rows (for the points
-        where the diagonal pivots are too small); planned only when first needed."""
-        return _eliminate_symbolically(self.structure)
+        where the diagonal pivots are too small), and the storage index of every entry it
+        touches; planned only when first needed."""
+        steps = _eliminate_symbolically(self.structure)
+        touched = {(int(r), int(c)) for r, c in zip(*np.nonzero(self.structure), strict=True)}
+        for step in steps:
+            for row in step.rows:
+                touched.update((row, column) for column in (step.column, *step.columns))
+        return steps, {entry: position for position, entry in enumerate(sorted(touched))}
 
 
 def validate(elements: Sequence[Element], ports: Sequence[Port], fail: Failure) -> None:
