@@ -11,14 +11,18 @@ from __future__ import annotations
 import hashlib
 from collections.abc import Mapping
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from ..errors import InputError
 from ..reading.touchstone import Multiport, OnePort
-from .model import Circuit
-from .netlist import CIRCUIT_SUFFIXES, read_circuit
+
+if TYPE_CHECKING:
+    from .model import Circuit
+
+#: File suffixes read as netlists.
+CIRCUIT_SUFFIXES = (".cir",)
 
 
 def is_circuit_path(path: str | Path) -> bool:
@@ -105,6 +109,9 @@ def multiport_from_circuit(
 
 
 def _circuit(circuit: str | Path | Circuit) -> tuple[Circuit, str | None]:
+    from .model import Circuit
+    from .netlist import read_circuit
+
     if isinstance(circuit, Circuit):
         return circuit, None
     built = read_circuit(circuit)

@@ -16,12 +16,14 @@ from __future__ import annotations
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 
-from ..reading.touchstone import Multiport
 from .values import ValueSpec
+
+if TYPE_CHECKING:
+    from ..reading.touchstone import Multiport
 
 #: ``add(row, column, value)``; a row or column of None (ground) is skipped.
 Adder = Callable[[int | None, int | None, Any], None]
@@ -130,7 +132,11 @@ LONGEST_DELAY_S = 1e-3
 
 @dataclass(frozen=True, kw_only=True)
 class Element:
-    """Base of every element: a name, terminal nodes, values and the line it came from."""
+    """Base of every element: a name, terminal nodes, values and the line it came from.
+
+    Subclasses that add no fields are plain subclasses: they inherit the dataclass methods
+    (and cost nothing to define at import time).
+    """
 
     name: str
     nodes: tuple[str, ...]
@@ -186,7 +192,6 @@ def _stamp_branch_incidence(add: Adder, a: int | None, b: int | None, branch: in
     add(branch, b, -1.0)
 
 
-@dataclass(frozen=True, kw_only=True)
 class Resistor(Element):
     """``R`` between two nodes; negative values allowed, zero refused."""
 
@@ -205,7 +210,6 @@ class Resistor(Element):
         _stamp_admittance(add, nodes[0], nodes[1], 1.0 / context.values["resistance"])
 
 
-@dataclass(frozen=True, kw_only=True)
 class Inductor(Element):
     """``L`` with an optional series resistance ``rser`` or constant quality factor ``q``."""
 
@@ -261,7 +265,6 @@ class Inductor(Element):
         add(branches[0], branches[0], -self.impedance(context))
 
 
-@dataclass(frozen=True, kw_only=True)
 class Capacitor(Element):
     """``C`` with an optional series resistance ``rser`` or constant quality factor ``q``."""
 
@@ -328,7 +331,6 @@ class Capacitor(Element):
         add(branch, branch, -(1.0 + sc * context.values["rser"]))
 
 
-@dataclass(frozen=True, kw_only=True)
 class Transconductance(Element):
     """``G``: current gm·(V(c+) − V(c−)) from node out+ through the source to node out−."""
 
@@ -347,7 +349,6 @@ class Transconductance(Element):
         add(out_negative, control_negative, gm)
 
 
-@dataclass(frozen=True, kw_only=True)
 class Line(Element):
     """``T``: a TEM line between two node pairs, by ``z0`` and ``len``/``eeff`` or ``delay``.
 
@@ -431,7 +432,6 @@ class Line(Element):
         add(second, second, cosh)
 
 
-@dataclass(frozen=True, kw_only=True)
 class OpAmp(Element):
     """An op-amp with output referred to ground and open-loop gain 1/(1/a0 + s/(2π·gbw)).
 
@@ -518,7 +518,6 @@ class Block(Element):
                 add(row, branches[j], -(z0[i] if i == j else 0.0) - s[i, j] * ratio * z0[j])
 
 
-@dataclass(frozen=True, kw_only=True)
 class CompactInductor(Inductor):
     """An inductor stamped as its admittance 1/Z, without a branch current.
 
@@ -536,7 +535,6 @@ class CompactInductor(Inductor):
         _stamp_admittance(add, nodes[0], nodes[1], 1.0 / self.impedance(context))
 
 
-@dataclass(frozen=True, kw_only=True)
 class CompactCapacitor(Capacitor):
     """A capacitor with series resistance stamped as its admittance, without a branch current."""
 

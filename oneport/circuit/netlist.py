@@ -27,12 +27,12 @@ from pathlib import Path
 
 from ..errors import FileFormatError
 from .blocks import read_block_file
+from .conversion import CIRCUIT_SUFFIXES
 from .elements import ELEMENT_TYPES, Block, Element
 from .model import Circuit
 from .values import ParameterReference, ValueSpec, ValueTokenError, is_name, parse_value
 
-#: File suffixes read as netlists.
-CIRCUIT_SUFFIXES = (".cir",)
+__all__ = ["CIRCUIT_SUFFIXES", "parse_circuit", "read_circuit"]
 
 
 @dataclass(frozen=True)
