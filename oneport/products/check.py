@@ -7,6 +7,7 @@ Data flow: read (``reading.touchstone``, or a netlist through ``circuit``) → a
 
 from __future__ import annotations
 
+import sys
 from dataclasses import replace
 from pathlib import Path
 from typing import Any
@@ -145,12 +146,16 @@ def _resolve_sides(
 def _as_circuit(source: OneportSource) -> Any:
     """The :class:`~oneport.circuit.Circuit` a source describes, or None for data."""
     if isinstance(source, str | Path):
-        from ..circuit import is_circuit_path, read_circuit
+        from ..circuit.conversion import is_circuit_path
 
-        return read_circuit(source) if is_circuit_path(source) else None
-    from ..circuit import Circuit
+        if not is_circuit_path(source):
+            return None  # a data file: the circuit engine is not loaded
+        from ..circuit import read_circuit
 
-    return source if isinstance(source, Circuit) else None
+        return read_circuit(source)
+    # No Circuit can exist unless its module is loaded: records alone never load the engine.
+    model = sys.modules.get("oneport.circuit.model")
+    return source if model is not None and isinstance(source, model.Circuit) else None
 
 
 def _netlist_poles(circuit: Any, role: str, z0: float) -> tuple[int, str]:
