@@ -28,7 +28,7 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from bench_sweep import NETLIST, write_device  # noqa: E402
+from bench_sweep import NETLIST, write_device
 
 
 def sweep_command(device: Path, load: Path, table: Path, samples: int, extra: list[str]):

@@ -106,10 +106,10 @@ def run_sweep(
     """Run every chunk of ``plan``; ``progress(n)`` is called with each finished chunk's size.
 
     ``scheduler`` (``tcp://host:port``) sends chunks to a running Dask cluster; ``workers``
-    > 1 starts a local one. Without either, chunks run here on ``threads`` threads (default
-    one: the netlist's closed form makes many short numpy calls with fresh temporaries, and
-    two threads spent most of their time waiting for the interpreter lock on a 6-element
-    load; measured in benchmarks/README.md). Every chunk is computed alone, so the table is
+    (one or more) starts a local one of that many worker processes. Without either, chunks
+    run here on ``threads`` threads (default one: the netlist's closed form makes many short
+    numpy calls with fresh temporaries, and two threads spent most of their time waiting for
+    the interpreter lock on a 6-element load; measured in benchmarks/README.md). Every chunk is computed alone, so the table is
     the same in every case.
     """
     bounds = chunk_bounds(plan.variants, frequency_hz.size, chunk_size)
@@ -156,7 +156,7 @@ def _execute(
     threads: int | None,
 ) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
     arguments = (frequency_hz, reference_impedance_ohm, dc_sign)
-    if scheduler is None and (workers is None or workers <= 1):
+    if scheduler is None and (workers is None or workers < 1):
         yield from _execute_here(plan, source, arguments, bounds, threads)
         return
     yield from _execute_on_dask(plan, source, arguments, bounds, scheduler, workers)
