@@ -109,8 +109,8 @@ def run_sweep(
     (one or more) starts a local one of that many worker processes. Without either, chunks
     run here on ``threads`` threads (default one: the netlist's closed form makes many short
     numpy calls with fresh temporaries, and two threads spent most of their time waiting for
-    the interpreter lock on a 6-element load; measured in benchmarks/README.md). Every chunk is computed alone, so the table is
-    the same in every case.
+    the interpreter lock on a 6-element load; measured in benchmarks/README.md). Every chunk
+    is computed alone, so the table is the same in every case.
     """
     bounds = chunk_bounds(plan.variants, frequency_hz.size, chunk_size)
     finished: dict[int, dict[str, np.ndarray]] = {}
