@@ -241,3 +241,13 @@ def test_a_point_without_a_finite_answer_names_the_element() -> None:
             InputError, match=r"x: C1 \(line 2\) has no finite value at 1e\+297 GHz"
         ):
             circuit.evaluate(np.array([1.0, 1e306]), Z0, {}, method=method)
+
+
+def test_a_line_of_absurd_delay_is_refused_before_any_json_is_written(tmp_path: Path) -> None:
+    # Issue reproducer: `T1 1 0 0 0 z0=50 delay=1e300` once gave NaN in --json (invalid JSON).
+    load = tmp_path / "stub.cir"
+    load.write_text("T1 1 0 0 0 z0=50 delay=1e300\n.oneport 1\n")
+    device = EXAMPLES / "stable" / "device.s1p"
+    code, out, err = run_cli("check", device, "--load", load, "--json")
+    assert code == 2 and out == ""
+    assert err.count("\n") == 1 and "T1: delay = 1e+300 s" in err
