@@ -49,7 +49,7 @@ class EliminationStep:
     columns: tuple[int, ...]
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class SparseStep:
     """One column of the elimination without row exchanges, as indices into the stored
     coefficients: the pivot, the coefficients below it (one per row to update), the pivot
@@ -61,7 +61,7 @@ class SparseStep:
     updated: np.ndarray
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class Plan:
     """The equations' layout: unknowns, where each element and port writes, elimination order.
 
