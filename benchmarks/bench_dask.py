@@ -8,9 +8,10 @@ Run by hand from the repository root::
 The workload is the sweep benchmark's (``bench_sweep.py``): the invented demo diode on 2,001
 log points against the 6-element load with a 1 cm line, here with L and C drawn within ±20 %.
 The three runs are interleaved and repeated; min and median are printed, the tables are
-compared, and anything a run wrote on stderr is shown (there should be nothing). The cluster's
-start-up and shutdown are timed apart, inside one process (``_local_cluster``, as
-``--workers`` starts it).
+compared, and anything a run wrote on stderr is shown (there should be nothing). Then the same
+three through the API in this process (``run_sweep``: the sweep alone, the cluster's start
+and close included, the imports and the table not), and the cluster's start-up and shutdown
+timed apart (``_local_cluster``, as ``--workers`` starts it).
 """
 
 from __future__ import annotations
@@ -57,6 +58,35 @@ def start_up() -> tuple[float, float]:
         client.close()
         cluster.close()
         return started, time.perf_counter() - start
+
+
+def sweep_in_process(device: Path, load: Path, samples: int, repeats: int):
+    """``run_sweep`` here, on one and on two local workers: seconds per run."""
+    import distributed  # noqa: F401  (imported once, outside the timing)
+
+    from oneport.circuit import read_circuit
+    from oneport.products.sweep import monte_carlo_plan, run_sweep
+    from oneport.products.sweep.sources import LoopSource, Side
+    from oneport.reading.touchstone import read_one_port
+
+    device_port = read_one_port(device)
+    circuit = read_circuit(load)
+    frequency_hz = device_port.frequency_hz
+    source = LoopSource(
+        frequency_hz,
+        50.0,
+        Side(gamma=device_port.gamma),
+        Side(circuit=circuit, parameters=("L", "C")),
+    )
+    plan = monte_carlo_plan([("L", 0.2), ("C", 0.2)], circuit.parameters, samples, seed=5)
+    runs = {"in this process": None, "1 worker": 1, "2 workers": 2}
+    times: dict[str, list[float]] = {name: [] for name in runs}
+    for _ in range(repeats):
+        for name, workers in runs.items():
+            start = time.perf_counter()
+            run_sweep(plan, source, frequency_hz, 50.0, workers=workers)
+            times[name].append(time.perf_counter() - start)
+    return times
 
 
 def main() -> None:
@@ -113,6 +143,12 @@ def main() -> None:
         for column in tables[0].column_names
     )
     print(f"tables identical: {same}; stderr: {errors or 'nothing'}")
+    api = sweep_in_process(device, load, arguments.samples, arguments.repeats)
+    print(f"{'run_sweep (API)':20s}{'min':>8s}{'median':>9s}")
+    for name, values in api.items():
+        print(f"{name:20s}{min(values):7.2f}s{statistics.median(values):8.2f}s")
+    one, two, here = (min(api[name]) for name in ("1 worker", "2 workers", "in this process"))
+    print(f"run_sweep: 2 workers {one / two:.2f}x faster than 1, {here / two:.2f}x than here")
     started, closed = start_up()
     print(f"two-worker cluster: start-up {started:.2f} s, shutdown {closed:.2f} s")
     print(f"load average at the end {os.getloadavg()[0]:.2f}")
