@@ -251,3 +251,41 @@ def test_a_line_of_absurd_delay_is_refused_before_any_json_is_written(tmp_path: 
     code, out, err = run_cli("check", device, "--load", load, "--json")
     assert code == 2 and out == ""
     assert err.count("\n") == 1 and "T1: delay = 1e+300 s" in err
+
+
+def _random_load(generator: np.random.Generator) -> str:
+    """A random cascade of series and shunt R, L, C, lines, open and shorted stubs, ended by
+    a resistor, sometimes bridged by one more resistor (then elimination answers)."""
+    lines, chain = [], ["1"]
+    for k in range(int(generator.integers(2, 9))):
+        kind = str(generator.choice(["R", "L", "C", "shunt", "line", "open", "short"]))
+        here, there = chain[-1], f"n{k}"
+        z0, delay = generator.uniform(20, 120), generator.uniform(1e-12, 150e-12)
+        if kind in ("R", "L", "C"):
+            value = {"R": 60.0, "L": 4e-9, "C": 2e-12}[kind] * generator.uniform(0.1, 2)
+            lines.append(f"{kind}{k} {here} {there} {value}")
+            chain.append(there)
+        elif kind == "shunt":
+            lines.append(f"C{k} {here} 0 {generator.uniform(0.2e-12, 5e-12)} q=50")
+        elif kind == "line":
+            loss = f" loss={generator.uniform(0, 2):.3f} at=1g" if generator.random() < 0.5 else ""
+            lines.append(f"T{k} {here} 0 {there} 0 z0={z0} delay={delay}{loss}")
+            chain.append(there)
+        else:
+            far = there if kind == "open" else "0"
+            lines.append(f"T{k} {here} 0 {far} 0 z0={z0} delay={delay}")
+    lines.append(f"Rend {chain[-1]} 0 {generator.uniform(1, 300)}")
+    if len(chain) > 2 and generator.random() < 0.3:
+        lines.append(f"Rbridge {chain[0]} {chain[-2]} {generator.uniform(10, 300)}")
+    return "\n".join(lines) + "\n.oneport 1"
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_random_loads_with_lines_agree_between_paths(seed: int) -> None:
+    generator = np.random.default_rng(seed)
+    frequency_hz = np.linspace(1e6, 15e9, 201)
+    for _ in range(15):
+        circuit = parse_circuit(_random_load(generator), source="random load")
+        closed = circuit.evaluate(frequency_hz, Z0, {})
+        eliminated = circuit.evaluate(frequency_hz, Z0, {}, method="elimination")
+        np.testing.assert_allclose(closed, eliminated, rtol=0, atol=1e-11)
