@@ -48,11 +48,15 @@ def test_chunked_evaluation_equals_one_chunk(monkeypatch: pytest.MonkeyPatch) ->
     circuit = read_circuit(EXAMPLES / "bias_tee.cir")
     frequency_hz = np.geomspace(1e6, 6e9, 301)
     params = {"LCHOKE": np.linspace(100e-9, 400e-9, 37)}
-    whole = circuit.gamma(frequency_hz, 50.0, **params)
-    monkeypatch.setattr(engine, "MATRIX_BUDGET_BYTES", 16 * 100 * 11 * 12)
-    chunked = circuit.gamma(frequency_hz, 50.0, **params)
-    np.testing.assert_array_equal(whole.shape, (37, 301))
+    whole = circuit.evaluate(frequency_hz, 50.0, params, method="elimination")
+    monkeypatch.setattr(engine, "MATRIX_BUDGET_BYTES", 16 * 100 * 40)
+    monkeypatch.setattr(engine, "LEAST_POINTS", 1)
+    chunked = circuit.evaluate(frequency_hz, 50.0, params, method="elimination")
+    np.testing.assert_array_equal(whole.shape, (37, 1, 1, 301))
     np.testing.assert_allclose(chunked, whole, rtol=0, atol=1e-13)
+    np.testing.assert_allclose(
+        circuit.gamma(frequency_hz, 50.0, **params), whole[:, 0, 0], atol=1e-12
+    )
 
 
 def test_array_parameters_broadcast_to_leading_axes() -> None:

@@ -96,7 +96,7 @@ def test_parameter_names_ignore_case_and_unknown_names_are_refused() -> None:
 def test_parameter_values_are_checked_against_element_rules() -> None:
     circuit = read_circuit(EXAMPLES / "tunnel_diode.cir")
     with pytest.raises(
-        FileFormatError, match=r"tunnel_diode.cir:5: Rs: resistance = 0 \(parameter"
+        FileFormatError, match=r"tunnel_diode.cir:5: Rs: resistance = 0 ohm \(parameter"
     ):
         circuit.gamma([1e9], RS=[4.0, 0.0])
 

@@ -10,8 +10,10 @@ at support points of scipy's AAA, does not chase measurement noise. Pure computa
 
 from __future__ import annotations
 
+import functools
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any
+from typing import Any, TypeVar
 
 import numpy as np
 
@@ -134,6 +136,36 @@ class FitSet:
 # Fitting
 
 
+_Result = TypeVar("_Result")
+
+
+def _one_blas_thread(function: Callable[..., _Result]) -> Callable[..., _Result]:
+    """Run ``function`` with one BLAS thread.
+
+    The least-squares problems here are small (a few thousand rows, tens of columns): a
+    multi-threaded BLAS spends more on waking and synchronising its threads than on the
+    arithmetic, and on a busy machine far more (``oneport poles`` took 3–5× longer with two
+    threads; benchmarks/README.md).
+    """
+
+    @functools.wraps(function)
+    def limited(*args: Any, **kwargs: Any) -> _Result:
+        with _blas_controller().limit(limits=1, user_api="blas"):
+            return function(*args, **kwargs)
+
+    return limited
+
+
+@functools.cache
+def _blas_controller() -> Any:
+    """The thread pools of the loaded BLAS libraries (looked up once: the look-up walks every
+    loaded library)."""
+    from threadpoolctl import ThreadpoolController
+
+    return ThreadpoolController()
+
+
+@_one_blas_thread
 def fit_rational(
     frequency_hz: np.ndarray, values: np.ndarray, order: int, *, proper: bool = True
 ) -> RationalModel:
@@ -183,6 +215,7 @@ def fit_rational(
     return _final_model(x, values, poles, proper, scale)
 
 
+@_one_blas_thread
 def fit_with_variants(
     frequency_hz: np.ndarray,
     values: np.ndarray,

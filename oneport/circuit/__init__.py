@@ -17,11 +17,34 @@ Examples
 (3, 5)
 """
 
-from .conversion import is_circuit_path, multiport_from_circuit, one_port_from_circuit
-from .model import Circuit
-from .netlist import CIRCUIT_SUFFIXES, parse_circuit, read_circuit
-from .topology import Port
-from .writer import touchstone_text, write_touchstone
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from .conversion import (
+        CIRCUIT_SUFFIXES,
+        is_circuit_path,
+        multiport_from_circuit,
+        one_port_from_circuit,
+    )
+    from .model import Circuit
+    from .netlist import parse_circuit, read_circuit
+    from .topology import Port
+    from .writer import touchstone_text, write_touchstone
+
+#: Where each public name lives. They are imported on first use, so that asking whether a
+#: path is a netlist (``is_circuit_path``) does not load the engine.
+_HOMES = {
+    "CIRCUIT_SUFFIXES": "conversion",
+    "is_circuit_path": "conversion",
+    "multiport_from_circuit": "conversion",
+    "one_port_from_circuit": "conversion",
+    "Circuit": "model",
+    "parse_circuit": "netlist",
+    "read_circuit": "netlist",
+    "Port": "topology",
+    "touchstone_text": "writer",
+    "write_touchstone": "writer",
+}
 
 __all__ = [
     "CIRCUIT_SUFFIXES",
@@ -35,3 +58,13 @@ __all__ = [
     "touchstone_text",
     "write_touchstone",
 ]
+
+
+def __getattr__(name: str) -> Any:
+    if name not in _HOMES:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    import importlib
+
+    value = getattr(importlib.import_module(f".{_HOMES[name]}", __name__), name)
+    globals()[name] = value
+    return value

@@ -11,20 +11,25 @@ from __future__ import annotations
 import hashlib
 from collections.abc import Mapping
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from ..errors import InputError
-from ..reading.files import read_user_bytes
+from ..reading.files import NETLIST_SUFFIXES, is_netlist_path, read_user_bytes
 from ..reading.touchstone import Multiport, OnePort
-from .model import Circuit
-from .netlist import CIRCUIT_SUFFIXES, read_circuit
+
+if TYPE_CHECKING:
+    from .model import Circuit
+
+#: File suffixes read as netlists.
+#: File suffixes read as netlists (one list, in :mod:`oneport.reading.files`).
+CIRCUIT_SUFFIXES = NETLIST_SUFFIXES
 
 
 def is_circuit_path(path: str | Path) -> bool:
     """Whether ``path`` names a netlist (by its suffix, ``.cir``)."""
-    return Path(path).suffix.lower() in CIRCUIT_SUFFIXES
+    return is_netlist_path(path)
 
 
 def one_port_from_circuit(
@@ -106,6 +111,9 @@ def multiport_from_circuit(
 
 
 def _circuit(circuit: str | Path | Circuit) -> tuple[Circuit, str | None]:
+    from .model import Circuit
+    from .netlist import read_circuit
+
     if isinstance(circuit, Circuit):
         return circuit, None
     built = read_circuit(circuit)

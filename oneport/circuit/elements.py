@@ -16,12 +16,14 @@ from __future__ import annotations
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
-from typing import Any, ClassVar
+from typing import TYPE_CHECKING, Any, ClassVar
 
 import numpy as np
 
-from ..reading.touchstone import Multiport
 from .values import ValueSpec
+
+if TYPE_CHECKING:
+    from ..reading.touchstone import Multiport
 
 #: ``add(row, column, value)``; a row or column of None (ground) is skipped.
 Adder = Callable[[int | None, int | None, Any], None]
@@ -77,9 +79,64 @@ class StampContext:
         return product
 
 
+@dataclass(frozen=True)
+class Rule:
+    """What one value may be: its sign and the range of its magnitude (SI units).
+
+    The ranges reach far beyond any part of an RF circuit and keep every product with a
+    frequency finite and meaningful in double precision; docs/netlist.md lists them.
+    """
+
+    sign: str = "any"  # "any", "nonzero", "positive" or "nonnegative"
+    largest: float = math.inf
+    #: The smallest nonzero magnitude (zero itself is governed by ``sign``).
+    smallest: float = 0.0
+    unit: str = ""
+
+    def broken(self, value: Any) -> np.ndarray:
+        """Where ``value`` (a number or an array) breaks the rule (NaN and ±inf always do)."""
+        array = np.asarray(value, dtype=float)
+        magnitude = np.abs(array)
+        broken = ~np.isfinite(array) | (magnitude > self.largest)
+        broken |= (magnitude < self.smallest) & (array != 0)
+        if self.sign == "nonzero":
+            broken |= array == 0
+        elif self.sign == "positive":
+            broken |= array <= 0
+        elif self.sign == "nonnegative":
+            broken |= array < 0
+        return broken
+
+    def accepted(self) -> str:
+        """``"positive, from 0.001 to 1e+09"``: the words for a message."""
+        unit = f" {self.unit}" if self.unit else ""
+        low = f"{self.smallest:g}" if self.smallest > 0 else "0"
+        span = f"from {low} to {self.largest:g}{unit}"
+        if self.sign == "positive":
+            return f"positive, {span}"
+        if self.sign == "nonnegative":
+            return f"0 or {span}" if self.smallest > 0 else span
+        magnitude = f"{span} in magnitude"
+        if self.sign == "nonzero":
+            return f"nonzero, {magnitude}"
+        return f"0 or {magnitude}" if self.smallest > 0 else magnitude
+
+
+#: Bounds shared by several elements (docs/netlist.md, "Value bounds").
+RESISTANCE = Rule("nonzero", largest=1e15, smallest=1e-12, unit="ohm")
+SERIES_RESISTANCE = Rule("any", largest=1e15, unit="ohm")
+QUALITY_FACTOR = Rule("positive", largest=1e9, smallest=1e-3)
+#: The longest line: its delay (given, or len·√eeff/c) at most 1 ms, 300 km of air line.
+LONGEST_DELAY_S = 1e-3
+
+
 @dataclass(frozen=True, kw_only=True)
 class Element:
-    """Base of every element: a name, terminal nodes, values and the line it came from."""
+    """Base of every element: a name, terminal nodes, values and the line it came from.
+
+    Subclasses that add no fields are plain subclasses: they inherit the dataclass methods
+    (and cost nothing to define at import time).
+    """
 
     name: str
     nodes: tuple[str, ...]
@@ -88,8 +145,8 @@ class Element:
 
     letter: ClassVar[str] = ""
     kind: ClassVar[str] = ""
-    #: Value keys and their rule: "nonzero", "positive", "nonnegative" or "any".
-    rules: ClassVar[dict[str, str]] = {}
+    #: Value keys and their rules (a key without one takes any finite value).
+    rules: ClassVar[dict[str, Rule]] = {}
 
     @property
     def branches(self) -> int:
@@ -115,6 +172,10 @@ class Element:
         """``R1 (line 4)`` or ``R1``, for messages."""
         return f"{self.name} (line {self.line})" if self.line is not None else self.name
 
+    def combination_problem(self, values: dict[str, Any]) -> tuple[np.ndarray, str] | None:
+        """Values that break a rule together (each within its own range): where, and why."""
+        return None
+
 
 def _stamp_admittance(add: Adder, a: int | None, b: int | None, admittance: Any) -> None:
     add(a, a, admittance)
@@ -131,13 +192,12 @@ def _stamp_branch_incidence(add: Adder, a: int | None, b: int | None, branch: in
     add(branch, b, -1.0)
 
 
-@dataclass(frozen=True, kw_only=True)
 class Resistor(Element):
     """``R`` between two nodes; negative values allowed, zero refused."""
 
     letter: ClassVar[str] = "R"
     kind: ClassVar[str] = "resistor"
-    rules: ClassVar[dict[str, str]] = {"resistance": "nonzero"}
+    rules: ClassVar[dict[str, Rule]] = {"resistance": RESISTANCE}
 
     def parts(self, context: StampContext, wanted: str) -> tuple[str, Any, Any]:
         """``("z", R, 0)`` or ``("y", 1/R, 0)``: parts as in :mod:`oneport.circuit.ladder`."""
@@ -150,13 +210,22 @@ class Resistor(Element):
         _stamp_admittance(add, nodes[0], nodes[1], 1.0 / context.values["resistance"])
 
 
-@dataclass(frozen=True, kw_only=True)
 class Inductor(Element):
     """``L`` with an optional series resistance ``rser`` or constant quality factor ``q``."""
 
     letter: ClassVar[str] = "L"
     kind: ClassVar[str] = "inductor"
-    rules: ClassVar[dict[str, str]] = {"inductance": "any", "rser": "any", "q": "positive"}
+    rules: ClassVar[dict[str, Rule]] = {
+        "inductance": Rule("any", largest=1e3, smallest=1e-18, unit="H"),
+        "rser": SERIES_RESISTANCE,
+        "q": QUALITY_FACTOR,
+    }
+
+    def combination_problem(self, values: dict[str, Any]) -> tuple[np.ndarray, str] | None:
+        if "q" not in values:
+            return None
+        zero = np.asarray(values["inductance"]) == 0
+        return zero, "q= needs a nonzero inductance (a quality factor of no reactance is no loss)"
 
     @property
     def rational(self) -> bool:
@@ -196,13 +265,22 @@ class Inductor(Element):
         add(branches[0], branches[0], -self.impedance(context))
 
 
-@dataclass(frozen=True, kw_only=True)
 class Capacitor(Element):
     """``C`` with an optional series resistance ``rser`` or constant quality factor ``q``."""
 
     letter: ClassVar[str] = "C"
     kind: ClassVar[str] = "capacitor"
-    rules: ClassVar[dict[str, str]] = {"capacitance": "any", "rser": "any", "q": "positive"}
+    rules: ClassVar[dict[str, Rule]] = {
+        "capacitance": Rule("any", largest=1e3, smallest=1e-21, unit="F"),
+        "rser": SERIES_RESISTANCE,
+        "q": QUALITY_FACTOR,
+    }
+
+    def combination_problem(self, values: dict[str, Any]) -> tuple[np.ndarray, str] | None:
+        if "q" not in values:
+            return None
+        zero = np.asarray(values["capacitance"]) == 0
+        return zero, "q= needs a nonzero capacitance (a zero capacitance is an open)"
 
     @property
     def rational(self) -> bool:
@@ -253,13 +331,12 @@ class Capacitor(Element):
         add(branch, branch, -(1.0 + sc * context.values["rser"]))
 
 
-@dataclass(frozen=True, kw_only=True)
 class Transconductance(Element):
     """``G``: current gm·(V(c+) − V(c−)) from node out+ through the source to node out−."""
 
     letter: ClassVar[str] = "G"
     kind: ClassVar[str] = "transconductance"
-    rules: ClassVar[dict[str, str]] = {"gm": "any"}
+    rules: ClassVar[dict[str, Rule]] = {"gm": Rule("any", largest=1e6, unit="S")}
 
     def stamp(
         self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
@@ -272,7 +349,6 @@ class Transconductance(Element):
         add(out_negative, control_negative, gm)
 
 
-@dataclass(frozen=True, kw_only=True)
 class Line(Element):
     """``T``: a TEM line between two node pairs, by ``z0`` and ``len``/``eeff`` or ``delay``.
 
@@ -282,14 +358,31 @@ class Line(Element):
 
     letter: ClassVar[str] = "T"
     kind: ClassVar[str] = "transmission line"
-    rules: ClassVar[dict[str, str]] = {
-        "z0": "positive",
-        "len": "nonnegative",
-        "eeff": "positive",
-        "delay": "nonnegative",
-        "loss": "nonnegative",
-        "at": "positive",
+    rules: ClassVar[dict[str, Rule]] = {
+        "z0": Rule("positive", largest=1e6, smallest=1e-3, unit="ohm"),
+        "len": Rule("nonnegative", largest=LONGEST_DELAY_S * SPEED_OF_LIGHT_M_PER_S, unit="m"),
+        "eeff": Rule("positive", largest=1e4, smallest=1.0),
+        "delay": Rule("nonnegative", largest=LONGEST_DELAY_S, unit="s"),
+        "loss": Rule("nonnegative", largest=1e3, unit="dB"),
+        "at": Rule("positive", largest=1e15, smallest=1.0, unit="Hz"),
     }
+
+    def combination_problem(self, values: dict[str, Any]) -> tuple[np.ndarray, str] | None:
+        if "len" not in values:
+            return None
+        delay = self.delay(values)
+        return (
+            np.asarray(delay > LONGEST_DELAY_S),
+            f"the line's delay len·√eeff/c must be at most {LONGEST_DELAY_S:g} s"
+            " (300 km of air line)",
+        )
+
+    @staticmethod
+    def delay(values: dict[str, Any]) -> Any:
+        """The line's delay, s: given, or len·√eeff/c."""
+        if "delay" in values:
+            return values["delay"]
+        return values["len"] * np.sqrt(values.get("eeff", 1.0)) / SPEED_OF_LIGHT_M_PER_S
 
     @property
     def rational(self) -> bool:
@@ -305,11 +398,7 @@ class Line(Element):
     def propagation(self, context: StampContext) -> Any:
         """γ·ℓ = α·ℓ + s·τ, the whole line's propagation."""
         values = context.values
-        if "delay" in values:
-            delay = values["delay"]
-        else:
-            delay = values["len"] * np.sqrt(values.get("eeff", 1.0)) / SPEED_OF_LIGHT_M_PER_S
-        propagation = context.times_s(delay)
+        propagation = context.times_s(self.delay(values))
         if "loss" in values:
             scale = np.sqrt(np.abs(context.frequency_hz) / values["at"])
             propagation = propagation + values["loss"] * _NEPER_PER_DB * scale
@@ -320,26 +409,29 @@ class Line(Element):
     ) -> None:
         p1, n1, p2, n2 = nodes
         first, second = branches
-        propagation = self.propagation(context)
+        # V1 = cosh·V2 − Z0·sinh·I2 and I1 = sinh/Z0·V2 − cosh·I2 (I2 into port 2), both rows
+        # multiplied by 2·e^(−γℓ): cosh and sinh become 1 ± e^(−2γℓ), which never overflow
+        # however long or lossy the line (|e^(−γℓ)| <= 1).
+        decay = np.exp(-self.propagation(context))
+        weight = 2.0 * decay
+        squared = decay * decay
+        cosh, sinh = 1.0 + squared, 1.0 - squared
         z0 = context.values["z0"]
-        cosh, sinh = np.cosh(propagation), np.sinh(propagation)
         add(p1, first, 1.0)
         add(n1, first, -1.0)
         add(p2, second, 1.0)
         add(n2, second, -1.0)
-        # V1 = cosh·V2 − Z0·sinh·I2 and I1 = sinh/Z0·V2 − cosh·I2 (I2 into port 2).
-        add(first, p1, 1.0)
-        add(first, n1, -1.0)
+        add(first, p1, weight)
+        add(first, n1, -weight)
         add(first, p2, -cosh)
         add(first, n2, cosh)
         add(first, second, z0 * sinh)
-        add(second, first, 1.0)
+        add(second, first, weight)
         add(second, p2, -sinh / z0)
         add(second, n2, sinh / z0)
         add(second, second, cosh)
 
 
-@dataclass(frozen=True, kw_only=True)
 class OpAmp(Element):
     """An op-amp with output referred to ground and open-loop gain 1/(1/a0 + s/(2π·gbw)).
 
@@ -349,7 +441,10 @@ class OpAmp(Element):
 
     letter: ClassVar[str] = "O"
     kind: ClassVar[str] = "op-amp"
-    rules: ClassVar[dict[str, str]] = {"a0": "positive", "gbw": "positive"}
+    rules: ClassVar[dict[str, Rule]] = {
+        "a0": Rule("positive", largest=1e15, smallest=1e-6),
+        "gbw": Rule("positive", largest=1e15, smallest=1e-3, unit="Hz"),
+    }
 
     @property
     def branches(self) -> int:
@@ -423,7 +518,6 @@ class Block(Element):
                 add(row, branches[j], -(z0[i] if i == j else 0.0) - s[i, j] * ratio * z0[j])
 
 
-@dataclass(frozen=True, kw_only=True)
 class CompactInductor(Inductor):
     """An inductor stamped as its admittance 1/Z, without a branch current.
 
@@ -441,7 +535,6 @@ class CompactInductor(Inductor):
         _stamp_admittance(add, nodes[0], nodes[1], 1.0 / self.impedance(context))
 
 
-@dataclass(frozen=True, kw_only=True)
 class CompactCapacitor(Capacitor):
     """A capacitor with series resistance stamped as its admittance, without a branch current."""
 

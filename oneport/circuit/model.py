@@ -28,6 +28,7 @@ from .elements import (
     Line,
     OpAmp,
     Resistor,
+    Rule,
     Transconductance,
     compact,
 )
@@ -232,6 +233,11 @@ class Circuit:
     def add(self, element: Element) -> Circuit:
         """Add an element built elsewhere (the parser uses this)."""
         key = element.name.lower()
+        # Numbers are checked now (with their line); parameters when they are resolved.
+        literal = {
+            name: value for name, value in element.values.items() if isinstance(value, float)
+        }
+        _check_rules(self, element, literal, {}, (), together=len(literal) == len(element.values))
         if key in self._elements:
             raise self.error(
                 f"{element.name} is defined twice" + _first(self._elements[key].line),
@@ -503,33 +509,34 @@ def _substitute(spec: ValueSpec, flat: Mapping[str, Any]) -> Any:
     return spec
 
 
-_RULE_WORDS = {"nonzero": "nonzero", "positive": "positive", "nonnegative": ">= 0"}
-
-
 def _check_rules(
     circuit: Circuit,
     element: Element,
     resolved: Mapping[str, Any],
     flat: Mapping[str, Any],
     lead: tuple[int, ...],
+    together: bool = True,
 ) -> None:
+    """Refuse the first value (of any parameter set) outside its element's rules; with
+    ``together``, ``resolved`` holds all the element's values, checked in combination too."""
+    describe = _describer(circuit, flat, lead)
     for key, value in resolved.items():
-        rule = element.rules.get(key, "any")
-        array = np.asarray(value)
-        bad = {
-            "nonzero": array == 0,
-            "positive": array <= 0,
-            "nonnegative": array < 0,
-        }.get(rule)
-        if bad is None or not np.any(bad):
-            continue
-        index = int(np.flatnonzero(np.ravel(bad))[0])
-        where = _describer(circuit, flat, lead)(index) if array.size > 1 else ""
-        shown = float(np.ravel(array)[index])
-        raise circuit.error(
-            f"{element.name}: {key} = {shown:g}{where}; it must be {_RULE_WORDS[rule]}",
-            element.line,
-        )
+        rule = element.rules.get(key, Rule())
+        broken = np.ravel(rule.broken(value))
+        if broken.any():
+            index = int(np.flatnonzero(broken)[0])
+            shown = float(np.ravel(np.asarray(value, dtype=float))[index])
+            unit = f" {rule.unit}" if rule.unit else ""
+            where = describe(index) if broken.size > 1 else ""
+            raise circuit.error(
+                f"{element.name}: {key} = {shown:g}{unit}{where}; it must be {rule.accepted()}",
+                element.line,
+            )
+    combination = element.combination_problem(dict(resolved)) if together else None
+    if combination is not None and np.any(combination[0]):
+        broken = np.ravel(combination[0])
+        where = describe(int(np.flatnonzero(broken)[0])) if broken.size > 1 else ""
+        raise circuit.error(f"{element.name}: {combination[1]}{where}", element.line)
 
 
 def _describer(

@@ -35,6 +35,8 @@ from .values import ParameterReference, ValueSpec, ValueTokenError, is_name, par
 #: File suffixes read as netlists (one list, in :mod:`oneport.reading.files`).
 CIRCUIT_SUFFIXES = NETLIST_SUFFIXES
 
+__all__ = ["CIRCUIT_SUFFIXES", "parse_circuit", "read_circuit"]
+
 
 @dataclass(frozen=True)
 class _Syntax:

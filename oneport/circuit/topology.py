@@ -10,7 +10,10 @@ doubled or shorted ports, and equations that are singular whatever the values.
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+import functools
+import heapq
+import itertools
+from collections.abc import Callable, Iterator, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -46,9 +49,26 @@ class EliminationStep:
     columns: tuple[int, ...]
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
+class SparseStep:
+    """One column of the elimination without row exchanges, as indices into the stored
+    coefficients: the pivot, the coefficients below it (one per row to update), the pivot
+    row's coefficients right of it, and the updated coefficients (row by row)."""
+
+    pivot: int
+    below: np.ndarray
+    right: np.ndarray
+    updated: np.ndarray
+
+
+@dataclass(frozen=True, eq=False)
 class Plan:
     """The equations' layout: unknowns, where each element and port writes, elimination order.
+
+    The unknowns are ordered by minimum degree (few fill-ins), the port nodes last so that
+    back-substitution stops early, and each equation sits on the row of the unknown it was
+    matched to, so every diagonal coefficient is structurally nonzero. Only coefficients that
+    can be nonzero at some stage are stored (``entries``, row by row).
 
     Attributes
     ----------
@@ -63,13 +83,15 @@ class Plan:
     solved : int
         How many trailing unknowns back-substitution must find (the port nodes).
     row_position : tuple of int
-        Where each equation goes in the matrix, so every diagonal entry is structurally
-        nonzero (a matching of equations to unknowns).
+        Where each equation goes in the matrix (a matching of equations to unknowns).
+    structure : ndarray of bool, shape (N, N + ports)
+        The pattern of [A | b] with the equations in place, before elimination.
     entries : tuple of (int, int)
-        Every matrix position that can be nonzero at any stage (stamps and fill-in); the rest
-        are never read.
-    steps : tuple of EliminationStep
-        The symbolic elimination, one step per column.
+        The stored coefficients: every (row, column) nonzero at some stage, sorted.
+    row_starts : ndarray of int
+        Where each row's entries start in ``entries`` (N + 1 values).
+    steps : tuple of SparseStep
+        The elimination in diagonal order, without row exchanges.
     """
 
     size: int
@@ -77,9 +99,29 @@ class Plan:
     placements: tuple[tuple[Element, tuple[int | None, ...], tuple[int, ...]], ...]
     ports: tuple[tuple[int | None, int | None], ...]
     solved: int
-    steps: tuple[EliminationStep, ...]
     row_position: tuple[int, ...]
+    structure: np.ndarray
     entries: tuple[tuple[int, int], ...]
+    row_starts: np.ndarray
+    steps: tuple[SparseStep, ...]
+    unknown_lines: tuple[int | None, ...] = ()
+
+    @functools.cached_property
+    def index(self) -> dict[tuple[int, int], int]:
+        """Storage index of each (row, column) entry."""
+        return {entry: position for position, entry in enumerate(self.entries)}
+
+    @functools.cached_property
+    def pivoted(self) -> tuple[tuple[EliminationStep, ...], dict[tuple[int, int], int]]:
+        """The symbolic elimination with row exchanges among candidate rows (for the points
+        where the diagonal pivots are too small), and the storage index of every entry it
+        touches; planned only when first needed."""
+        steps = _eliminate_symbolically(self.structure)
+        touched = {(int(r), int(c)) for r, c in zip(*np.nonzero(self.structure), strict=True)}
+        for step in steps:
+            for row in step.rows:
+                touched.update((row, column) for column in (step.column, *step.columns))
+        return steps, {entry: position for position, entry in enumerate(sorted(touched))}
 
 
 def validate(elements: Sequence[Element], ports: Sequence[Port], fail: Failure) -> None:
@@ -172,64 +214,74 @@ def _check_dangling(elements: Sequence[Element], ports: Sequence[Port], fail: Fa
 
 
 def plan(elements: Sequence[Element], ports: Sequence[Port], fail: Failure) -> Plan:
-    """Order the unknowns, record the sparsity and the symbolic elimination."""
+    """Order the unknowns, match equations to them, and plan the sparse elimination."""
     port_nodes: list[str] = []
     for port in ports:
         for node in (port.node, port.reference):
             if node != GROUND and node not in port_nodes:
                 port_nodes.append(node)
     inner_nodes: list[str] = []
+    seen = set(port_nodes)
     for element in elements:
         for node in element.nodes:
-            if node != GROUND and node not in port_nodes and node not in inner_nodes:
+            if node != GROUND and node not in seen:
+                seen.add(node)
                 inner_nodes.append(node)
+    first_lines: dict[str, int | None] = {}
+    for element in elements:
+        for node in element.nodes:
+            first_lines.setdefault(node, element.line)
     names = [f"the voltage of node {node}" for node in inner_nodes]
-    lines = [_first_line(elements, node) for node in inner_nodes]
+    lines = [first_lines[node] for node in inner_nodes]
     for element in elements:
         names += [f"a current of {element.name}"] * element.branches
         lines += [element.line] * element.branches
     inner = len(names)
+    names += [f"the voltage of node {node}" for node in port_nodes]
+    lines += [first_lines[node] for node in port_nodes]
     identity = list(range(inner))
-    first = _layout(elements, ports, inner_nodes, port_nodes, identity)
-    structure = _structure(first, len(ports))
-    # Fewer fill-ins when sparse unknowns go first; the port nodes stay last.
-    degree = structure[:inner, :inner].sum(axis=0) + structure[:inner, :inner].sum(axis=1)
-    order = [0] * inner
-    for new, old in enumerate(np.argsort(degree, kind="stable")):
-        order[int(old)] = new
+    structure = _structure(_layout(elements, ports, inner_nodes, port_nodes, identity), len(ports))
+    matched = _match_equations(structure, names, lines, fail)
+    permuted = np.empty_like(structure)
+    permuted[list(matched)] = structure
+    order = _minimum_degree_order(permuted, inner)
     layout = _layout(elements, ports, inner_nodes, port_nodes, order)
-    unknowns = [""] * inner
-    unknown_lines: list[int | None] = [None] * inner
-    for old, new in enumerate(order):
+    full_order = [*order, *range(inner, len(names))]
+    unknowns = [""] * len(names)
+    unknown_lines: list[int | None] = [None] * len(names)
+    for old, new in enumerate(full_order):
         unknowns[new] = names[old]
         unknown_lines[new] = lines[old]
-    unknowns += [f"the voltage of node {node}" for node in port_nodes]
-    unknown_lines += [_first_line(elements, node) for node in port_nodes]
+    # Equations are numbered like the unknowns they are written for, so they move with the
+    # reordering too; each goes to the row of the unknown it was matched to.
+    moved = [0] * len(names)
+    for equation, column in enumerate(matched):
+        moved[full_order[equation]] = full_order[column]
+    row_position = tuple(moved)
     structure = _structure(layout, len(ports))
-    row_position = _match_equations(structure, unknowns, unknown_lines, fail)
-    permuted = np.empty_like(structure)
-    permuted[list(row_position)] = structure
-    steps = _eliminate_symbolically(permuted, unknowns, unknown_lines, fail)
-    touched = permuted.copy()
-    for step in steps:
-        for row in step.rows:
-            touched[row, [step.column, *step.columns]] = True
+    placed = np.empty_like(structure)
+    placed[list(row_position)] = structure
+    entries, row_starts, steps = _plan_sparse_elimination(placed)
     return Plan(
         size=len(unknowns),
         unknowns=tuple(unknowns),
         placements=layout[0],
         ports=layout[1],
         solved=len(port_nodes),
-        steps=steps,
         row_position=row_position,
-        entries=tuple((int(r), int(c)) for r, c in zip(*np.nonzero(touched), strict=True)),
+        structure=placed,
+        entries=entries,
+        row_starts=row_starts,
+        steps=steps,
+        unknown_lines=tuple(unknown_lines),
     )
 
 
 def _match_equations(
     structure: np.ndarray, unknowns: list[str], lines: list[int | None], fail: Failure
 ) -> tuple[int, ...]:
-    """Pair each unknown with an equation that contains it (augmenting paths).
+    """Pair each equation with an unknown it contains (augmenting paths, without recursion);
+    returns the unknown of each equation.
 
     An unknown left without an equation means the equations are singular whatever the values.
     """
@@ -241,19 +293,8 @@ def _match_equations(
         rows = np.flatnonzero(structure[:size, column]).tolist()
         rows_of.append(sorted(rows, key=(column).__ne__))
     column_of_row = [-1] * size
-
-    def augment(column: int, visited: set[int]) -> bool:
-        for row in rows_of[column]:
-            if row in visited:
-                continue
-            visited.add(row)
-            if column_of_row[row] < 0 or augment(column_of_row[row], visited):
-                column_of_row[row] = column
-                return True
-        return False
-
     for column in range(size):
-        if not augment(column, set()):
+        if not _augment(column, rows_of, column_of_row):
             raise fail(
                 f"singular circuit: {unknowns[column]} is not determined by the equations"
                 " whatever the values (look for op-amp outputs tied together, a node driven"
@@ -261,6 +302,103 @@ def _match_equations(
                 lines[column],
             )
     return tuple(column_of_row)
+
+
+def _augment(start: int, rows_of: list[list[int]], column_of_row: list[int]) -> bool:
+    """Find an equation for unknown ``start``, moving earlier pairs along a path if needed."""
+    visited: set[int] = set()
+    # Each frame: an unknown, the rows still to try for it, the row that led to it.
+    stack: list[tuple[int, Iterator[int], int | None]] = [(start, iter(rows_of[start]), None)]
+    while stack:
+        column, candidates, _ = stack[-1]
+        for row in candidates:
+            if row in visited:
+                continue
+            visited.add(row)
+            if column_of_row[row] < 0:
+                column_of_row[row] = column
+                for (parent, _, _), (_, _, via) in itertools.pairwise(stack):
+                    assert via is not None
+                    column_of_row[via] = parent
+                return True
+            holder = column_of_row[row]
+            stack.append((holder, iter(rows_of[holder]), row))
+            break
+        else:
+            stack.pop()
+    return False
+
+
+def _minimum_degree_order(structure: np.ndarray, inner: int) -> list[int]:
+    """New position of each inner unknown: greedy minimum degree on the symmetric pattern.
+
+    Eliminating an unknown joins all its neighbours (the fill-in); taking the one with the
+    fewest neighbours each time keeps fill small (a ladder stays a chain, a mesh grows as
+    n·log n instead of n²). Ties go to the lower index, so the order is repeatable.
+    """
+    square = structure[:inner, :inner]
+    symmetric = square | square.T
+    neighbours = [set(np.flatnonzero(symmetric[row]).tolist()) - {row} for row in range(inner)]
+    heap = [(len(around), unknown) for unknown, around in enumerate(neighbours)]
+    heapq.heapify(heap)
+    done = [False] * inner
+    sequence: list[int] = []
+    while heap:
+        degree, unknown = heapq.heappop(heap)
+        if done[unknown] or degree != len(neighbours[unknown]):
+            continue
+        done[unknown] = True
+        sequence.append(unknown)
+        around = neighbours[unknown]
+        for other in around:
+            joined = neighbours[other]
+            joined |= around
+            joined.discard(other)
+            joined.discard(unknown)
+            heapq.heappush(heap, (len(joined), other))
+    order = [0] * inner
+    for position, unknown in enumerate(sequence):
+        order[unknown] = position
+    return order
+
+
+def _plan_sparse_elimination(
+    structure: np.ndarray,
+) -> tuple[tuple[tuple[int, int], ...], np.ndarray, tuple[SparseStep, ...]]:
+    """Symbolic elimination on the diagonal: the fill-in, then storage indices per step."""
+    size = structure.shape[0]
+    rows = [set(np.flatnonzero(structure[row]).tolist()) for row in range(size)]
+    columns: list[set[int]] = [set() for _ in range(size)]
+    for row, pattern in enumerate(rows):
+        for column in pattern:
+            if column < size:
+                columns[column].add(row)
+    shapes = []
+    for column in range(size):
+        below = sorted(row for row in columns[column] if row > column)
+        right = sorted(entry for entry in rows[column] if entry > column)
+        for row in below:
+            added = set(right) - rows[row]
+            rows[row] |= added
+            for entry in added:
+                if entry < size:
+                    columns[entry].add(row)
+        shapes.append((column, below, right))
+    entries = tuple((row, column) for row in range(size) for column in sorted(rows[row]))
+    index = {entry: position for position, entry in enumerate(entries)}
+    row_starts = np.searchsorted([row for row, _ in entries], np.arange(size + 1))
+    steps = tuple(
+        SparseStep(
+            pivot=index[column, column],
+            below=np.array([index[row, column] for row in below], dtype=np.intp),
+            right=np.array([index[column, entry] for entry in right], dtype=np.intp),
+            updated=np.array(
+                [index[row, entry] for row in below for entry in right], dtype=np.intp
+            ),
+        )
+        for column, below, right in shapes
+    )
+    return entries, row_starts, steps
 
 
 _Placement = tuple[Element, tuple[int | None, ...], tuple[int, ...]]
@@ -327,26 +465,16 @@ def _placeholder_context(element: Element) -> StampContext:
     )
 
 
-def _first_line(elements: Sequence[Element], node: str) -> int | None:
-    return next((element.line for element in elements if node in element.nodes), None)
+def _eliminate_symbolically(structure: np.ndarray) -> tuple[EliminationStep, ...]:
+    """Column by column: candidate pivot rows, then the union of their patterns (fill-in).
 
-
-def _eliminate_symbolically(
-    structure: np.ndarray, unknowns: list[str], lines: list[int | None], fail: Failure
-) -> tuple[EliminationStep, ...]:
-    """Column by column: candidate pivot rows, then the union of their patterns (fill-in)."""
+    The matching guarantees a structurally nonzero diagonal, so every column has a candidate.
+    """
     size = structure.shape[0]
     structure = structure.copy()
     steps = []
     for column in range(size):
         candidates = [column] + [row for row in range(column + 1, size) if structure[row, column]]
-        if not structure[column:, column].any():
-            raise fail(
-                f"singular circuit: {unknowns[column]} is not determined by any equation"
-                " (look for op-amp outputs tied together, a node driven only by current"
-                " sources, or a loop of zero-impedance elements)",
-                lines[column],
-            )
         pattern = structure[candidates].any(axis=0)
         structure[candidates] = pattern
         structure[candidates[1:], column] = False

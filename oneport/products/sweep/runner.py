@@ -11,7 +11,9 @@ finished, which stay valid.
 
 from __future__ import annotations
 
+import contextlib
 import itertools
+import logging
 from collections.abc import Callable, Iterator
 from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
 from dataclasses import dataclass, field
@@ -119,11 +121,11 @@ def run_sweep(
     """Run every chunk of ``plan``; ``progress(n)`` is called with each finished chunk's size.
 
     ``scheduler`` (``tcp://host:port``) sends chunks to a running Dask cluster; ``workers``
-    > 1 starts a local one. Without either, chunks run here on ``threads`` threads (default
-    one: the netlist's closed form makes many short numpy calls with fresh temporaries, and
-    two threads spent most of their time waiting for the interpreter lock on a 6-element
-    load; measured in benchmarks/README.md). Every chunk is computed alone, so the table is
-    the same in every case.
+    (one or more) starts a local one of that many worker processes. Without either, chunks
+    run here on ``threads`` threads (default one: the netlist's closed form makes many short
+    numpy calls with fresh temporaries, and two threads spent most of their time waiting for
+    the interpreter lock on a 6-element load; measured in benchmarks/README.md). Every chunk
+    is computed alone, so the table is the same in every case.
     """
     bounds = chunk_bounds(plan.variants, frequency_hz.size, chunk_size)
     finished: dict[int, dict[str, np.ndarray]] = {}
@@ -169,7 +171,7 @@ def _execute(
     threads: int | None,
 ) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
     arguments = (frequency_hz, reference_impedance_ohm, dc_sign)
-    if scheduler is None and (workers is None or workers <= 1):
+    if scheduler is None and (workers is None or workers < 1):
         yield from _execute_here(plan, source, arguments, bounds, threads)
         return
     yield from _execute_on_dask(plan, source, arguments, bounds, scheduler, workers)
@@ -219,31 +221,79 @@ def _execute_on_dask(
     from ...errors import InputError
 
     try:
-        from distributed import Client, LocalCluster, as_completed
+        import dask
+        from distributed import Client, as_completed
+        from distributed.utils import silence_logging_cmgr
     except ImportError:
         raise InputError(
             "--scheduler/--workers need Dask: pip install 'oneport[cluster]'"
         ) from None
-    cluster = None
-    if scheduler is None:
-        cluster = LocalCluster(
-            n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None
-        )
-        client = Client(cluster)
-    else:
-        try:
-            client = Client(scheduler, timeout="10s")
-        except OSError as error:
-            raise InputError(f"--scheduler {scheduler}: cannot reach it ({error})") from None
-    try:
+    with dask.config.set(_QUIET_DASK), contextlib.ExitStack() as stack:
+        # Routine lines about closing connections stay quiet, up to the cluster's last one.
+        stack.enter_context(silence_logging_cmgr(logging.ERROR))
+        if scheduler is None:
+            cluster = stack.enter_context(_local_cluster(workers or 1))
+            client = stack.enter_context(Client(cluster))
+        else:
+            try:
+                client = stack.enter_context(Client(scheduler, timeout="10s"))
+            except OSError as error:
+                raise InputError(f"--scheduler {scheduler}: cannot reach it ({error})") from None
         shared = client.scatter(source, broadcast=True)
-        futures = {
-            client.submit(run_chunk, shared, plan.chunk(start, stop), *arguments, pure=False): i
-            for i, (start, stop) in enumerate(bounds)
-        }
-        for future in as_completed(futures):
-            yield futures[future], future.result()
-    finally:
-        client.close()
-        if cluster is not None:
-            cluster.close()
+        slots = max(1, sum(client.nthreads().values()))
+        futures = {}
+        for group in _groups(len(bounds), slots):
+            chunks = [plan.chunk(*bounds[index]) for index in group]
+            futures[client.submit(run_chunks, shared, chunks, *arguments, pure=False)] = group
+        try:
+            for future in as_completed(futures):
+                yield from zip(futures[future], future.result(), strict=True)
+        finally:
+            # Stop what has not run (Ctrl-C, an error) before the cluster goes away, so no
+            # worker is cut off in the middle of a chunk (that is what printed tracebacks).
+            client.cancel(list(futures))
+
+
+#: Tasks per worker thread on a cluster: enough that a slow worker does not hold up the end
+#: of a run, few enough that the scheduler's work per task (about 10 ms of this process's
+#: time) stays small next to the chunks'.
+TASKS_PER_SLOT = 4
+
+
+def _groups(chunks: int, slots: int) -> list[list[int]]:
+    """Chunk indices in consecutive groups, one task each: about TASKS_PER_SLOT per slot."""
+    size = max(1, chunks // (TASKS_PER_SLOT * slots))
+    return [list(range(start, min(start + size, chunks))) for start in range(0, chunks, size)]
+
+
+def run_chunks(
+    source: VariantSource, chunks: list[dict[str, np.ndarray]], *arguments: Any
+) -> list[dict[str, np.ndarray]]:
+    """Several chunks one after another (one cluster task): memory stays that of one chunk."""
+    return [run_chunk(source, parameters, *arguments) for parameters in chunks]
+
+
+#: Dask settings for a sweep: local workers are forked from this process, so they start with
+#: the package already imported (about 0.2 s instead of several seconds for fresh
+#: interpreters), and no memory monitor (a chunk's memory is bounded by its size).
+_QUIET_DASK = {
+    "distributed.worker.multiprocessing-method": "fork",
+    "distributed.worker.memory.target": False,
+    "distributed.worker.memory.spill": False,
+    "distributed.worker.memory.pause": False,
+    "distributed.worker.memory.terminate": False,
+}
+
+
+def _local_cluster(workers: int) -> Any:
+    """A cluster of ``workers`` single-threaded worker processes on this machine."""
+    from distributed import LocalCluster
+
+    return LocalCluster(
+        n_workers=workers,
+        threads_per_worker=1,
+        processes=True,
+        dashboard_address=":0",
+        memory_limit=0,
+        silence_logs=logging.ERROR,
+    )
