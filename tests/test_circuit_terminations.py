@@ -139,7 +139,7 @@ def test_command_text_json_and_chart(tmp_path: Path) -> None:
     assert "most negative resistance: -11.18 ohm" in out and "1.172 nH inductor" in out
     chart = tmp_path / "chart.png"
     code, out, _ = _run(
-        "terminations", str(TRANSISTOR), "--at", "8GHz", "--terminate", "1", "--json",
+        "terminations", str(TRANSISTOR), "--at", "8GHz", "--terminated-port", "1", "--json",
         "--plot", str(chart),
     )  # fmt: skip
     assert code == 0

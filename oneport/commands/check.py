@@ -6,15 +6,8 @@ import argparse
 from typing import Any, TextIO
 
 from ..errors import InputError
-from ..units import parse_decibels, parse_quantity
-from .common import (
-    add_grid_options,
-    add_measurement_impedance_option,
-    add_output_options,
-    grid_from_options,
-    measurement_impedance,
-    write_json,
-)
+from . import options
+from .common import add_measurement_impedance_option, add_output_options, write_json
 from .outcome import exit_code
 
 NAME = "check"
@@ -24,12 +17,13 @@ _EPILOG = """examples:
   oneport check diode.s1p --load bias_tee.s1p --json
   oneport check diode.s1p --load-return-loss 15dB
   oneport check fet.s2p --terminate-impedance 10ohm --load tank.s1p
-  oneport check diode.s1p --load bias.s1p --device-dc-resistance=-76ohm --load-dc-resistance 150
-  oneport check diode.s1p --load tank.s1p --device-delay=-12ps --gamma-uncertainty 0.01
+  oneport check diode.s1p --load bias.s1p --device-dc-resistance -76ohm --load-dc-resistance 150
+  oneport check diode.s1p --load tank.s1p --device-delay -12ps --gamma-uncertainty 0.01
   oneport check diode.s1p --load bias_tee.cir
   oneport check diode.cir --load tank.cir --start 1MHz --stop 6GHz --points 2001
 
-negative values: write them with '=' (--device-delay=-12ps)."""
+the grid options (--start, --stop, --points, --spacing) go with two netlists only; with a data
+file the analysis runs on the data's own grid."""
 
 
 def add_parser(commands: Any) -> argparse.ArgumentParser:
@@ -43,47 +37,99 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         epilog=_EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
-    command.add_argument(
-        "device", help="the device: a Touchstone file (one-port, or see below) or a .cir netlist"
+    options.add(
+        command,
+        "device",
+        rule=options.input_path,
+        help="the device: a Touchstone file (one-port, or see below) or a .cir netlist",
     )
     loads = command.add_mutually_exclusive_group(required=True)
-    loads.add_argument(
-        "--load", metavar="FILE", help="the load: a Touchstone one-port or a .cir netlist"
+    options.add(
+        loads,
+        "--load",
+        rule=options.input_path,
+        metavar="FILE",
+        help="the load: a Touchstone one-port or a .cir netlist",
     )
-    loads.add_argument(
+    options.add(
+        loads,
         "--load-return-loss",
+        rule=options.return_loss,
         metavar="DB",
         help="instead of a load file: is it stable into every passive load with at least"
         " this return loss (e.g. 15dB)? small-gain bound",
     )
     add_measurement_impedance_option(command)
+    add_check_inputs(command)
+    options.add_grid(command, "frequency grid when both sides are netlists")
+    command.add_argument(
+        "--poles",
+        action="store_true",
+        help="second opinion: fit 1 - L and list its natural frequencies beside the count",
+    )
+    pictures = command.add_argument_group("pictures")
+    options.add(
+        pictures,
+        "--plot",
+        rule=options.plot,
+        metavar="FILE",
+        help="also write the quick-look plot (.png or .svg)",
+    )
+    options.add(
+        pictures,
+        "--report",
+        rule=options.report,
+        metavar="FILE",
+        help="also write a self-contained HTML report (.html)",
+    )
+    add_output_options(command)
+    return command
+
+
+def add_check_inputs(command: argparse.ArgumentParser) -> None:
+    """The check's options on how each side is read; ``stabilise`` takes the same."""
     facts = command.add_argument_group("DC facts (close the contour towards DC; give both)")
-    facts.add_argument(
+    options.add(
+        facts,
         "--device-dc-resistance",
+        rule=options.dc_resistance,
         metavar="OHMS",
         help="the device's small-signal resistance at DC: its I-V slope at the bias point",
     )
-    facts.add_argument(
-        "--load-dc-resistance", metavar="OHMS", help="the load's (bias network's) DC resistance"
+    options.add(
+        facts,
+        "--load-dc-resistance",
+        rule=options.dc_resistance,
+        metavar="OHMS",
+        help="the load's (bias network's) DC resistance",
     )
-    add_grid_options(command, "frequency grid when both sides are netlists")
-    command.add_argument(
+    options.add(
+        command,
         "--gamma-uncertainty",
+        rule=options.gamma_uncertainty,
         metavar="X[,Y]",
         help="worst-case absolute error of |gamma|: one value for both sides, or device,load",
     )
     device = command.add_argument_group("device as measured")
     terminations = device.add_mutually_exclusive_group()
-    terminations.add_argument(
-        "--terminate", metavar="FILE", help="two-port device: terminate one port in this one-port"
+    options.add(
+        terminations,
+        "--terminate",
+        rule=options.input_path,
+        metavar="FILE",
+        help="two-port device: terminate one port in this one-port",
     )
-    terminations.add_argument(
+    options.add(
+        terminations,
         "--terminate-impedance",
+        rule=options.termination,
         metavar="OHMS",
         help="two-port device: terminate in this resistance",
     )
-    terminations.add_argument(
+    options.add(
+        terminations,
         "--differential-ports",
+        rule=options.port_pairs,
         metavar="P,N[:P,N]",
         help="balanced device measured single-ended: the port pair(s) of its differential port",
     )
@@ -92,82 +138,61 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     )
     planes = command.add_argument_group("reference planes")
     for side in ("device", "load"):
-        planes.add_argument(
+        options.add(
+            planes,
             f"--{side}-delay",
+            rule=options.delay,
+            default=0.0,
             metavar="TIME",
             help=f"add (negative: remove) a lossless line of this one-way delay on the {side}"
             " side, e.g. 12ps",
         )
-        planes.add_argument(
+        options.add(
+            planes,
             f"--{side}-fixture",
+            rule=options.input_path,
             metavar="FILE",
             help=f"de-embed this two-port fixture (port 1 at the instrument) from the {side}",
         )
-    command.add_argument(
-        "--poles",
-        action="store_true",
-        help="second opinion: fit 1 - L and list its natural frequencies beside the count",
-    )
-    pictures = command.add_argument_group("pictures")
-    pictures.add_argument(
-        "--plot", metavar="FILE", help="also write the quick-look plot (.png or .svg)"
-    )
-    pictures.add_argument(
-        "--report", metavar="FILE", help="also write a self-contained HTML report"
-    )
-    add_output_options(command)
-    return command
 
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the check and print it; return the verdict's exit code."""
     from ..products.check import check, check_load_class
-    from ..reading.preparation import PortSetup
     from ..rendering.check_text import render, render_bound, verdict_line
 
-    impedance = measurement_impedance(arguments)
-    device_setup = _device_setup(arguments)
+    targets = options.outputs(
+        {"--plot": arguments.plot, "--report": arguments.report}, input_paths(arguments)
+    )
     result: Any
     if arguments.load_return_loss is not None:
         if arguments.plot or arguments.report or arguments.poles:
             raise InputError(
                 "--poles, --plot and --report go with --load, not with --load-return-loss"
             )
-        uncertainty = _uncertainty(arguments.gamma_uncertainty)
+        options.grid(arguments, netlists=False, required=False, data=arguments.device)
+        uncertainty = arguments.gamma_uncertainty
         result = check_load_class(
             arguments.device,
-            parse_decibels(arguments.load_return_loss, option="--load-return-loss"),
-            measurement_impedance_ohm=impedance,
+            arguments.load_return_loss,
+            measurement_impedance_ohm=arguments.measurement_impedance,
             device_uncertainty=float(
                 uncertainty[0] if isinstance(uncertainty, tuple) else uncertainty or 0.0
             ),
-            device_setup=device_setup,
+            device_setup=device_setup(arguments),
         )
         text = render_bound(result)
         line = text.splitlines()[0]
     else:
-        load_setup = PortSetup(
-            fixture_path=arguments.load_fixture,
-            delay_s=_time(arguments.load_delay, "--load-delay"),
-        )
         result = check(
             arguments.device,
             arguments.load,
-            measurement_impedance_ohm=impedance,
-            device_dc_resistance_ohm=_resistance(
-                arguments.device_dc_resistance, "--device-dc-resistance"
-            ),
-            load_dc_resistance_ohm=_resistance(
-                arguments.load_dc_resistance, "--load-dc-resistance"
-            ),
-            gamma_uncertainty=_uncertainty(arguments.gamma_uncertainty),
-            frequency_hz=grid_from_options(arguments, required=False),
-            device_setup=device_setup,
-            load_setup=load_setup,
+            frequency_hz=pair_grid(arguments),
+            **check_inputs(arguments),
         )
         text = render(result)
         line = verdict_line(result)
-        _pictures(result, arguments)
+        _pictures(result, targets)
     data = result.to_dict(include_arrays=arguments.include_arrays)
     if arguments.poles and arguments.load is not None:
         second = _second_opinion(result)
@@ -183,6 +208,40 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     else:
         out.write(text)
     return exit_code(result.verdict)
+
+
+def input_paths(arguments: argparse.Namespace) -> list[str | None]:
+    """Every file the check's options name (the outputs must miss them all)."""
+    return [
+        arguments.device,
+        arguments.load,
+        arguments.terminate,
+        arguments.device_fixture,
+        arguments.load_fixture,
+    ]
+
+
+def pair_grid(arguments: argparse.Namespace) -> Any:
+    """The grid options' grid: given only when both sides are netlists."""
+    from ..reading.files import is_netlist_path
+
+    netlists = is_netlist_path(arguments.device) and is_netlist_path(arguments.load)
+    data = arguments.load if is_netlist_path(arguments.device) else arguments.device
+    return options.grid(arguments, netlists=netlists, required=False, data=data)
+
+
+def check_inputs(arguments: argparse.Namespace) -> dict[str, Any]:
+    """The check's keyword arguments from its options (``stabilise`` passes the same)."""
+    from ..reading.preparation import PortSetup
+
+    return {
+        "measurement_impedance_ohm": arguments.measurement_impedance,
+        "device_dc_resistance_ohm": arguments.device_dc_resistance,
+        "load_dc_resistance_ohm": arguments.load_dc_resistance,
+        "gamma_uncertainty": arguments.gamma_uncertainty,
+        "device_setup": device_setup(arguments),
+        "load_setup": PortSetup(fixture_path=arguments.load_fixture, delay_s=arguments.load_delay),
+    }
 
 
 def _second_opinion(result: Any) -> Any:
@@ -208,65 +267,26 @@ def _with_second_opinion(text: str, second: Any) -> str:
     return text[:index] + section + text[index:] if index >= 0 else text + "\n" + section
 
 
-def _pictures(result: Any, arguments: argparse.Namespace) -> None:
-    if arguments.plot:
+def _pictures(result: Any, targets: dict[str, Any]) -> None:
+    if "--plot" in targets:
         from ..rendering.check_plots import save_plots
 
-        save_plots(result, arguments.plot)
-    if arguments.report:
+        save_plots(result, targets["--plot"])
+    if "--report" in targets:
         from ..rendering.report import write_report
 
-        write_report(result, arguments.report)
+        write_report(result, targets["--report"])
 
 
-def _device_setup(arguments: argparse.Namespace) -> Any:
-    from ..reading.planes import parse_port_pairs
+def device_setup(arguments: argparse.Namespace) -> Any:
+    """How the device file becomes a one-port (termination, differential pairs, plane)."""
     from ..reading.preparation import PortSetup
 
-    pairs: tuple[tuple[int, int], ...] = ()
-    if arguments.differential_ports is not None:
-        pairs = tuple(parse_port_pairs(arguments.differential_ports))
     return PortSetup(
         terminate_path=arguments.terminate,
-        terminate_impedance_ohm=_resistance(arguments.terminate_impedance, "--terminate-impedance"),
+        terminate_impedance_ohm=arguments.terminate_impedance,
         terminated_port=arguments.terminated_port,
-        differential_pairs=pairs,
+        differential_pairs=arguments.differential_ports or (),
         fixture_path=arguments.device_fixture,
-        delay_s=_time(arguments.device_delay, "--device-delay"),
+        delay_s=arguments.device_delay,
     )
-
-
-def _resistance(text: str | None, option: str) -> float | None:
-    return None if text is None else parse_quantity(text, "resistance", option=option)
-
-
-#: A plane shift longer than this is no cable or fixture: a unit was probably left out.
-_LONGEST_DELAY_S = 1e-6
-
-
-def _time(text: str | None, option: str) -> float:
-    if text is None:
-        return 0.0
-    delay = parse_quantity(text, "time", option=option)
-    if abs(delay) > _LONGEST_DELAY_S:
-        raise InputError(
-            f"{option}: {text!r} is {delay:g} s of line, far beyond any fixture or cable; give"
-            " the unit, e.g. 12ps or 0.5ns"
-        )
-    return delay
-
-
-def _uncertainty(text: str | None) -> float | tuple[float, float] | None:
-    if text is None:
-        return None
-    fields = text.split(",")
-    try:
-        values = [float(field) for field in fields]
-    except ValueError:
-        values = []
-    if len(values) not in (1, 2) or not all(0.0 <= v < 1.0 for v in values):
-        raise InputError(
-            f"--gamma-uncertainty: cannot read {text!r}; give an absolute |gamma| error in"
-            " [0, 1), e.g. 0.01, or device,load as 0.01,0.02"
-        )
-    return values[0] if len(values) == 1 else (values[0], values[1])

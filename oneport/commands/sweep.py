@@ -8,8 +8,8 @@ import sys
 from typing import Any, TextIO
 
 from ..errors import InputError
-from ..units import parse_quantity
-from .common import add_grid_options, add_output_options, grid_from_options, write_json
+from . import options
+from .common import add_output_options, write_json
 
 NAME = "sweep"
 
@@ -31,24 +31,37 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         epilog=_EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
-    command.add_argument("devices", nargs="+", help="device Touchstone file(s) or one .cir netlist")
-    command.add_argument(
-        "--load", required=True, help="the load: a Touchstone file or a .cir netlist"
+    options.add(
+        command,
+        "devices",
+        rule=options.input_path,
+        nargs="+",
+        help="device Touchstone file(s) or one .cir netlist",
     )
-    command.add_argument(
+    options.add(
+        command,
+        "--load",
+        rule=options.input_path,
+        required=True,
+        help="the load: a Touchstone file or a .cir netlist",
+    )
+    options.add(
+        command,
         "--vary",
-        action="append",
-        default=[],
+        rule=options.vary,
+        repeat=True,
         metavar="NAME=START:STOP:COUNT",
-        help="sweep a netlist parameter (repeatable; all combinations are run)",
+        help="sweep a netlist parameter (repeatable; all combinations are run, at most"
+        f" {options.MAX_VARIANTS:,})",
     )
     command.add_argument(
         "--log", action="append", default=[], metavar="NAME", help="sweep NAME geometrically"
     )
-    command.add_argument(
+    options.add(
+        command,
         "--tolerance",
-        action="append",
-        default=[],
+        rule=options.tolerance,
+        repeat=True,
         metavar="NAME=PERCENT%",
         help="Monte Carlo: vary NAME within ±PERCENT of its netlist value (repeatable)",
     )
@@ -58,38 +71,77 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         default="uniform",
         help="uniform within ±tol (default), or normal with sigma = tol/3 truncated at ±tol",
     )
-    command.add_argument(
-        "--samples", type=int, default=1000, help="Monte Carlo variants (default 1000)"
+    options.add(
+        command,
+        "--samples",
+        rule=options.samples,
+        default=1000,
+        metavar="N",
+        help=f"Monte Carlo variants (default 1000, at most {options.MAX_VARIANTS:,})",
     )
-    command.add_argument("--seed", type=int, default=1, help="random seed (default 1): runs repeat")
-    add_grid_options(command, "frequency grid when both sides are netlists")
+    options.add(
+        command,
+        "--seed",
+        rule=options.seed,
+        default=1,
+        metavar="S",
+        help="random seed, 0 or more (default 1): the same seed gives the same variants",
+    )
+    options.add_grid(command, "frequency grid when both sides are netlists")
     facts = command.add_argument_group("DC facts (give both)")
-    facts.add_argument("--device-dc-resistance", metavar="OHMS")
-    facts.add_argument("--load-dc-resistance", metavar="OHMS")
-    command.add_argument(
+    options.add(facts, "--device-dc-resistance", rule=options.dc_resistance, metavar="OHMS")
+    options.add(facts, "--load-dc-resistance", rule=options.dc_resistance, metavar="OHMS")
+    options.add(
+        command,
         "--reference-impedance",
+        rule=options.impedance,
         metavar="OHMS",
         help="the analysis impedance: for a netlist device the Z0 it is analysed in (default"
         " 50ohm), for device files the impedance they were measured in (default: their own)",
     )
     out = command.add_argument_group("output")
-    out.add_argument(
-        "-o", "--output", metavar="FILE", help="the per-variant table (.parquet or .csv)"
+    options.add(
+        out,
+        "-o",
+        "--output",
+        rule=options.table,
+        metavar="FILE",
+        help="the per-variant table (.parquet or .csv)",
     )
-    out.add_argument(
-        "--plot", metavar="FILE", help="stability map or margin histogram (.png, .svg)"
+    options.add(
+        out,
+        "--plot",
+        rule=options.plot,
+        metavar="FILE",
+        help="stability map or margin histogram (.png or .svg)",
     )
     run_group = command.add_argument_group("where it runs")
-    run_group.add_argument(
-        "--scheduler", metavar="tcp://HOST:PORT", help="a running Dask scheduler"
+    options.add(
+        run_group,
+        "--scheduler",
+        rule=options.scheduler,
+        metavar="tcp://HOST:PORT",
+        help="a running Dask scheduler",
     )
-    run_group.add_argument("--workers", type=int, help="start a local Dask cluster with N workers")
-    run_group.add_argument(
-        "--threads", type=int, help="threads in this process (default 1; --workers uses cores)"
+    options.add(
+        run_group,
+        "--workers",
+        rule=options.workers,
+        metavar="N",
+        help=f"start a local Dask cluster with N workers (1 to {options.MAX_PARALLEL})",
     )
-    run_group.add_argument(
+    options.add(
+        run_group,
+        "--threads",
+        rule=options.threads,
+        metavar="N",
+        help=f"threads in this process (default 1, at most {options.MAX_PARALLEL})",
+    )
+    options.add(
+        run_group,
         "--chunk-size",
-        type=int,
+        rule=options.chunk_size,
+        metavar="N",
         help="variants per chunk, 1 or more (default: about 1e6 samples)",
     )
     add_output_options(command, json_help="print the summary as one JSON object", arrays=False)
@@ -97,15 +149,25 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
-    """Plan, run, write the table and print the summary; exit code per the conventions."""
+    """Plan, run, write the table and print the summary; exit code per the conventions.
+
+    Whatever stops the run early, the finished variants are written (marked partial) and
+    summarised before the failure is reported: Ctrl-C exits with 130, a refused input with 2
+    (its one line), a bug with 1.
+    """
     from ..products.sweep.runner import run_sweep
     from ..products.sweep.summary import summarise, summary_dict
     from ..rendering.sweep_table import write_table
     from ..rendering.sweep_text import render
     from .outcome import exit_code
 
+    targets = options.outputs(
+        {"--output": arguments.output, "--plot": arguments.plot},
+        [*arguments.devices, arguments.load],
+    )
     setup = _setup(arguments)
     plan = _plan(arguments, setup)
+    _refuse_long_csv(targets.get("--output"), plan.variants)
     progress, close = _progress(plan.variants)
     try:
         result = run_sweep(
@@ -124,19 +186,21 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         close()
     summary = summarise(result)
     table_path = None
-    if arguments.output and result.completed:
-        table_path = str(write_table(result.table, arguments.output))
-    if arguments.plot and result.completed:
+    if "--output" in targets and result.completed:
+        table_path = str(write_table(result.table, targets["--output"], result.plan.variants))
+    if "--plot" in targets and result.completed:
         from ..rendering.figures import save_figure
         from ..rendering.sweep_plots import plot_sweep
 
-        save_figure(plot_sweep(result), arguments.plot)
+        save_figure(plot_sweep(result), targets["--plot"])
     if arguments.json:
         data = summary_dict(result, summary, setup["inputs"], table_path)
         data["warnings"] = [finding.to_dict() for finding in setup["warnings"]]
         write_json(data, out)
     else:
         out.write(render(result, summary, table_path, arguments.quiet, setup["warnings"]))
+    if result.error is not None:
+        raise result.error
     return exit_code(summary.verdict, interrupted=result.interrupted)
 
 
@@ -146,17 +210,16 @@ def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
     from ..products.sweep.sources import prepare_sweep
 
     both_netlists = is_circuit_path(arguments.devices[0]) and is_circuit_path(arguments.load)
+    data = arguments.load if is_circuit_path(arguments.devices[0]) else arguments.devices[0]
     prepared = prepare_sweep(
         arguments.devices,
         arguments.load,
-        measurement_impedance_ohm=_resistance(
-            arguments.reference_impedance, "--reference-impedance"
+        measurement_impedance_ohm=arguments.reference_impedance,
+        device_dc_resistance_ohm=arguments.device_dc_resistance,
+        load_dc_resistance_ohm=arguments.load_dc_resistance,
+        frequency_hz=options.grid(
+            arguments, netlists=both_netlists, required=both_netlists, data=data
         ),
-        device_dc_resistance_ohm=_resistance(
-            arguments.device_dc_resistance, "--device-dc-resistance"
-        ),
-        load_dc_resistance_ohm=_resistance(arguments.load_dc_resistance, "--load-dc-resistance"),
-        frequency_hz=grid_from_options(arguments, required=both_netlists),
     )
     return {
         "source": prepared.source,
@@ -171,14 +234,14 @@ def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
 
 
 def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
-    from ..products.sweep.plan import grid_plan, monte_carlo_plan, parse_tolerance, parse_vary
+    from ..products.sweep.plan import grid_plan, monte_carlo_plan
     from ..products.sweep.sources import DEVICE_INDEX
 
     known = {name.lower(): name for name in setup["parameters"]}
     if arguments.vary and arguments.tolerance:
         raise InputError("sweep: give --vary (a grid) or --tolerance (Monte Carlo), not both")
-    specifications = [parse_vary(text) for text in arguments.vary]
-    tolerances = [parse_tolerance(text) for text in arguments.tolerance]
+    specifications = list(arguments.vary)
+    tolerances = list(arguments.tolerance)
     for name in [s[0] for s in specifications] + [t[0] for t in tolerances]:
         if name.lower() not in known:
             listed = ", ".join(setup["parameters"]) or "none (no netlist parameters)"
@@ -204,8 +267,15 @@ def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
     return grid_plan(specifications, [known.get(n.lower(), n) for n in arguments.log])
 
 
-def _resistance(text: str | None, option: str) -> float | None:
-    return None if text is None else parse_quantity(text, "resistance", option=option)
+def _refuse_long_csv(target: Any, variants: int) -> None:
+    """A CSV table of more rows than the CSV limit is refused before the run, not after."""
+    from ..rendering.sweep_table import CSV_ROW_LIMIT
+
+    if target is not None and target.suffix.lower() == ".csv" and variants > CSV_ROW_LIMIT:
+        raise InputError(
+            f"--output {target}: {variants:,} variants is too many rows for CSV (limit"
+            f" {CSV_ROW_LIMIT:,}); write a .parquet table"
+        )
 
 
 def _progress(total: int) -> tuple[Any, Any]:

@@ -9,7 +9,7 @@ from pathlib import Path
 from typing import Any, TextIO
 
 from ..errors import printable
-from ..units import parse_quantity
+from . import options
 
 NAME = "watch"
 
@@ -25,19 +25,29 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         " 'waiting' for a file that is not complete yet); stop with Ctrl-C (exit code 130).",
         epilog="example: oneport watch bench/ --load bias_tee.s1p --report-dir reports/",
     )
-    command.add_argument("folder", help="the folder the device files arrive in")
-    command.add_argument(
-        "--load", required=True, help="the load: a Touchstone one-port or a netlist (.cir)"
+    options.add(
+        command, "folder", rule=options.folder, help="the folder the device files arrive in"
     )
-    command.add_argument(
+    options.add(
+        command,
+        "--load",
+        rule=options.input_path,
+        required=True,
+        help="the load: a Touchstone one-port or a netlist (.cir)",
+    )
+    options.add(
+        command,
         "--report-dir",
+        rule=options.folder,
         metavar="DIR",
         help="write an HTML report per file into DIR (made if missing), named <file>.html",
     )
-    command.add_argument(
+    options.add(
+        command,
         "--interval",
+        rule=options.interval,
         metavar="SECONDS",
-        default="1s",
+        default=1.0,
         help="polling interval, 50ms to 1h (default 1s); a file must stay unchanged for two",
     )
     command.add_argument(
@@ -48,8 +58,9 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Watch until interrupted; Ctrl-C reaches the CLI, which exits with 130."""
-    interval_s = parse_quantity(arguments.interval, "time", option="--interval")
-    return watch_folder(arguments.folder, arguments.load, arguments.report_dir, interval_s, out)
+    return watch_folder(
+        arguments.folder, arguments.load, arguments.report_dir, arguments.interval, out
+    )
 
 
 def watch_folder(
@@ -72,8 +83,8 @@ def watch_folder(
     from ..products.watch import FolderWatcher, run_watch
 
     _read_load(load)
-    reports = _report_folder(report_dir)
     watcher = FolderWatcher(folder, interval_s, ignore=(load,))
+    reports = _report_folder(report_dir)
     print(
         f"watching {printable(str(watcher.folder))} every {interval_s:g} s against"
         f" {printable(str(load))} (Ctrl-C stops)",
@@ -103,16 +114,12 @@ def _read_load(load: str | Path) -> None:
 
 
 def _report_folder(report_dir: str | Path | None) -> Path | None:
-    from ..errors import InputError
-
+    """The report folder, made if missing and checked before the watch starts."""
     if report_dir is None:
         return None
-    folder = Path(report_dir)
-    try:
-        folder.mkdir(parents=True, exist_ok=True)
-    except OSError as error:
-        raise InputError(f"--report-dir: {folder} cannot be made ({error.strerror})") from None
-    return folder
+    from ..rendering.files import check_folder
+
+    return check_folder(report_dir, "--report-dir")
 
 
 def _check_and_print(
@@ -134,9 +141,11 @@ def _check_and_print(
         return  # it changed while it was read: it is handed out again once it is still
     print(f"{name}: {verdict_line(outcome.result)}", file=out, flush=True)
     if reports is not None:
+        from ..rendering.files import check_targets
         from ..rendering.report import write_report
 
         try:
-            write_report(outcome.result, reports / f"{path.name}.html")
+            target = check_targets({"--report-dir": reports / f"{path.name}.html"}, [path, load])
+            write_report(outcome.result, target["--report-dir"])
         except OneportError as error:
-            print(f"oneport: {error}", file=out, flush=True)
+            print(f"oneport: {printable(str(error))}", file=out, flush=True)

@@ -135,8 +135,22 @@ def export_circuit(
         Recorded in the result (how the grid was made).
     """
     circuit = read_circuit(circuit_path)
+    ports = len(circuit.ports)
+    wanted = f".s{ports}p"
+    if Path(output_path).suffix.lower() != wanted:
+        # Refused before the evaluation: the port count is known once the netlist is read.
+        raise InputError(
+            f"output {output_path}: a {ports}-port is written as a {wanted} file; name it so"
+        )
     overrides = dict(params or {})
     s = circuit.s_parameters(frequency_hz, reference_impedance_ohm, **overrides)
+    bad = ~np.isfinite(s).all(axis=(0, 1))
+    if bad.any():
+        raise InputError(
+            f"{circuit_path}: its S-parameters are not finite at"
+            f" {float(frequency_hz[np.argmax(bad)]):g} Hz, so nothing was written; keep the"
+            " grid and the values within the netlist's bounds (docs/netlist.md)"
+        )
     used = dict(circuit.parameters)
     lowered = {key.lower(): key for key in used}
     for name, value in overrides.items():

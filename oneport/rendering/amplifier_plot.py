@@ -12,7 +12,6 @@ from typing import Any
 import numpy as np
 
 from ..analysis.amplifier import AmplifierResult
-from ..errors import InputError
 
 
 def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
@@ -57,9 +56,10 @@ def save_amplifier_plot(result: AmplifierResult, path: str | Path) -> None:
     """Draw :func:`plot_amplifier` into a new figure and save it (format from the suffix)."""
     from matplotlib.figure import Figure
 
+    from .figures import figure_bytes, image_target
+    from .files import write_atomically
+
+    target, image_format = image_target(path)
     figure = Figure(figsize=(8, 5))
     plot_amplifier(result, figure.subplots())
-    try:
-        figure.savefig(path)
-    except (OSError, ValueError) as error:
-        raise InputError(f"--plot {path}: cannot write the plot ({error})") from error
+    write_atomically(target, figure_bytes(figure, image_format))

@@ -88,10 +88,9 @@ def write_report(result: CheckResult, path: str | Path, title: str | None = None
     InputError
         When the file cannot be written (one line naming it).
     """
-    from .files import require_folder, write_atomically
+    from .files import check_target, write_atomically
 
-    target = Path(path)
-    require_folder(target)
+    target = check_target(path, "--report")
     write_atomically(target, render_report(result, title).encode("utf-8"))
     return target
 

@@ -25,7 +25,7 @@ def plot_sweep(result: SweepResult, ax: Any = None) -> Any:
     else:
         figure = ax.figure
     names = list(result.plan.values)
-    if result.plan.kind == "grid" and len(result.plan.shape) == 2 and not result.interrupted:
+    if result.plan.kind == "grid" and len(result.plan.shape) == 2 and result.complete:
         _map(result, names, ax, figure)
     else:
         _histogram(result, ax)

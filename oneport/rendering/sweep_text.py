@@ -28,6 +28,11 @@ def render(
     rows = [line, ""]
     if summary.interrupted:
         rows.append(f"  interrupted: {summary.completed} of {summary.variants} variants finished")
+    elif not summary.complete:
+        rows.append(
+            f"  stopped by an error after {summary.completed} of {summary.variants} variants:"
+            f" {summary.error}"
+        )
     rows.append(
         f"  band {format_frequency(result.frequency_hz[0])}-"
         f"{format_frequency(result.frequency_hz[-1])}, {result.frequency_hz.size} points"
@@ -44,7 +49,8 @@ def render(
         )
         rows.append(f"  worst variant (row {summary.worst_row}; {values}): {summary.worst_reason}")
     if table_path:
-        rows.append(f"  table: {table_path}")
+        partial = "" if summary.complete else " (partial: its column complete is false)"
+        rows.append(f"  table: {table_path}{partial}")
     from ..cautions import CAUTIONS
     from .check_text import closing_sections
 

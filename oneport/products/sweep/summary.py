@@ -28,15 +28,31 @@ class SweepSummary:
     worst_row: int | None
     worst_reason: str
     interrupted: bool
+    #: Whether every planned variant ran; a partial run's table holds the finished ones.
+    complete: bool = True
+    #: What stopped the run early, other than Ctrl-C (one line); None when nothing did.
+    error: str | None = None
 
 
 def summarise(result: SweepResult) -> SweepSummary:
     """Fractions, the stable variants' parameter bounds, and the worst variant with its reason."""
     table = result.table
     completed = result.completed
+    error = None if result.error is None else " ".join(str(result.error).split())
     if not completed:
         return SweepSummary(
-            "inconclusive", result.plan.variants, 0, 0.0, 0.0, 0.0, {}, None, "", True
+            "inconclusive",
+            result.plan.variants,
+            0,
+            0.0,
+            0.0,
+            0.0,
+            {},
+            None,
+            "",
+            result.interrupted,
+            complete=False,
+            error=error,
         )
     codes = table["verdict_code"]
     stable = codes == STABLE
@@ -48,7 +64,7 @@ def summarise(result: SweepResult) -> SweepSummary:
     }
     worst, reason = _worst(table, stable, unstable)
     verdict = "unstable" if unstable.any() else ("stable" if stable.all() else "inconclusive")
-    if result.interrupted and verdict == "stable":
+    if not result.complete and verdict == "stable":
         verdict = "inconclusive"
     return SweepSummary(
         verdict=verdict,
@@ -61,6 +77,8 @@ def summarise(result: SweepResult) -> SweepSummary:
         worst_row=worst,
         worst_reason=reason,
         interrupted=result.interrupted,
+        complete=result.complete,
+        error=error,
     )
 
 
@@ -107,6 +125,8 @@ def summary_dict(
         "variants": summary.variants,
         "completed": summary.completed,
         "interrupted": summary.interrupted,
+        "complete": summary.complete,
+        "error": summary.error,
         "stable_fraction": summary.stable_fraction,
         "unstable_fraction": summary.unstable_fraction,
         "inconclusive_fraction": summary.inconclusive_fraction,
