@@ -219,7 +219,7 @@ class AmplifierResult:
             arrays["gain_lower_db"] = self.gain_bounds_db[0].tolist()
             arrays["gain_upper_db"] = [_finite_or_none(v) for v in self.gain_bounds_db[1].tolist()]
         if self.gain_with_load_db is not None:
-            arrays["gain_with_load_db"] = self.gain_with_load_db.tolist()
+            arrays["gain_with_load_db"] = [_finite_or_none(v) for v in self.gain_with_load_db]
         return arrays
 
 
@@ -290,8 +290,11 @@ def analyse_amplifier(
         edges = bound.edges
     with_load = None
     if gamma_port is not None:
-        effective = gamma_device / (1.0 - gamma_device * gamma_port)
-        with_load = 20.0 * np.log10(np.maximum(np.abs(effective), 1e-300))
+        # Where Γd·Γport = 1 the loaded gain has a pole: unbounded (+inf dB; null in JSON).
+        with np.errstate(divide="ignore", invalid="ignore"):
+            effective = np.abs(gamma_device) / np.abs(1.0 - gamma_device * gamma_port)
+        effective = np.where(np.isnan(effective), np.inf, effective)
+        with_load = 20.0 * np.log10(np.maximum(effective, 1e-300))
     partial = _Partial(frequency_hz, gain_db, required, z0, bound, source, nyquist)
     verdict, basis, reasons, steps = _decide(partial)
     return AmplifierResult(

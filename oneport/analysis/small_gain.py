@@ -95,7 +95,9 @@ def required_return_loss_db(gamma_device: np.ndarray) -> np.ndarray:
     >>> round(float(required_return_loss_db(np.array([(-100 - 50) / (-100 + 50)]))[0]), 2)
     9.54
     """
-    return np.maximum(20.0 * np.log10(np.abs(gamma_device)), 0.0)
+    # |Γd| = 0 needs no return loss at all (0 dB, as any |Γd| ≤ 1).
+    magnitude = np.maximum(np.abs(gamma_device), np.finfo(float).tiny)
+    return np.maximum(20.0 * np.log10(magnitude), 0.0)
 
 
 def small_gain_bound(

@@ -369,14 +369,17 @@ class NetlistProbe:
     def __call__(self, rows: np.ndarray, frequency_hz: np.ndarray) -> np.ndarray:
         """ΓL of variants ``rows`` at ``frequency_hz`` (shape (k, m), one row per variant)."""
         frequency_hz = np.asarray(frequency_hz, dtype=float)
+        rows = np.asarray(rows)
         gamma = np.empty(frequency_hz.shape, dtype=complex)
-        # Rows that ask for the same frequencies are evaluated together, vectorised over them.
-        grids, group = np.unique(frequency_hz, axis=0, return_inverse=True)
-        for index, grid in enumerate(grids):
-            members = np.flatnonzero(group.reshape(-1) == index)
-            given = {name: values[rows[members]] for name, values in self.parameters.items()}
-            values = self.circuit.gamma(grid, self.reference_impedance_ohm, **given)
-            gamma[members] = np.broadcast_to(np.asarray(values), (members.size, grid.size))
+        # One evaluation per variant over every frequency its rows ask for (each interval asks
+        # for its own; one call per interval cost seconds on a long ladder).
+        variants = np.unique(rows) if self.parameters else rows[:1]
+        for variant in variants:
+            members = np.flatnonzero(rows == variant) if self.parameters else np.arange(rows.size)
+            grid, back = np.unique(frequency_hz[members], return_inverse=True)
+            given = {name: values[[variant]] for name, values in self.parameters.items()}
+            values = np.asarray(self.circuit.gamma(grid, self.reference_impedance_ohm, **given))
+            gamma[members] = values.reshape(-1)[back].reshape(members.size, -1)
         return gamma
 
 
