@@ -165,6 +165,8 @@ def _file_problems(
     outputs: tuple[str, ...],
 ) -> list[str]:
     allowed = set(outputs)
+    for name in outputs:  # a named folder is made with its parents
+        allowed |= {str(parent) for parent in Path(name).parents if str(parent) != "."}
     problems = []
     for name, entry in before.items():
         if name not in allowed and after.get(name) != entry:
