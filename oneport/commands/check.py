@@ -170,7 +170,10 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
             raise InputError(
                 "--poles, --plot and --report go with --load, not with --load-return-loss"
             )
-        options.grid(arguments, netlists=False, required=False, data=arguments.device)
+        from ..reading.files import is_netlist_path
+
+        if not is_netlist_path(arguments.device):  # a netlist device is refused by the bound
+            options.grid(arguments, netlists=False, required=False, data=arguments.device)
         uncertainty = arguments.gamma_uncertainty
         result = check_load_class(
             arguments.device,

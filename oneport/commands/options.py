@@ -5,7 +5,7 @@ runs while the command line is parsed, before any file is read or anything is co
 either returns the value in SI units (or a whole number, or a checked path) or raises
 :class:`~oneport.errors.InputError` with one line: the option, the bad value, what is accepted.
 An option that appears in several commands has the same rule in all of them, and the limits
-below are the only ones (README.md, "Limits").
+below are the only ones (listed in README.md, "Usage").
 
 Rules that join several options (a frequency grid, the outputs against the inputs) are
 functions here too: :func:`grid` and :func:`outputs`, which every command calls first in its
@@ -35,7 +35,7 @@ from ..units import parse_decibels, parse_quantity
 
 Rule = Callable[[str, str], Any]
 
-# -- the limits (README.md, "Limits"; docs/sweep.md) ------------------------------------------
+# -- the limits (README.md, "Usage"; docs/sweep.md) ------------------------------------------
 
 #: Highest frequency any option takes, Hz: far beyond RF, and low enough that 2π·f times any
 #: netlist value's bound stays finite (docs/netlist.md, value bounds).
