@@ -90,7 +90,12 @@ def run_case(case: Case, folder: Path, time_limit_s: int = 60) -> Outcome:
     code: int | None = None
     started = time.perf_counter()
     try:
-        with _time_limit(time_limit_s), _one_poll_watch(), _shell_warnings() as caught:
+        with (
+            _time_limit(time_limit_s),
+            _one_poll_watch(),
+            _shell_warnings() as caught,
+            contextlib.chdir(folder),  # relative paths land in the folder, where they are judged
+        ):
             code = int(main(argv, stdout=out, stderr=err))
     except TimeoutError:
         problems.append(f"hang: no answer within {time_limit_s} s")
@@ -146,7 +151,7 @@ def strict_json_problem(text: str) -> str | None:
 def snapshot(folder: Path) -> dict[str, tuple[str, bytes | None]]:
     """Every entry under ``folder``: its kind and, for a regular file, its bytes."""
     entries: dict[str, tuple[str, bytes | None]] = {}
-    for path in folder.rglob("*"):
+    for path in sorted(folder.rglob("*")):
         name = str(path.relative_to(folder))
         if path.is_symlink():
             entries[name] = ("link", os.readlink(path).encode())
@@ -334,7 +339,7 @@ HOSTILE_PATHS = (
     "/sys/x.csv", "/dev/null", "/dev/zero", "/dev/urandom", "{dir}/fifo", "{dir}/sub",
     "{dir}/a\nb.png", "{dir}/" + "x" * 300 + ".png", "{dir}/x.pdf", "{dir}/x.png",
     "{dir}/x.svg", "{dir}/x.html", "{dir}/x.csv", "{dir}/x.parquet", "{dir}/x.s1p",
-    "{dir}/x.s2p", "{dir}/\u202egnp.svg", "{dir}/..", "~/x.png", "{dir}/device.s1p",
+    "{dir}/x.s2p", "{dir}/\u202egnp.svg", "{dir}/sub/..", "~/x.png", "{dir}/device.s1p",
     "{dir}/load.s1p", "{dir}/net.cir",
 )  # fmt: skip
 GARBAGE = "0123456789.-+eE  \t!#[]=:%RrSsZzYyMmAaDdBbHhGgKkLlCcTtNnOo,;_xXfFpPuU\x7f\u00b5\u00a0"
@@ -626,8 +631,8 @@ def option_case(rng: random.Random, options: dict[str, list[tuple[str, bool]]]) 
             value = "0"  # accepted, but a run of hours: not what a fuzzer can wait for
         if flag in ("--plot", "--report", "-o", "--output", "--report-dir"):
             value = rng.choice(HOSTILE_PATHS)
-            name = value.removeprefix("{dir}").strip("/")
-            if value.startswith("{dir}") and name not in _inputs(argv) and name not in fifos:
+            name = _output_name(value)
+            if name is not None and name not in _inputs(argv) and name not in fifos:
                 outputs.append(name)  # a named output may be written; an input never
         argv += rng.choice([[flag, value], [f"{flag}={value}"]])
     if rng.random() < 0.3:
@@ -635,6 +640,16 @@ def option_case(rng: random.Random, options: dict[str, list[tuple[str, bool]]]) 
     if command == "watch":  # a report folder holds a report of each file checked
         outputs += [str(Path(name) / "new.s1p.html") for name in list(outputs)]
     return Case(f"options/{base_name}", argv, files, tuple(outputs), fifos, folders=("sub",))
+
+
+def _output_name(value: str) -> str | None:
+    """Where an output path lands in the case's folder (the run's working folder), or None
+    for a place outside it."""
+    if value.startswith("{dir}"):
+        value = value.removeprefix("{dir}").lstrip("/") or "."
+    elif value.startswith("/"):
+        return None
+    return os.path.normpath(value) if value else ""
 
 
 def _inputs(argv: list[str]) -> set[str]:
