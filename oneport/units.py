@@ -167,3 +167,70 @@ def format_power(watts: float) -> str:
     if not watts > 0:
         return format_engineering(watts, "W", digits=3)
     return f"{format_engineering(watts, 'W', digits=3)} ({10 * math.log10(watts / 1e-3):.1f} dBm)"
+
+
+def format_plain(value: float, digits: int = 3) -> str:
+    """A number to ``digits`` significant figures, written ``330`` not ``3.3e+02``, and
+    ``4.82e9`` rather than ``4.82e+09`` when it must use an exponent.
+
+    Examples
+    --------
+    >>> format_plain(330.4), format_plain(2.14), format_plain(-1.2e10), format_plain(0.0123)
+    ('330', '2.14', '-1.2e10', '0.0123')
+    >>> format_plain(269.4, 2), format_plain(18594.0)
+    ('270', '18600')
+    """
+    if not math.isfinite(value):
+        return "unbounded" if value > 0 else "-unbounded" if value < 0 else "undefined"
+    if value == 0:
+        return "0"
+    exponent = math.floor(math.log10(abs(value)))
+    if -3 <= exponent < 6:
+        decimals = digits - 1 - exponent
+        if decimals < 0:
+            return f"{round(value, decimals):.0f}"
+        text = f"{value:.{decimals}f}"
+        return text.rstrip("0").rstrip(".") if "." in text else text
+    mantissa = value / 10.0**exponent
+    if round(abs(mantissa), digits - 1) >= 10:
+        mantissa, exponent = mantissa / 10, exponent + 1
+    text = f"{mantissa:.{digits - 1}f}".rstrip("0").rstrip(".")
+    return f"{text}e{exponent}"
+
+
+def format_rate(per_second: float) -> str:
+    """A growth or decay rate in 1/s without a computer's exponent: ``4.82e9 /s``.
+
+    Examples
+    --------
+    >>> format_rate(4.8199e9)
+    '4.82e9 /s'
+    >>> format_rate(-250.0)
+    '-250 /s'
+    """
+    return f"{format_plain(per_second)} /s"
+
+
+def format_resistance(ohm: float, digits: int = 3) -> str:
+    """A resistance for reading: ``-76 ohm``, ``1.5 kohm``, ``0.2 ohm``.
+
+    Examples
+    --------
+    >>> format_resistance(-76.0), format_resistance(1500.0), format_resistance(0.25)
+    ('-76 ohm', '1.5 kohm', '0.25 ohm')
+    """
+    if math.isfinite(ohm) and abs(ohm) >= 1e3:
+        return format_engineering(ohm, "ohm", digits=digits)
+    return f"{format_plain(ohm, digits)} ohm"
+
+
+def format_decibels(magnitude: float, digits: int = 2) -> str:
+    """A linear magnitude (voltage-like ratio) in dB with ``digits`` decimals: ``4.66`` →
+    ``'13.37 dB'``.
+
+    Examples
+    --------
+    >>> format_decibels(4.66), format_decibels(0.5, 1)
+    ('13.37 dB', '-6.0 dB')
+    """
+    return f"{to_decibels(magnitude):.{digits}f} dB"
