@@ -234,3 +234,14 @@ def format_decibels(magnitude: float, digits: int = 2) -> str:
     ('13.37 dB', '-6.0 dB')
     """
     return f"{to_decibels(magnitude):.{digits}f} dB"
+
+
+def format_count(count: int, singular: str, plural: str | None = None) -> str:
+    """A count with its noun in the right number: ``2 natural frequencies``.
+
+    Examples
+    --------
+    >>> format_count(1, "natural frequency", "natural frequencies"), format_count(3, "zero")
+    ('1 natural frequency', '3 zeros')
+    """
+    return f"{count} {singular if count == 1 else plural or singular + 's'}"

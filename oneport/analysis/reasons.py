@@ -189,9 +189,7 @@ def describe(
             resolution = diagnostics.grid_resolution(grid, record.source, np.array(gain_bands))
             if resolution is not None:
                 grids.append(resolution)
-    modes = _established_modes(
-        verdict, count, frequency_hz, loop_gain, z0, exact, oscillation
-    )
+    modes = _established_modes(verdict, count, frequency_hz, loop_gain, z0, exact, oscillation)
     return CheckResult(
         verdict=verdict,
         reasons=tuple(reasons),
@@ -262,7 +260,9 @@ def _established_modes(
     from .pole_zero import identify_natural_frequencies
 
     try:
-        fitted = identify_natural_frequencies(frequency_hz, characteristic, reference_impedance_ohm=z0)
+        fitted = identify_natural_frequencies(
+            frequency_hz, characteristic, reference_impedance_ohm=z0
+        )
     except ValueError:
         return None
     trusted = [

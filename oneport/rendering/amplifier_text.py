@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from ..units import format_frequency
+from ..units import format_frequency, format_plain, format_resistance
 from .check_text import closing_sections, wrap
 
 if TYPE_CHECKING:
@@ -32,13 +32,13 @@ def verdict_line(result: AmplifierResult) -> str:
     }[result.basis]
     port = ""
     if result.port_source == "return-loss":
-        port = f"; port {result.port_return_loss_db:.1f} dB return loss"
+        port = f"; port return loss {result.port_return_loss_db:.1f} dB"
     elif result.port_source == "load":
         port = f"; port file, worst return loss {result.port_return_loss_db:.1f} dB"
     return (
         f"{_HEADLINE[result.verdict]} ({basis}): peak gain {result.peak_gain_db:.2f} dB at"
         f" {format_frequency(result.peak_frequency_hz)}{port};"
-        f" Z0 = {result.reference_impedance_ohm:g} ohm"
+        f" Z0 = {format_resistance(result.reference_impedance_ohm)}"
     )
 
 
@@ -50,7 +50,7 @@ def render(result: AmplifierResult) -> str:
     if result.nyquist is not None:
         nyquist = result.nyquist
         count = "?" if nyquist.encirclements is None else str(nyquist.encirclements)
-        parts += ["", "Nyquist check with the load", f"  {nyquist.verdict}, N = {count}"]
+        parts += ["", "Nyquist check with the port file", f"  {nyquist.verdict}, N = {count}"]
     parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
     return "\n".join(parts) + "\n"
 
@@ -59,16 +59,17 @@ def _gain(result: AmplifierResult) -> list[str]:
     z0 = result.reference_impedance_ohm
     bandwidth = result.bandwidth
     rows = [
-        f"Gain |gamma_device|^2 (Z0 = {z0:g} ohm)",
+        f"Gain |Γd|² (Z0 = {format_resistance(z0)})",
         f"  peak {result.peak_gain_db:.2f} dB at {format_frequency(result.peak_frequency_hz)}",
         f"  -3 dB band {_span(bandwidth)}, bandwidth"
         f" {format_frequency(bandwidth.stop_hz - bandwidth.start_hz)}",
     ]
     if not result.bands:
-        rows.append(f"  no band reaches {result.gain_threshold_db:g} dB")
+        rows.append(f"  no band reaches {format_plain(result.gain_threshold_db)} dB")
     for band in result.bands:
         rows.append(
-            f"  >= {result.gain_threshold_db:g} dB: {_span(band)}, peak {band.peak_gain_db:.2f} dB"
+            f"  ≥ {format_plain(result.gain_threshold_db)} dB: {_span(band)}, peak"
+            f" {band.peak_gain_db:.2f} dB"
             f" at {format_frequency(band.peak_frequency_hz)}"
         )
     return rows
@@ -76,7 +77,7 @@ def _gain(result: AmplifierResult) -> list[str]:
 
 def _requirement(result: AmplifierResult) -> list[str]:
     rows = [
-        "Port match for guaranteed stability (small-gain bound |gamma_device * gamma_port| < 1)",
+        "Port match for guaranteed stability (small-gain bound |Γd·Γport| < 1 at every frequency)",
         f"  return loss needed: {result.worst_required_return_loss_db:.2f} dB at"
         f" {format_frequency(result.worst_frequency_hz)} (the gain in dB at each frequency)",
     ]

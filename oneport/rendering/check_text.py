@@ -14,6 +14,7 @@ number carries its unit or names its quantity (``|1 - L| = 0.24``).
 from __future__ import annotations
 
 import math
+import re
 import textwrap
 from collections.abc import Sequence
 
@@ -77,7 +78,11 @@ def render(result: CheckResult) -> str:
     parts += [wrap(note, "  ") for note in margins_notes(result)]
     parts += ["", "Closing the contour outside the sweep"]
     parts += [_pair_line(label, value) for label, value in closure_rows(result)]
-    parts += ["", "Sampling and measurement", *[wrap(line, "  ") for line in sampling_lines(result)]]
+    parts += [
+        "",
+        "Sampling and measurement",
+        *[wrap(line, "  ") for line in sampling_lines(result)],
+    ]
     if result.modes is not None or result.verdict == "unstable":
         parts += ["", "Modes the count establishes"]
         headings, rows = mode_rows(result)
@@ -399,14 +404,23 @@ def _ohm(result: CheckResult) -> str:
     return format_resistance(result.reference_impedance_ohm)
 
 
+#: A number and the unit after it (or a symbol, "=" and its value) stay on one line.
+_KEEP_TOGETHER = re.compile(
+    r"(?<=\d) (?=(?:[GMk]?Hz|dB|dBm|ohm|kohm|°|%|/s|[pnuµm]?[FHVAWs])\b)|(?<=[=≥≤<>]) (?=[-+\d])"
+    r"|(?<=\w) (?=[=≥≤] [-+\d])"
+)
+_GLUE = "\x00"
+
+
 def wrap(text: str, indent: str, hang: int | None = None) -> str:
     """``text`` wrapped to the report width, every line indented (continuation lines by
-    ``hang`` spaces when given)."""
+    ``hang`` spaces when given). A value and its unit, and ``N = 2``, are never split."""
     following = " " * (len(indent) if hang is None else hang)
+    glued = _KEEP_TOGETHER.sub(_GLUE, text)
     return textwrap.fill(
-        text,
+        glued,
         width=_WIDTH,
         initial_indent=indent,
         subsequent_indent=following,
         break_on_hyphens=False,
-    )
+    ).replace(_GLUE, " ")

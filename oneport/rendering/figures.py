@@ -20,9 +20,7 @@ if TYPE_CHECKING:
 _SAVE_FORMATS = {".png": "png", ".svg": "svg"}
 
 
-def new_figure(
-    size: tuple[float, float], margins: dict[str, float] | None = None
-) -> Figure:
+def new_figure(size: tuple[float, float], margins: dict[str, float] | None = None) -> Figure:
     """A headless figure: laid out by matplotlib's constrained layout, or, when ``margins``
     are given (``left``, ``right``, ``top``, ``bottom``, ``wspace``, ``hspace`` as fractions of
     the figure), with those fixed margins — several times cheaper to draw, which keeps the

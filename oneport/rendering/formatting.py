@@ -41,8 +41,28 @@ def format_reflection(value: complex) -> str:
     return f"{format_plain(abs(value))} ∠ {format_plain(angle)}°"
 
 
+def format_component(value: float, unit: str) -> str:
+    """A component value as the trade writes it: inductors in nH and capacitors in pF across
+    their usual RF range (``0.864 nH``, ``2.7 pF``), anything else with an SI prefix.
+
+    Examples
+    --------
+    >>> format_component(8.64e-10, "H"), format_component(2.7e-12, "F"), format_component(2e-6, "H")
+    ('0.864 nH', '2.7 pF', '2 µH')
+    """
+    from ..units import format_engineering
+
+    scale = {"H": (1e-9, "nH"), "F": (1e-12, "pF")}.get(unit)
+    if scale is not None and 0.01 * scale[0] <= abs(value) < 1000 * scale[0]:
+        return f"{format_plain(value / scale[0])} {scale[1]}"
+    return format_engineering(value, unit, 3)
+
+
 def format_table(
-    headings: Sequence[str], rows: Sequence[Sequence[str]], right: Sequence[int] = (), indent: str = "  "
+    headings: Sequence[str],
+    rows: Sequence[Sequence[str]],
+    right: Sequence[int] = (),
+    indent: str = "  ",
 ) -> list[str]:
     """Rows aligned under their headings, each column as wide as its widest cell.
 
@@ -53,7 +73,7 @@ def format_table(
     --------
     >>> for line in format_table(("at", "|L|"), [("1.648 GHz", "2.01 dB")], right=(0, 1)):
     ...     print(line)
-          at      |L|
+             at      |L|
       1.648 GHz  2.01 dB
     """
     table = [list(headings), *[list(row) for row in rows]]
