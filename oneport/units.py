@@ -245,3 +245,35 @@ def format_count(count: int, singular: str, plural: str | None = None) -> str:
     ('1 natural frequency', '3 zeros')
     """
     return f"{count} {singular if count == 1 else plural or singular + 's'}"
+
+
+#: How a value of each SI unit reads best: a fixed scale for the trade's usual components.
+_READING_SCALES = {"H": (1e-9, "nH"), "F": (1e-12, "pF")}
+
+
+def format_value(value: float, unit: str, digits: int = 3) -> str:
+    """Any quantity for reading by its SI unit symbol (``""`` for a plain number): ohm as
+    :func:`format_resistance`, Hz as :func:`format_frequency`, inductance in nH and capacitance
+    in pF across their usual RF range, anything else with an SI prefix.
+
+    Examples
+    --------
+    >>> format_value(8e-9, "H"), format_value(2.7e-12, "F"), format_value(20.0, "ohm")
+    ('8 nH', '2.7 pF', '20 ohm')
+    >>> format_value(1.2e-11, "s"), format_value(0.065, "S"), format_value(3.0, "")
+    ('12 ps', '65 mS', '3')
+    """
+    if not math.isfinite(value):
+        return format_plain(value) + (f" {unit}" if unit else "")
+    if unit == "ohm":
+        return format_resistance(value, digits)
+    if unit == "Hz":
+        return format_frequency(value)
+    if not unit:
+        return format_plain(value, digits)
+    scale = _READING_SCALES.get(unit)
+    if scale is not None and 0.01 * scale[0] <= abs(value) < 1000 * scale[0]:
+        return f"{format_plain(value / scale[0], digits)} {scale[1]}"
+    if value == 0:
+        return f"0 {unit}"
+    return format_engineering(float(format_plain(value, digits)), unit, digits)

@@ -102,7 +102,9 @@ def test_hostile_names_and_comments_are_escaped(hostile_result, tmp_path):
     assert html.escape(HOSTILE) in text
     assert "<title>&lt;b&gt;bench&lt;/b&gt; &amp; co</title>" in text
     assert "<b>" not in text
-    warning = next(w for w in hostile_result.warnings if w.code == "device-points-outside-load-band")
+    warning = next(
+        w for w in hostile_result.warnings if w.code == "device-points-outside-load-band"
+    )
     assert html.escape(warning.message) in text, "the warnings list"
 
 

@@ -555,7 +555,9 @@ _FAILURES = {
 }
 
 
-def _roots(count: int) -> str:
+def _roots(count: int | None) -> str:
+    if count is None:
+        return "an unknown number of right-half-plane natural frequencies"
     return format_count(
         count, "right-half-plane natural frequency", "right-half-plane natural frequencies"
     )
@@ -584,9 +586,10 @@ def _agreement(forms: tuple[FormCount, ...]) -> list[str]:
             )
     implied = {f.implied_rhp_roots for f in counted}
     if None not in implied and len(implied) == 1:
+        roots = implied.pop() or 0
         sentences.append(
             "Corrected for the premises that fail, every form gives"
-            f" {format_count(implied.pop(), 'natural frequency', 'natural frequencies')} in the"
+            f" {format_count(roots, 'natural frequency', 'natural frequencies')} in the"
             " right half plane."
         )
     else:

@@ -175,10 +175,10 @@ def _newton_on_continuation(
     slope = np.polyder(coefficients)
     z = 0j
     for _ in range(iterations):
-        derivative = np.polyval(slope, z)
+        derivative = complex(np.polyval(slope, z))
         if derivative == 0:
             return None
-        step = np.polyval(coefficients, z) / derivative
+        step = complex(np.polyval(coefficients, z)) / derivative
         z -= step
         if abs(step) < 1e-10:
             break

@@ -122,7 +122,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         )
     finally:
         close()
-    summary = summarise(result)
+    summary = summarise(result, setup["source"], setup["dc_sign"])
     table_path = None
     if arguments.output and result.completed:
         table_path = str(write_table(result.table, arguments.output))
@@ -130,7 +130,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         from ..rendering.figures import save_figure
         from ..rendering.sweep_plots import plot_sweep
 
-        save_figure(plot_sweep(result), arguments.plot)
+        save_figure(plot_sweep(result, summary=summary), arguments.plot)
     if arguments.json:
         data = summary_dict(result, summary, setup["inputs"], table_path)
         data["warnings"] = [finding.to_dict() for finding in setup["warnings"]]

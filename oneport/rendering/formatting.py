@@ -14,7 +14,7 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 
-from ..units import format_plain
+from ..units import format_plain, format_value
 
 
 def format_impedance(value: complex) -> str:
@@ -50,12 +50,7 @@ def format_component(value: float, unit: str) -> str:
     >>> format_component(8.64e-10, "H"), format_component(2.7e-12, "F"), format_component(2e-6, "H")
     ('0.864 nH', '2.7 pF', '2 µH')
     """
-    from ..units import format_engineering
-
-    scale = {"H": (1e-9, "nH"), "F": (1e-12, "pF")}.get(unit)
-    if scale is not None and 0.01 * scale[0] <= abs(value) < 1000 * scale[0]:
-        return f"{format_plain(value / scale[0])} {scale[1]}"
-    return format_engineering(value, unit, 3)
+    return format_value(value, unit)
 
 
 def format_table(

@@ -130,7 +130,7 @@ def _best_marker(ax: Axes, result: TerminationsResult) -> None:
         text = "Z at the other port is infinite here:\nthe negative resistance is unbounded"
     else:
         text = (
-            f"most negative: R = {format_resistance(best.observed_resistance_ohm)}"
+            f"most negative: R = {format_resistance(best.observed_resistance_ohm or 0.0)}"
             f" at port {result.observed_port}"
         )
     (marker,) = ax.plot(

@@ -10,6 +10,7 @@ from __future__ import annotations
 from typing import Any
 
 from ..errors import printable
+from ..findings import Finding
 from ..units import format_frequency, format_plain, format_resistance
 from .check_text import closing_sections, wrap
 from .formatting import format_component, format_impedance, format_reflection
@@ -84,16 +85,9 @@ def render(result: Any) -> str:
         f" {format_frequency(result.grid_hz[0])}-{format_frequency(result.grid_hz[-1])},"
         f" R = {format_resistance(result.reference_impedance_ohm)}"
     )
-    warnings = [_Warning(str(w.get("message", ""))) for w in result.warnings]
+    warnings = [Finding(str(w.get("code", "")), str(w.get("message", ""))) for w in result.warnings]
     lines += closing_sections(warnings, (), None, result.cautions)
     return "\n".join(lines) + "\n"
-
-
-class _Warning:
-    """A warning as closing_sections reads it (its message)."""
-
-    def __init__(self, message: str) -> None:
-        self.message = message
 
 
 def _best_line(result: Any, best: Any) -> str:
