@@ -278,7 +278,7 @@ def _startup(estimate: StartupEstimate, z0: float) -> dict[str, Any]:
         "sigma_per_s": estimate.sigma_per_s,
         "growing": estimate.growing,
         "total_resistance_ohm": estimate.total_real_part if impedance else None,
-        "total_conductance_s": None if impedance else estimate.total_real_part,
+        "total_conductance_siemens": None if impedance else estimate.total_real_part,
         "negative_to_load_resistance_ratio": estimate.resistance_ratio,
         "external_q": estimate.external_q,
         "reference_impedance_ohm": z0,

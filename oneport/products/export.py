@@ -2,7 +2,7 @@
 
 :func:`frequency_grid` builds the sweep, :func:`export_circuit` evaluates the circuit on it and
 writes ``.s1p`` (one port) or ``.s2p`` (two ports); the frozen :class:`ExportResult` says what
-was written (JSON schema ``oneport.export/1``, docs/netlist.md). Nothing here prints.
+was written (JSON schema ``oneport.export/2``, docs/netlist.md). Nothing here prints.
 """
 
 from __future__ import annotations
@@ -20,8 +20,9 @@ from ..circuit.netlist import read_circuit
 from ..circuit.writer import write_touchstone
 from ..errors import InputError
 from ..reading.files import read_user_bytes
+from .parameters import parameter_units
 
-EXPORT_SCHEMA = "oneport.export/1"
+EXPORT_SCHEMA = "oneport.export/2"
 SPACINGS = ("linear", "log")
 
 
@@ -45,6 +46,8 @@ class ExportResult:
         Z0 of the written S-parameters, Ω.
     parameters : dict of str to float
         Every parameter's value as used (netlist defaults with the overrides applied).
+    parameter_units : dict of str to str
+        Each parameter's SI unit symbol, from the elements that use it (``""``: a number).
     """
 
     circuit_path: str
@@ -59,16 +62,25 @@ class ExportResult:
     parameters: dict[str, float]
     warnings: tuple[dict[str, str], ...] = ()
     cautions: tuple[str, ...] = field(default=CAUTIONS)
+    parameter_units: dict[str, str] = field(default_factory=dict)
 
     def to_dict(self) -> dict[str, Any]:
-        """The JSON object (schema ``oneport.export/1``)."""
+        """The JSON object (schema ``oneport.export/2``)."""
+        from .parameters import value_record
+
         return {
             "schema": EXPORT_SCHEMA,
-            "inputs": {
-                "path": self.circuit_path,
-                "sha256": self.circuit_sha256,
-                "parameters": dict(self.parameters),
-            },
+            "inputs": [
+                {
+                    "role": "netlist",
+                    "path": self.circuit_path,
+                    "sha256": self.circuit_sha256,
+                    "parameters": [
+                        value_record(name, value, self.parameter_units.get(name, ""))
+                        for name, value in self.parameters.items()
+                    ],
+                }
+            ],
             "output": {
                 "path": self.output_path,
                 "ports": self.ports,
@@ -157,4 +169,5 @@ def export_circuit(
         spacing=spacing,
         reference_impedance_ohm=float(reference_impedance_ohm),
         parameters=used,
+        parameter_units=parameter_units([circuit]),
     )

@@ -18,22 +18,12 @@ import numpy as np
 from ...analysis.variants import INCONCLUSIVE, STABLE, UNSTABLE, VERDICT_CODES
 from ...cautions import CAUTIONS
 from ...units import format_count, format_frequency, format_plain, format_value, to_decibels
+from ..parameters import key_suffix, value_record
+from ..parameters import parameter_units as units_of
 from .plan import ParameterPlan
 from .runner import SweepResult, run_chunk
 
 SWEEP_SCHEMA = "oneport.sweep/2"
-#: The JSON key suffix of each SI unit symbol (siemens spelled out: ``_s`` is seconds).
-KEY_SUFFIX = {
-    "ohm": "_ohm",
-    "H": "_h",
-    "F": "_f",
-    "S": "_siemens",
-    "m": "_m",
-    "s": "_s",
-    "Hz": "_hz",
-    "dB": "_db",
-    "": "",
-}
 #: What the device-list column counts.
 DEVICE_INDEX_WORDS = "device file number (from 0, in the order given)"
 
@@ -71,25 +61,8 @@ class SweepSummary:
 def parameter_units(source: Any) -> dict[str, str]:
     """Each netlist parameter's SI unit symbol, from the elements that use it (``""`` for a
     plain number, or when elements use it for quantities of different units)."""
-    found: dict[str, set[str]] = {}
-    for side in (getattr(source, "device", None), getattr(source, "load", None)):
-        circuit = getattr(side, "circuit", None)
-        if circuit is None:
-            continue
-        names = {key.lower(): name for key, name in _declared(circuit).items()}
-        for element in circuit.elements:
-            for key, spec in element.values.items():
-                reference = getattr(spec, "name", None)
-                if reference is None or reference.lower() not in names:
-                    continue
-                rule = element.rules.get(key)
-                unit = rule.unit if rule is not None else ""
-                found.setdefault(names[reference.lower()], set()).add(unit)
-    return {name: units.pop() if len(units) == 1 else "" for name, units in found.items()}
-
-
-def _declared(circuit: Any) -> dict[str, str]:
-    return {name.lower(): name for name in circuit.parameters}
+    sides = (getattr(source, "device", None), getattr(source, "load", None))
+    return units_of([getattr(side, "circuit", None) for side in sides])
 
 
 def summarise(result: SweepResult, source: Any = None, dc_sign: int | None = None) -> SweepSummary:
@@ -333,8 +306,8 @@ def summary_dict(
             {
                 "name": name,
                 "unit": units.get(name, ""),
-                f"low{KEY_SUFFIX.get(units.get(name, ''), '')}": low,
-                f"high{KEY_SUFFIX.get(units.get(name, ''), '')}": high,
+                f"low{_suffix(units.get(name, ''))}": low,
+                f"high{_suffix(units.get(name, ''))}": high,
             }
             for name, (low, high) in summary.stable_bounds.items()
         ],
@@ -350,11 +323,11 @@ def summary_dict(
 
 
 def _suffix(unit: str) -> str:
-    return KEY_SUFFIX.get(unit, "")
+    return key_suffix(unit)
 
 
 def _value_record(name: str, value: float, unit: str) -> dict[str, Any]:
-    return {"name": name, "unit": unit, f"value{_suffix(unit)}": value}
+    return value_record(name, value, unit)
 
 
 def _plan_record(plan: ParameterPlan, unit: str) -> dict[str, Any]:
