@@ -41,7 +41,7 @@ def test_one_port_export_reads_back(tmp_path: Path) -> None:
 
 def test_two_port_export_with_log_spacing_and_json(tmp_path: Path) -> None:
     netlist = tmp_path / "pi.cir"
-    netlist.write_text("C1 1 0 1p\nL1 1 2 5n rser=0.7\nC2 2 0 2p\nR2 2 0 400\n.twoport 1 2\n")
+    netlist.write_text("C1 1 0 1p\nL1 1 2 5n esr=0.7\nC2 2 0 2p\nR2 2 0 400\n.twoport 1 2\n")
     output = tmp_path / "pi.s2p"
     code, out, _ = _run(
         "export", str(netlist), "--start", "10MHz", "--stop", "10GHz", "--points", "31",

@@ -41,7 +41,7 @@ def _passive_grid(rings: int = 250) -> np.ndarray:
 
 def _common_gate() -> Multiport:
     circuit = parse_circuit(
-        f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n rser=0.4\n.twoport s d', source="common gate"
+        f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n esr=0.4\n.twoport s d', source="common gate"
     )
     return multiport_from_circuit(circuit, read_touchstone(TRANSISTOR).frequency_hz)
 
@@ -160,7 +160,7 @@ def test_command_text_json_and_chart(tmp_path: Path) -> None:
 
 def test_command_with_a_netlist(tmp_path: Path) -> None:
     netlist = tmp_path / "cg.cir"
-    netlist.write_text(f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n rser=0.4\n.twoport s d\n')
+    netlist.write_text(f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n esr=0.4\n.twoport s d\n')
     code, out, _ = _run(
         "terminations", str(netlist), "--at", "5GHz", "--start", "1GHz", "--stop", "10GHz",
         "--points", "91", "--quiet",
