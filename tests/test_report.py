@@ -143,7 +143,7 @@ def test_chromium_renders_the_report_without_console_messages(
     oscillating, oscillating_report, tmp_path
 ):
     """What this proves: a real browser parses the file and its DOM carries the verdict and the
-    three embedded images; and the browser logged no console message at all, which is where a
+    two embedded images; and the browser logged no console message at all, which is where a
     blocked load (the page's Content-Security-Policy allows only data: images and inline
     style), a blocked script or a page error would show. The control page shows that such
     messages do reach the log scanned. That no request leaves the machine rests on the file
@@ -162,6 +162,6 @@ def test_chromium_renders_the_report_without_console_messages(
     rendered = _chromium_dump(chromium, oscillating_report, tmp_path / "profile-report")
     assert rendered.returncode == 0, rendered.stderr[-2000:]
     assert html.escape(verdict_line(oscillating)) in rendered.stdout
-    assert rendered.stdout.count("data:image/png;base64,") == 3
+    assert rendered.stdout.count("data:image/png;base64,") == 2
     console = [line for line in rendered.stderr.splitlines() if "CONSOLE" in line]
     assert console == []

@@ -30,7 +30,7 @@ from ..units import format_frequency
 from .result import CheckResult
 from .small_gain import EdgeBound, SmallGainBound, bound_premise, bound_words, small_gain_bound
 
-AMPLIFIER_SCHEMA = "oneport.amplifier/2"
+AMPLIFIER_SCHEMA = "oneport.amplifier/3"
 VERDICTS = ("guaranteed", "not-guaranteed", "stable", "unstable", "inconclusive")
 DEFAULT_GAIN_THRESHOLD_DB = 10.0
 #: The bandwidth is where the gain stays within this many dB of its peak.
