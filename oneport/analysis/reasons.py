@@ -499,14 +499,14 @@ def _resolution_sentence(
     listed = ", ".join(f"{format_frequency(a)}-{format_frequency(b)}" for a, b in gain_bands)
     finest = _finest_resolved(context.load_grid, gain_bands)
     rising = (
-        f", rising to about {_plain(finest[0])} near {format_frequency(finest[1])}"
+        f", and up to Q = {_plain(finest[0])} near {format_frequency(finest[1])}"
         if finest[0] > 1.5 * resolution.finest_resolvable_q
         else ""
     )
     return (
-        f"Where the device has gain ({listed}) the load's grid resolves a loaded Q of up to"
-        f" about {_plain(resolution.finest_resolvable_q)} at its coarsest point there (a step of"
-        f" {format_frequency(resolution.largest_step_hz)} near"
+        f"Where the device has gain ({listed}) the load's grid resolves loaded resonances up"
+        f" to Q = {_plain(resolution.finest_resolvable_q)} at its coarsest point there (a step"
+        f" of {format_frequency(resolution.largest_step_hz)} near"
         f" {format_frequency(resolution.at_frequency_hz)}){rising}: a sharper resonance"
         " between its samples would be invisible to any test on these data."
     )
@@ -791,7 +791,7 @@ def _findings(
             Finding(
                 "load-finer-than-device",
                 f"The load has {context.load_points_in_band} points in the analysed band, the"
-                f" device {frequency_hz.size}: the analysis runs on the device's grid, so detail"
+                f" device {frequency_hz.size} points: the analysis runs on the device's grid, so detail"
                 " in the load between device points is not seen by the count (the load's own"
                 " grid is still searched for hidden resonances).",
                 {"load_points": context.load_points_in_band, "device_points": frequency_hz.size},

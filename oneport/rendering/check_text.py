@@ -102,7 +102,7 @@ def input_lines(result: CheckResult) -> list[str]:
     for record in result.inputs:
         low, high = record.frequency_range_hz
         renormalised = (
-            f", renormalised {format_plain(record.file_reference_impedance_ohm)} ->"
+            f", renormalised from {format_resistance(record.file_reference_impedance_ohm)} to"
             f" {format_resistance(record.analysed_reference_impedance_ohm)}"
             if record.file_reference_impedance_ohm != record.analysed_reference_impedance_ohm
             else ""
@@ -280,7 +280,7 @@ def sampling_lines(result: CheckResult) -> list[str]:
         role = roles.get(grid.source, "file")
         lines.append(
             f"{role} grid ({printable(grid.source)}): the largest loaded Q this grid resolves"
-            f" where the device has gain is {format_plain(grid.finest_resolvable_q, 2)} (step"
+            f" where the device has gain: Q = {format_plain(grid.finest_resolvable_q, 2)} (step"
             f" {format_frequency(grid.largest_step_hz)} near"
             f" {format_frequency(grid.at_frequency_hz)})"
         )

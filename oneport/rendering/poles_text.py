@@ -81,18 +81,17 @@ def render_character(character: DeviceCharacter) -> list[str]:
     if character.forms:
         rows += ["", "Nyquist count in three forms (with the load)"]
         rows += format_table(
-            ("form", "function", "N", "P", "N + P"),
+            ("form", "function", "count", "premise", "roots"),
             [
                 [
                     form.form,
                     form.function,
-                    _number(form.encirclements),
-                    _number(form.premise_poles),
-                    _number(form.implied_rhp_roots),
+                    f"N = {_number(form.encirclements)}",
+                    f"P = {_number(form.premise_poles)}",
+                    f"N + P = {_number(form.implied_rhp_roots)}",
                 ]
                 for form in character.forms
             ],
-            right=(2, 3, 4),
         )
         for form in character.forms:
             if form.encirclements is None or form.premise_poles is None:
@@ -164,9 +163,10 @@ def _fit(result: PoleZeroResult) -> list[str]:
         rows.append(f"  variant {name}: RMS error of F {format_plain(error)}")
     count = result.nyquist_encirclements
     if count is not None:
+        zeros = "zero" if result.trusted_rhp_count == 1 else "zeros"
         rows.append(
-            f"  Nyquist count N = {count}; trusted right-half-plane zeros:"
-            f" {result.trusted_rhp_count}"
+            f"  Nyquist count N = {count}; the fit has {result.trusted_rhp_count} trusted"
+            f" right-half-plane {zeros}"
         )
     return rows
 

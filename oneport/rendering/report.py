@@ -253,7 +253,7 @@ def _input_row(record: InputRecord) -> list[str]:
         record.source,
         digest,
         data,
-        str(record.points),
+        f"{record.points} points",
         f"{format_frequency(low)} to {format_frequency(high)}",
         impedance,
     ]

@@ -154,7 +154,7 @@ def _range(key: str, found: Range) -> str:
         assert found.high is not None
         text = (
             f"any value up to {format_element(key, found.high)} (the goal holds down to the"
-            " scan's lowest value, standing in for 0)"
+            f" scan's lowest value, standing in for {format_element(key, 0.0)})"
         )
     elif found.high is None:
         text = (

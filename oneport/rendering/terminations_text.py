@@ -69,7 +69,7 @@ def render(result: Any) -> str:
         lines.append(
             wrap(
                 f"stability circle: centre at ΓT = {format_reflection(circle.center)}, radius"
-                f" {format_plain(circle.radius)} (in |ΓT|); negative resistance {side} it",
+                f" |ΓT - centre| = {format_plain(circle.radius)}; negative resistance {side} it",
                 "  ",
             )
         )

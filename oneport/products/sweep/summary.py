@@ -225,7 +225,7 @@ def _with_reasons(summary: SweepSummary, result: SweepResult) -> SweepSummary:
             )
         else:
             reasons.append(
-                f"{stable} of {done} variants are stable, {unstable} unstable (their count is"
+                f"Of {done} variants {stable} are stable, {unstable} unstable (their count is"
                 f" N ≥ 1) and {undecided} inconclusive (the data cannot decide them; the table"
                 " holds each row's count)."
             )
