@@ -149,7 +149,7 @@ def _run(name: str, *extra: str) -> tuple[int, str, str]:
 
 def text(name: str) -> str:
     """The text report of ``name``."""
-    code, out, err = _run(name)
+    _, out, err = _run(name)
     assert err == "", err
     return out
 
@@ -161,7 +161,7 @@ def exit_code(name: str) -> int:
 
 def data(name: str) -> dict[str, Any]:
     """The JSON object of ``name``."""
-    code, out, err = _run(name, "--json")
+    _, out, err = _run(name, "--json")
     assert err == "", err
     return dict(json.loads(out))
 
@@ -171,7 +171,7 @@ def html(name: str) -> str:
     """The HTML report of a check command (its images left out, they are not text)."""
     folder = Path(tempfile.mkdtemp())
     with _at_root():
-        code, _, err = run_cli(*COMMANDS[name], "--report", str(folder / "r.html"), "-q")
+        _, _, err = run_cli(*COMMANDS[name], "--report", str(folder / "r.html"), "-q")
     assert err == "", err
     import re
 

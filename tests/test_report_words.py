@@ -31,9 +31,7 @@ from typing import Any
 import pytest
 import shipped_reports as shipped
 
-_UNIT = (
-    r"(?:[pnuµmkMG]?Hz|dBm?|k?ohm|°|%|/s|[pnuµmk]?[VAWHFS]|[pnuµm]?s|[mµkn]?m)(?![A-Za-z])"
-)
+_UNIT = r"(?:[pnuµmkMG]?Hz|dBm?|k?ohm|°|%|/s|[pnuµmk]?[VAWHFS]|[pnuµm]?s|[mµkn]?m)(?![A-Za-z])"
 _NUMBER = re.compile(r"(?<![\w.^/∠±])[-+]?\d+(?:\.\d+)?(?:e-?\d+)?(?![\w.])")
 _ALLOWED = [
     # an impedance R + jX ohm, and a range "3.3 to 7.6 dB" whose unit follows its end

@@ -365,7 +365,7 @@ def _count_words(
         steps.append(
             "Do not apply full bias into this load. A real root (latch-up) is set by the loop at"
             " DC and low frequency: keep the bias network's DC resistance below the device's"
-            " negative resistance |R_d| (or add a low-frequency path that does), then check"
+            " negative resistance |Rd| (or add a low-frequency path that does), then check"
             " again."
         )
     if count >= 2:
@@ -791,8 +791,8 @@ def _findings(
             Finding(
                 "load-finer-than-device",
                 f"The load has {context.load_points_in_band} points in the analysed band, the"
-                f" device {frequency_hz.size} points: the analysis runs on the device's grid, so detail"
-                " in the load between device points is not seen by the count (the load's own"
+                f" device {frequency_hz.size} points: the analysis runs on the device's grid, so"
+                " detail in the load between device points is not seen by the count (the load's own"
                 " grid is still searched for hidden resonances).",
                 {"load_points": context.load_points_in_band, "device_points": frequency_hz.size},
             )

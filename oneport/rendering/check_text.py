@@ -23,6 +23,7 @@ from ..analysis.small_gain import BoundResult
 from ..errors import printable
 from ..findings import Finding
 from ..units import (
+    format_count,
     format_decibels,
     format_frequency,
     format_plain,
@@ -102,8 +103,7 @@ def input_lines(result: CheckResult) -> list[str]:
     for record in result.inputs:
         low, high = record.frequency_range_hz
         renormalised = (
-            f", renormalised from {format_resistance(record.file_reference_impedance_ohm)} to"
-            f" {format_resistance(record.analysed_reference_impedance_ohm)}"
+            f", renormalised to {format_resistance(record.analysed_reference_impedance_ohm)}"
             if record.file_reference_impedance_ohm != record.analysed_reference_impedance_ohm
             else ""
         )
@@ -329,9 +329,13 @@ def mode_notes(result: CheckResult) -> list[str]:
             " grows as exp(σt) until the device's nonlinearity limits it."
         ]
     if count:
+        roots = format_count(
+            count, "right-half-plane natural frequency", "right-half-plane natural frequencies"
+        )
         return [
-            f"Not located: no source at hand accounts exactly for the N = {count} right-half-plane"
-            " natural frequencies the count establishes (oneport poles shows the fit)."
+            f"Not located: neither Newton's iteration on 1 - L continued near the crossings nor a"
+            f" trusted pole-zero fit accounts exactly for the {roots} the count establishes"
+            f" (N = {count}); oneport poles shows the fit. The count decides."
         ]
     return []
 
@@ -407,7 +411,7 @@ def _ohm(result: CheckResult) -> str:
 #: A number and the unit after it (or a symbol, "=" and its value) stay on one line.
 _KEEP_TOGETHER = re.compile(
     r"(?<=\d) (?=(?:[GMk]?Hz|dB|dBm|ohm|kohm|°|%|/s|[pnuµm]?[FHVAWs])\b)|(?<=[=≥≤<>]) (?=[-+\d])"
-    r"|(?<=\w) (?=[=≥≤] [-+\d])"
+    r"|(?<=\w) (?=[=≥≤] [-+\d])|(?<=\b[NPZ]) (?=\+ [NPZ]\b)|(?<=\b[NPZ] \+) (?=[NPZ]\b)"
 )
 _GLUE = "\x00"
 

@@ -105,14 +105,14 @@ def _not_counted(form: FormCount) -> str:
     parts = []
     if form.encirclements is None:
         failing = [note for note in form.notes if not note.startswith("Closed ")]
-        why = " ".join(failing) if failing else "its contour could not be closed"
-        parts.append(f"N is not known: {why}")
+        why = " ".join(failing) if failing else "Its contour could not be closed."
+        parts.append(f"N is not known: {why[:1].lower()}{why[1:]}")
     if form.premise_poles is None:
         parts.append(
             "P is not known: the fit cannot confirm whether the device is stable with this"
             " form's termination"
         )
-    return f"? in the {form.form} form ({form.function}): " + "; ".join(parts)
+    return f"A ? in the {form.form} form ({form.function}): " + "; ".join(parts)
 
 
 def _table(modes: tuple[NaturalFrequency, ...]) -> list[str]:

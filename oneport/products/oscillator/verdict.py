@@ -285,8 +285,8 @@ def _point_findings(loop: Loop, point: OperatingPoint) -> list[Finding]:
             Finding(
                 "external-q-not-positive",
                 f"At {where} the load's external Q in the {loop.form} form is"
-                f" Q = {format_plain(point.pulling.external_q)} (its reactive slope is flat or of the"
-                " other sign); no locking range is given.",
+                f" Q = {format_plain(point.pulling.external_q)} (its reactive slope is flat or of"
+                " the other sign); no locking range is given.",
                 context,
             )
         )
