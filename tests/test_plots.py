@@ -223,7 +223,8 @@ def test_compressed_nyquist_axes_carry_the_true_scale(oscillating):
     ax = figure.axes[0]
     ticks = _with_gid(figure, "compressed-tick")
     assert ticks, "tick labels of the true scale"
-    positions = dict(zip((t.get_text() for t in ax.xaxis.get_ticklabels()), ax.get_xticks()))
+    labels = [t.get_text() for t in ax.xaxis.get_ticklabels()]
+    positions = dict(zip(labels, ax.get_xticks(), strict=True))
     # True Re L = -2 sits at the compressed radius log10(1 + 2)/log10(2) = 1.585 on the left.
     assert positions["\N{MINUS SIGN}2"] == pytest.approx(-np.log10(3.0) / np.log10(2.0))
     assert positions["1"] == pytest.approx(1.0) and positions["0.5"] == pytest.approx(

@@ -2,7 +2,8 @@
 
 Rendering only: it lays out what a :class:`~oneport.analysis.result.CheckResult` holds (verdict
 first, inputs, tables, plots, premise, cautions last) and computes nothing. The file needs nothing
-else: the plots are embedded as base64 PNG ``data:`` URIs, the style sheet is inline, there is no
+else: the plots are embedded as base64 SVG ``data:`` URIs (drawn by
+:mod:`oneport.rendering.report_svg`, no matplotlib), the style sheet is inline, there is no
 script, no font and no external address, and a Content-Security-Policy in the page forbids loading
 anything but the embedded images should a browser ever be asked to. Every piece of text is passed
 through :func:`html.escape`, file names and paths from user files included.
@@ -38,8 +39,6 @@ from .check_text import (
 )
 
 if TYPE_CHECKING:
-    from matplotlib.figure import Figure
-
     from ..analysis.result import CheckResult
     from ..reading.records import InputRecord
 
@@ -307,32 +306,35 @@ def _warnings_list(result: CheckResult) -> str:
 
 
 def _figures(result: CheckResult) -> str:
-    from . import check_plots as plots
+    from . import report_svg
 
     pictures = (
         (
-            plots.quick_look_figure(result),
-            "Left: Nyquist plot of L = Γd·ΓL, its radius compressed (r ↦ log10(1 + r)/log10(2));"
-            " the ticks and dotted rings give the true values, and |L| = 1 and the critical"
-            " point +1 stay in place. Clockwise encirclements of +1 count right-half-plane"
-            " natural frequencies. Right: the loop gain against frequency; shaded: bands where"
-            " |L| ≥ 1; dashed: predicted oscillation frequencies.",
+            report_svg.nyquist_svg(result),
+            "Nyquist plot of L = Γd·ΓL, its radius compressed (r ↦ log10(1 + r)/log10(2)); the"
+            " ticks and dotted rings give the true values, and |L| = 1 and the critical point +1"
+            " stay in place. Clockwise encirclements of +1 count right-half-plane natural"
+            " frequencies.",
         ),
         (
-            plots.plot_smith(result),
+            report_svg.loop_gain_svg(result),
+            "Loop gain against frequency; shaded: bands where |L| ≥ 1; dashed: predicted"
+            " oscillation frequencies.",
+        ),
+        (
+            report_svg.smith_svg(result),
             "Smith chart of the load ΓL and the device as 1/Γd, frequencies marked along both:"
             " the loop closes where they meet; the bold circle is |Γ| = 1.",
         ),
     )
-    return "\n".join(_figure(figure, caption) for figure, caption in pictures)
+    return "\n".join(_figure(svg, caption) for svg, caption in pictures)
 
 
-def _figure(figure: Figure, caption: str) -> str:
-    from .figures import figure_bytes
-
-    encoded = base64.b64encode(figure_bytes(figure, "png", dpi=96.0, quick=True)).decode("ascii")
+def _figure(svg: str, caption: str) -> str:
+    """An SVG picture as an image (a data: address, so it can run nothing and load nothing)."""
+    encoded = base64.b64encode(svg.encode("utf-8")).decode("ascii")
     return (
-        f'<figure><img alt="{_escape(caption)}" src="data:image/png;base64,{encoded}">'
+        f'<figure><img alt="{_escape(caption)}" src="data:image/svg+xml;base64,{encoded}">'
         f"<figcaption>{_escape(caption)}</figcaption></figure>"
     )
 
