@@ -13,6 +13,7 @@ import numpy as np
 
 from ..analysis.amplifier import AmplifierResult
 from ..errors import InputError
+from ..units import format_plain, format_resistance
 
 
 def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
@@ -29,9 +30,9 @@ def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
     matplotlib Axes
     """
     if ax is None:
-        import matplotlib.pyplot as plt
+        from .figures import new_figure
 
-        _, ax = plt.subplots()
+        ax = new_figure((8.0, 5.4)).add_subplot()
     f_ghz = result.frequency_hz / 1e9
     z0 = result.reference_impedance_ohm
     ax.plot(f_ghz, result.gain_db, label="gain |Γd|²")
@@ -45,20 +46,28 @@ def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
         ax.fill_between(f_ghz, lower, top, alpha=0.2, label="gain ripple bounds")
     if result.gain_with_load_db is not None:
         ax.plot(f_ghz, result.gain_with_load_db, label="gain with this port")
-    ax.axhline(result.gain_threshold_db, color="grey", linewidth=0.8, label="gain threshold")
+    ax.axhline(
+        result.gain_threshold_db,
+        color="grey",
+        linewidth=0.8,
+        label=f"gain threshold {format_plain(result.gain_threshold_db)} dB",
+    )
     ax.set_xlabel("frequency (GHz)")
-    ax.set_ylabel(f"dB (Z0 = {z0:g} ohm)")
-    ax.set_title(f"Reflection amplifier: {result.verdict}")
-    ax.legend(loc="best", fontsize="small")
+    ax.set_ylabel(f"dB (Z0 = {format_resistance(z0)})")
+    ax.set_title(f"Reflection amplifier: {result.verdict.replace('-', ' ')}")
+    ax.grid(True, color="#cfd3d6", linewidth=0.6)
+    ax.legend(
+        loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize="small", frameon=False
+    ).set_gid("legend")
     return ax
 
 
 def save_amplifier_plot(result: AmplifierResult, path: str | Path) -> None:
     """Draw :func:`plot_amplifier` into a new figure and save it (format from the suffix)."""
-    from matplotlib.figure import Figure
+    from .figures import new_figure
 
-    figure = Figure(figsize=(8, 5))
-    plot_amplifier(result, figure.subplots())
+    figure = new_figure((9.0, 5.0))
+    plot_amplifier(result, figure.add_subplot())
     try:
         figure.savefig(path)
     except (OSError, ValueError) as error:
