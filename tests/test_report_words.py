@@ -53,7 +53,9 @@ _ALLOWED = [
     ),
     re.compile(r"\b(?:row|port|ports|order|line|of|N|P|Z|variant|seed|number)\s+\d+\b"),
     re.compile(r"\b\d+\.\s"),  # a numbered list item
-    re.compile(r"Touchstone \d\.[x\d]|oneport \d+\.\d+\.\d+|\d{4}-\d\d-\d\dT[\d:+-]+"),
+    re.compile(
+        r"Touchstone \d\.[x\d]|oneport \d+\.\d+\.\d+|\d{4}-\d\d-\d\d[T ][\d:]+[+-]\d\d:\d\d"
+    ),
     re.compile(r"\d+:\d|\d+ x\b|2π|f\^-?\d+(?:\.\d+)?"),
     # the critical point and the unit circle
     re.compile(r"[-+]?1 - [LΓ]|\+1\b|\b[<>≥≤] 1\b|\(0, 1\)|between 0 and \+1|\b0 Hz|SHA-256"),

@@ -106,7 +106,7 @@ def run_record(argv: Sequence[str] | None = None) -> RunRecord:
 
     words = list(sys.argv[1:] if argv is None else argv)
     moment = datetime.datetime.now().astimezone().replace(microsecond=0)
-    return RunRecord(shlex.join(["oneport", *words]), moment.isoformat(), __version__)
+    return RunRecord(shlex.join(["oneport", *words]), moment.isoformat(sep=" "), __version__)
 
 
 def write_report(
