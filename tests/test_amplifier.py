@@ -10,7 +10,7 @@ import pytest
 
 from oneport.analysis.amplifier import analyse_amplifier
 from oneport.errors import InputError
-from oneport.products.amplifier import screen_amplifier
+from oneport.products.amplifier import amplifier
 from oneport.rendering.amplifier_plot import plot_amplifier
 
 from helpers import Z0, one_port, run_cli
@@ -127,7 +127,7 @@ def test_passive_device_is_stable_with_any_passive_port():
 def test_nyquist_with_the_load_decides():
     device = one_port(F_FINE, parallel_device(F_FINE), "device")
     port = circulator_port(F_FINE)
-    result = screen_amplifier(device, load=one_port(F_FINE, port, "circulator"))
+    result = amplifier(device, load=one_port(F_FINE, port, "circulator"))
     assert result.verdict == "stable" and result.basis == "nyquist"
     assert result.nyquist is not None and result.nyquist.encirclements == 0
     # Multiple reflections between device and port: Gd/(1 - Gd GL) (common practice).
@@ -136,7 +136,7 @@ def test_nyquist_with_the_load_decides():
     assert result.gain_with_load_db == pytest.approx(expected)
     # 100 ohm: Yd + YL = -1/75 + 1/100 + sC = 0 at s > 0 (by hand): a latch-up.
     resistive = one_port(F_FINE, np.full(F_FINE.size, (100 - Z0) / (100 + Z0) + 0j), "100 ohm")
-    result = screen_amplifier(device, load=resistive)
+    result = amplifier(device, load=resistive)
     assert result.verdict == "unstable" and result.nyquist.encirclements == 1
 
 
@@ -156,7 +156,7 @@ def test_json_form():
 def test_bad_input():
     device = one_port(F_FINE, parallel_device(F_FINE), "device")
     with pytest.raises(InputError, match="not both"):
-        screen_amplifier(device, load=device, port_return_loss_db=20.0)
+        amplifier(device, load=device, port_return_loss_db=20.0)
     with pytest.raises(InputError, match="0 or more"):
         analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=-3.0)
 
@@ -165,7 +165,8 @@ def test_plot_draws_gain_and_requirement():
     from matplotlib.figure import Figure
 
     result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=20.0)
-    axes = plot_amplifier(result, Figure().subplots())
+    axes = Figure().subplots()
+    assert plot_amplifier(result, axes) is axes.figure
     labels = [line.get_label() for line in axes.get_lines()]
     assert "gain |Γd|²" in labels and "return loss needed (small gain)" in labels
     gain_line = axes.get_lines()[0]

@@ -11,7 +11,7 @@ holds is :func:`oneport.analysis.small_gain.small_gain_bound`'s answer, the one 
 ``inconclusive``).
 
 Computation only: arrays in, a frozen :class:`AmplifierResult` out. The product that reads files
-is :func:`oneport.products.amplifier.screen_amplifier`; the pictures are in
+is :func:`oneport.products.amplifier.amplifier`; the pictures are in
 :mod:`oneport.rendering.amplifier_plot`.
 """
 
@@ -23,6 +23,7 @@ from typing import Any
 import numpy as np
 
 from ..cautions import CAUTIONS
+from ..display import Displayed
 from ..errors import InputError
 from ..findings import Finding
 from ..reading.records import InputRecord
@@ -61,8 +62,8 @@ class GainBand:
         }
 
 
-@dataclass(frozen=True)
-class AmplifierResult:
+@dataclass(frozen=True, repr=False)
+class AmplifierResult(Displayed):
     """Everything the screening found, frozen.
 
     Attributes
@@ -133,8 +134,17 @@ class AmplifierResult:
             return None
         return self.bound.guaranteed
 
+    def plot(self, ax: Any = None) -> Any:
+        """Gain and the return loss stability needs against frequency (with the port's).
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.amplifier_plot import plot_amplifier
+
+        return plot_amplifier(self, ax)
+
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
-        """The ``oneport.amplifier/1`` JSON object (docs/json-amplifier.md)."""
+        """The ``oneport.amplifier/2`` JSON object (docs/json-amplifier.md)."""
         z0 = self.reference_impedance_ohm
         data: dict[str, Any] = {
             "schema": AMPLIFIER_SCHEMA,

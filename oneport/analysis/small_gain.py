@@ -24,6 +24,7 @@ from typing import Any
 import numpy as np
 
 from ..cautions import CAUTIONS
+from ..display import Displayed
 from ..errors import InputError
 from ..findings import Finding
 from ..reading.alignment import MINIMUM_OVERLAP_POINTS
@@ -248,8 +249,8 @@ def bound_premise(z0: float, frequency_hz: np.ndarray) -> str:
     )
 
 
-@dataclass(frozen=True)
-class BoundResult:
+@dataclass(frozen=True, repr=False)
+class BoundResult(Displayed):
     """The answer for a class of loads (every passive load with return loss ≥ the stated one)."""
 
     verdict: str
@@ -278,6 +279,15 @@ class BoundResult:
     def frequency_range_hz(self) -> tuple[float, float]:
         """The analysed band, Hz."""
         return float(self.frequency_hz[0]), float(self.frequency_hz[-1])
+
+    def plot(self, ax: Any = None) -> Any:
+        """The return loss a load needs against frequency, beside the stated one.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.check_plots import plot_bound
+
+        return plot_bound(self, ax)
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
         """The ``oneport.check`` object in its ``return-loss-bound`` mode."""

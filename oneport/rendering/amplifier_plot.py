@@ -26,12 +26,13 @@ def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
 
     Returns
     -------
-    matplotlib Axes
+    matplotlib Figure
+        The figure drawn into (a new headless one when ``ax`` is None).
     """
     if ax is None:
-        import matplotlib.pyplot as plt
+        from .figures import new_figure
 
-        _, ax = plt.subplots()
+        ax = new_figure((8.0, 5.0)).add_subplot()
     f_ghz = result.frequency_hz / 1e9
     z0 = result.reference_impedance_ohm
     ax.plot(f_ghz, result.gain_db, label="gain |Γd|²")
@@ -50,15 +51,12 @@ def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
     ax.set_ylabel(f"dB (Z0 = {z0:g} ohm)")
     ax.set_title(f"Reflection amplifier: {result.verdict}")
     ax.legend(loc="best", fontsize="small")
-    return ax
+    return ax.figure
 
 
 def save_amplifier_plot(result: AmplifierResult, path: str | Path) -> None:
-    """Draw :func:`plot_amplifier` into a new figure and save it (format from the suffix)."""
-    from matplotlib.figure import Figure
-
-    figure = Figure(figsize=(8, 5))
-    plot_amplifier(result, figure.subplots())
+    """Draw :func:`plot_amplifier` on a new figure and save it (format from the suffix)."""
+    figure = plot_amplifier(result)
     try:
         figure.savefig(path)
     except (OSError, ValueError) as error:

@@ -78,8 +78,23 @@ def render(result: CheckResult) -> str:
     parts += ["", *_diagnostics(result)]
     if result.startup_estimates:
         parts += ["", *_startup(result)]
-    parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
+    parts += closing_sections(
+        result.warnings,
+        result.next_steps,
+        result.premise,
+        result.cautions,
+        before_premise=_second_opinion(result),
+    )
     return "\n".join(parts) + "\n"
+
+
+def _second_opinion(result: CheckResult) -> list[str]:
+    """The fit's section of ``check --poles``, when the result carries it."""
+    if result.second_opinion is None:
+        return []
+    from .poles_text import second_opinion_lines
+
+    return second_opinion_lines(result.second_opinion)
 
 
 def _bands(result: CheckResult) -> list[str]:
@@ -209,20 +224,34 @@ def _startup(result: CheckResult) -> list[str]:
     return rows
 
 
-def render_bound(result: BoundResult) -> str:
-    """The text report of a worst-case-load (return-loss bound) check."""
+def render_result(result: CheckResult | BoundResult) -> str:
+    """The text report of what ``check`` returned: a pair's check, or a load class's bound."""
+    return render_bound(result) if isinstance(result, BoundResult) else render(result)
+
+
+def summary_line(result: CheckResult | BoundResult) -> str:
+    """The verdict line of what ``check`` returned (``--quiet``)."""
+    return bound_line(result) if isinstance(result, BoundResult) else verdict_line(result)
+
+
+def bound_line(result: BoundResult) -> str:
+    """One line: the load class's verdict, its return loss, Z0 and the band."""
     low, high = result.frequency_range_hz
     headline = {
         "guaranteed": "GUARANTEED STABLE (small-signal) for the load class",
         "not-guaranteed": "NOT GUARANTEED for the load class",
         "inconclusive": "INCONCLUSIVE: the data cannot decide",
     }[result.verdict]
-    parts = [
+    return (
         f"{headline}: return loss >= {result.load_return_loss_db:g} dB in"
         f" {result.reference_impedance_ohm:g} ohm;"
-        f" {format_frequency(low)}-{format_frequency(high)}",
-        "",
-    ]
+        f" {format_frequency(low)}-{format_frequency(high)}"
+    )
+
+
+def render_bound(result: BoundResult) -> str:
+    """The text report of a worst-case-load (return-loss bound) check."""
+    parts = [bound_line(result), ""]
     parts += [wrap(reason, "  ") for reason in result.reasons]
     parts += [
         "",
@@ -248,13 +277,18 @@ def closing_sections(
     premise: str | None = None,
     cautions: Sequence[str] = (),
     limits: Sequence[str] = (),
+    *,
+    before_premise: Sequence[str] = (),
 ) -> list[str]:
-    """The sections every report ends with: warnings, next steps, premise, limits, cautions."""
+    """The sections every report ends with: warnings, next steps, premise, limits, cautions
+    (``before_premise``: a product's own section just before the premise)."""
     parts: list[str] = []
     if warnings:
         parts += ["", "Warnings", *[wrap(f"[{w.code}] {w.message}", "  ") for w in warnings]]
     if next_steps:
         parts += ["", "What to do next", *[wrap(step, "  - ") for step in next_steps]]
+    if before_premise:
+        parts += ["", *before_premise]
     if premise:
         parts += ["", "Premise", wrap(premise, "  ")]
     if limits:

@@ -7,7 +7,6 @@ display; matplotlib is imported inside the functions only.
 from __future__ import annotations
 
 import io
-import sys
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -21,10 +20,7 @@ _SAVE_FORMATS = {".png": "png", ".svg": "svg"}
 
 
 def new_figure(size: tuple[float, float]) -> Figure:
-    import matplotlib
-
-    if "matplotlib.pyplot" not in sys.modules:
-        matplotlib.use("Agg")
+    """A new headless figure: drawn and saved without a backend, never touching ``pyplot``."""
     from matplotlib.figure import Figure
 
     return Figure(figsize=size, layout="constrained")

@@ -10,6 +10,7 @@ import math
 from dataclasses import dataclass, field
 from typing import Any
 
+from ...display import Displayed
 from ...findings import Finding
 from .goal import Requirement
 from .placements import Position
@@ -243,8 +244,8 @@ class Unsolved:
         }
 
 
-@dataclass(frozen=True)
-class StabiliseResult:
+@dataclass(frozen=True, repr=False)
+class StabiliseResult(Displayed):
     """Stabilising advice for a device and its load, frozen.
 
     Attributes
@@ -314,13 +315,6 @@ class StabiliseResult:
         from ...rendering.stabilise_plots import plot_stabilise
 
         return plot_stabilise(self, ax=ax, suggestion=suggestion)
-
-    def _repr_html_(self) -> str:
-        from html import escape
-
-        from ...rendering.stabilise_text import render
-
-        return f"<pre>{escape(render(self))}</pre>"
 
 
 def _range(value: Range) -> dict[str, Any]:
