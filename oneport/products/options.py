@@ -202,8 +202,8 @@ def parameters(values: Any, option: str = "--param") -> dict[str, float]:
 
     Examples
     --------
-    >>> parameters(["RL=75", "C=2.2p"])
-    {'RL': 75.0, 'C': 2.2e-12}
+    >>> parameters(["RL=75", "C=1p"])
+    {'RL': 75.0, 'C': 1e-12}
     >>> parameters({"RL": 75})
     {'RL': 75.0}
     """

@@ -96,6 +96,13 @@ class WatchResult(Displayed):
     outcomes: tuple[WatchOutcome, ...]
 
     @property
+    def cautions(self) -> tuple[str, ...]:
+        """The safety cautions every check ends with."""
+        from ..cautions import CAUTIONS
+
+        return CAUTIONS
+
+    @property
     def results(self) -> tuple[CheckResult, ...]:
         """The checks made, in order."""
         return tuple(o.result for o in self.outcomes if o.result is not None)

@@ -31,6 +31,9 @@ def html_summary(result: Any) -> str:
     view = _view(result)
     text = view.report(result)
     heading, opening, sections = _sections(text)
+    cautions = tuple(getattr(result, "cautions", ()))
+    if cautions and not any(title == "Cautions" for title, _ in sections):
+        sections.append(("Cautions", "\n".join(f"  ! {caution}" for caution in cautions)))
     parts = [f'<div class="oneport-result oneport-{_css(type(result).__name__)}">']
     parts.append(f"<p><strong>{html.escape(heading)}</strong></p>")
     if opening:
