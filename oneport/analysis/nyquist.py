@@ -94,11 +94,16 @@ class Band:
 
 @dataclass(frozen=True)
 class Margins:
-    """Distances from the critical point; each frequency is None where the margin has none."""
+    """Distances from the critical point; each frequency is None where the margin has none.
 
-    gain_margin_db: float | None
+    ``gain_margin`` is the factor |L| may still grow by where L crosses the real axis in (0, 1)
+    (1/L there; the smallest), ``phase_margin_rad`` the smallest |arg L| where |L| passes 1,
+    ``modulus_margin`` the smallest |1 − L|. dB and degrees are for reports only.
+    """
+
+    gain_margin: float | None
     gain_margin_frequency_hz: float | None
-    phase_margin_deg: float | None
+    phase_margin_rad: float | None
     phase_margin_frequency_hz: float | None
     modulus_margin: float
     modulus_margin_frequency_hz: float
@@ -521,7 +526,7 @@ def find_margins(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> Margins:
         t = a / (a - b)
         real = float((loop_gain[index] + t * (loop_gain[index + 1] - loop_gain[index])).real)
         if 0.0 < real < 1.0:
-            margin = -20.0 * np.log10(real)
+            margin = 1.0 / real
             if gain_margin is None or margin < gain_margin:
                 gain_margin = float(margin)
                 gain_frequency = float(
@@ -534,7 +539,7 @@ def find_margins(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> Margins:
         a, b = np.log10(magnitude[index]), np.log10(magnitude[index + 1])
         t = a / (a - b)
         value = loop_gain[index] + t * (loop_gain[index + 1] - loop_gain[index])
-        margin = float(np.degrees(abs(np.angle(value))))
+        margin = float(abs(np.angle(value)))
         if phase_margin is None or margin < phase_margin:
             phase_margin = margin
             phase_frequency = float(
@@ -542,9 +547,9 @@ def find_margins(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> Margins:
             )
 
     return Margins(
-        gain_margin_db=gain_margin,
+        gain_margin=gain_margin,
         gain_margin_frequency_hz=gain_frequency,
-        phase_margin_deg=phase_margin,
+        phase_margin_rad=phase_margin,
         phase_margin_frequency_hz=phase_frequency,
         modulus_margin=float(modulus[closest]),
         modulus_margin_frequency_hz=float(frequency_hz[closest]),

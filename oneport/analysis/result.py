@@ -217,6 +217,16 @@ def _db(magnitude: float) -> float:
     return float(20.0 * np.log10(magnitude))
 
 
+def _optional_db(factor: float | None) -> float | None:
+    """A linear margin factor in dB for a ``_db`` key (None stays None)."""
+    return None if factor is None else _db(factor)
+
+
+def _optional_deg(angle_rad: float | None) -> float | None:
+    """An angle in degrees for a ``_deg`` key (None stays None)."""
+    return None if angle_rad is None else float(np.degrees(angle_rad))
+
+
 def _crossing(crossing: Crossing, z0: float) -> dict[str, Any]:
     return {
         "frequency_hz": crossing.frequency_hz,
@@ -244,9 +254,9 @@ def _band(band: Band, z0: float) -> dict[str, Any]:
 def _margins(margins: Margins, z0: float) -> dict[str, Any]:
     return {
         "reference_impedance_ohm": z0,
-        "gain_margin_db": margins.gain_margin_db,
+        "gain_margin_db": _optional_db(margins.gain_margin),
         "gain_margin_frequency_hz": margins.gain_margin_frequency_hz,
-        "phase_margin_deg": margins.phase_margin_deg,
+        "phase_margin_deg": _optional_deg(margins.phase_margin_rad),
         "phase_margin_frequency_hz": margins.phase_margin_frequency_hz,
         "min_distance_to_critical_point": margins.modulus_margin,
         "min_distance_frequency_hz": margins.modulus_margin_frequency_hz,
@@ -259,7 +269,7 @@ def _startup(estimate: StartupEstimate, z0: float) -> dict[str, Any]:
         "crossing_frequency_hz": estimate.crossing_frequency_hz,
         "estimated_frequency_hz": estimate.estimated_frequency_hz,
         "sigma_per_s": estimate.sigma_per_s,
-        "growing": estimate.growing,
+        "growing": estimate.grows,
         "total_real_part": estimate.total_real_part,
         "negative_to_load_resistance_ratio": estimate.resistance_ratio,
         "external_q": estimate.external_q,

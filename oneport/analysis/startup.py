@@ -38,7 +38,7 @@ class StartupEstimate:
     crossing_frequency_hz: float
     estimated_frequency_hz: float
     sigma_per_s: float
-    growing: bool
+    grows: bool
     total_real_part: float
     resistance_ratio: float | None
     external_q: float | None
@@ -125,7 +125,7 @@ def _estimates_for_form(
                 crossing_frequency_hz=float(omega0 / (2 * np.pi)),
                 estimated_frequency_hz=float((omega0 + delta_omega) / (2 * np.pi)),
                 sigma_per_s=float(sigma),
-                growing=bool(sigma > 0),
+                grows=bool(sigma > 0),
                 total_real_part=real_total,
                 resistance_ratio=-device_real / load_real if load_real > 0 else None,
                 external_q=omega0 * load_slope / (2 * load_real) if load_real > 0 else None,

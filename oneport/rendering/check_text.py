@@ -134,16 +134,16 @@ def _margins(result: CheckResult) -> list[str]:
         f"  closest approach to +1   |1 - L| = {margins.modulus_margin:.3g}"
         f" at {format_frequency(margins.modulus_margin_frequency_hz)}"
     )
-    if margins.gain_margin_db is not None and margins.gain_margin_frequency_hz is not None:
+    if margins.gain_margin is not None and margins.gain_margin_frequency_hz is not None:
         rows.append(
-            f"  gain margin              {margins.gain_margin_db:.2f} dB"
+            f"  gain margin              {to_decibels(margins.gain_margin):.2f} dB"
             f" at {format_frequency(margins.gain_margin_frequency_hz)}"
         )
     else:
         rows.append("  gain margin              none (L does not cross (0, 1) on the real axis)")
-    if margins.phase_margin_deg is not None and margins.phase_margin_frequency_hz is not None:
+    if margins.phase_margin_rad is not None and margins.phase_margin_frequency_hz is not None:
         rows.append(
-            f"  phase margin             {margins.phase_margin_deg:.1f} deg"
+            f"  phase margin             {math.degrees(margins.phase_margin_rad):.1f} deg"
             f" at {format_frequency(margins.phase_margin_frequency_hz)}"
         )
     else:
@@ -204,7 +204,7 @@ def _startup(result: CheckResult) -> list[str]:
             f"  {estimate.form:<11}{format_frequency(estimate.crossing_frequency_hz):>12}"
             f"  {format_frequency(estimate.estimated_frequency_hz):>12}"
             f"  {estimate.sigma_per_s:>11.3g}  {ratio:>7}  {q:>7}"
-            + ("  grows" if estimate.growing else "")
+            + ("  grows" if estimate.grows else "")
         )
     rows.append(
         wrap(
@@ -213,7 +213,7 @@ def _startup(result: CheckResult) -> list[str]:
             "  ",
         )
     )
-    if any(e.growing for e in result.startup_estimates):
+    if any(e.grows for e in result.startup_estimates):
         rows.append(
             wrap(
                 "where a 'grows' disagrees with the count, the count decides: one Newton step"

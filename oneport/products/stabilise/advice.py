@@ -16,7 +16,7 @@ import numpy as np
 
 from ...cautions import CAUTIONS, STABILISER_CAUTIONS
 from ...errors import InputError
-from ...units import format_frequency, parse_quantity
+from ...units import format_frequency, parse_quantity, to_decibels
 from ..options import pair_arguments, port_setup
 from . import adapter, goal, placements, search, verify
 from .families import FAMILIES
@@ -165,7 +165,7 @@ def stabilise(
         met = goal.margin_met(
             requirement,
             np.array([margins.min_distance]),
-            np.array([np.inf if margins.gain_margin_db is None else margins.gain_margin_db]),
+            np.array([np.inf if margins.gain_margin is None else margins.gain_margin]),
         )
         if bool(met[0]):
             return replace(
@@ -362,7 +362,7 @@ def _require_wanted_mode(original: Any, keep_hz: float) -> None:
 def _rank(suggestion: Suggestion) -> tuple[Any, ...]:
     cost = suggestion.cost
     if isinstance(cost, GainCost):
-        value = cost.largest_loss_db
+        value = cost.largest_loss
     elif isinstance(cost, WantedMode):
         crossing = cost.crossing_frequency_hz
         value = abs(crossing - cost.keep_hz) / cost.keep_hz if crossing else np.inf
@@ -379,8 +379,8 @@ def _margin_words(requirement: Requirement) -> str:
     parts = []
     if requirement.min_distance is not None:
         parts.append(f"|1 - L| >= {requirement.min_distance:g}")
-    if requirement.gain_margin_db is not None:
-        parts.append(f"gain margin >= {requirement.gain_margin_db:g} dB")
+    if requirement.gain_margin is not None:
+        parts.append(f"gain margin >= {to_decibels(requirement.gain_margin):g} dB")
     return " and ".join(parts)
 
 
