@@ -243,7 +243,7 @@ def bound_line(result: BoundResult) -> str:
         "inconclusive": "INCONCLUSIVE: the data cannot decide",
     }[result.verdict]
     return (
-        f"{headline}: return loss >= {result.load_return_loss_db:g} dB in"
+        f"{headline}: return loss >= {0.0 - to_decibels(result.reflection_bound):g} dB in"
         f" {result.reference_impedance_ohm:g} ohm;"
         f" {format_frequency(low)}-{format_frequency(high)}"
     )
@@ -256,7 +256,7 @@ def render_bound(result: BoundResult) -> str:
     parts += [
         "",
         f"Required load return loss (Z0 = {result.reference_impedance_ohm:g} ohm)",
-        f"  worst: {result.worst_required_return_loss_db:.2f} dB at"
+        f"  worst: {0.0 - to_decibels(result.smallest_allowed_reflection):.2f} dB at"
         f" {format_frequency(result.worst_frequency_hz)}",
     ]
     if result.failing_bands:

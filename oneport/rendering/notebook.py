@@ -9,6 +9,7 @@ numbers are fields of the result, formatted.
 from __future__ import annotations
 
 import html
+import math
 from collections.abc import Callable
 from typing import Any
 
@@ -169,10 +170,14 @@ def _bound() -> _View:
     def numbers(result: Any) -> list[tuple[str, str]]:
         return [
             ("verdict", result.verdict),
-            ("load class", f"return loss >= {result.load_return_loss_db:g} dB"),
+            (
+                "load class",
+                f"|gamma_load| <= {result.reflection_bound:.4g}"
+                f" (return loss >= {0.0 - to_decibels(result.reflection_bound):g} dB)",
+            ),
             (
                 "return loss the device needs",
-                f"{result.worst_required_return_loss_db:.2f} dB at"
+                f"{0.0 - to_decibels(result.smallest_allowed_reflection):.2f} dB at"
                 f" {format_frequency(result.worst_frequency_hz)}",
             ),
             ("analysed band", _band(*result.frequency_range_hz)),
@@ -210,8 +215,9 @@ def _amplifier() -> _View:
         return [
             ("verdict", f"{result.verdict} ({result.basis})"),
             (
-                "peak gain",
-                f"{result.peak_gain_db:.2f} dB at {format_frequency(result.peak_frequency_hz)}",
+                "peak gain |gamma_device|^2",
+                f"{result.peak_gain:.4g} ({10 * math.log10(result.peak_gain):.2f} dB) at"
+                f" {format_frequency(result.peak_frequency_hz)}",
             ),
             (
                 "-3 dB bandwidth",
@@ -220,7 +226,7 @@ def _amplifier() -> _View:
             ),
             (
                 "port return loss needed",
-                f"{result.worst_required_return_loss_db:.2f} dB at"
+                f"{0.0 - to_decibels(result.smallest_allowed_reflection):.2f} dB at"
                 f" {format_frequency(result.worst_frequency_hz)}",
             ),
             ("reference impedance Z0", _ohm(result.reference_impedance_ohm)),

@@ -188,9 +188,7 @@ def wanted_mode(result: Any, requirement: Requirement, starts: bool) -> WantedMo
             best = min(near, key=lambda m: abs(m.frequency_hz - keep))
             natural, growth = float(best.frequency_hz), float(best.sigma_per_s)
     ratio = form = None
-    estimates = [
-        e for e in result.startup_estimates if e.resistance_ratio is not None and e.grows
-    ]
+    estimates = [e for e in result.startup_estimates if e.resistance_ratio is not None and e.grows]
     if estimates:
         nearest = min(estimates, key=lambda e: abs(e.crossing_frequency_hz - keep))
         if abs(nearest.crossing_frequency_hz - keep) <= 2 * KEEP_WINDOW * keep:
