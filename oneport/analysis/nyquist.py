@@ -331,7 +331,29 @@ _HALF_WINDOW = 2
 def _smoothed(values: np.ndarray, index: int, half_width: int = _HALF_WINDOW) -> np.ndarray:
     """Median of real and imaginary parts over a few samples around ``index`` (last axis)."""
     window = values[..., max(0, index - half_width) : index + half_width + 1]
-    return np.median(window.real, axis=-1) + 1j * np.median(window.imag, axis=-1)
+    return median(window.real) + 1j * median(window.imag)
+
+
+def median(values: np.ndarray) -> Any:
+    """:func:`numpy.median` along the last axis (NaN where a value is NaN), without the import
+    of ``numpy.ma`` that numpy's own makes for its NaN check (a tenth of a quick command).
+
+    Examples
+    --------
+    >>> median(np.array([[3.0, 1.0, 2.0, 10.0], [1.0, np.nan, 0.0, 2.0]]))
+    array([2.5, nan])
+    """
+    values = np.asarray(values)
+    count = values.shape[-1]
+    if count == 0:
+        return np.full(values.shape[:-1], np.nan)[()]
+    half = count // 2
+    if count % 2:
+        middle = np.partition(values, half, axis=-1)[..., half]
+    else:
+        part = np.partition(values, (half - 1, half), axis=-1)
+        middle = (part[..., half - 1] + part[..., half]) / 2.0
+    return np.where(np.isnan(values).any(axis=-1), np.nan, middle)[()]
 
 
 def motion_per_octave(frequency_hz: np.ndarray, values: np.ndarray, side: str) -> np.ndarray:
@@ -577,7 +599,7 @@ def estimate_noise(loop_gain: np.ndarray, orders: tuple[int, ...] = (2,)) -> Any
         # σ_c is the per-component deviation times sqrt(C(2k, k)). Report the complex (total)
         # deviation of L.
         spread = np.sqrt(math.comb(2 * order, order))
-        per_component = np.median(np.abs(difference), axis=-1) / np.sqrt(np.log(4.0)) / spread
+        per_component = median(np.abs(difference)) / np.sqrt(np.log(4.0)) / spread
         estimates.append(per_component * np.sqrt(2.0))
     if not estimates:
         return 0.0 if loop_gain.ndim == 1 else np.zeros(loop_gain.shape[:-1])

@@ -17,6 +17,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .nyquist import median
+
 #: Samples each side of a crossing used for the local slopes.
 SLOPE_HALF_WIDTH = 3
 #: Crossings of one form closer than this many samples are scatter around zero, not modes.
@@ -84,7 +86,7 @@ def _without_chatter(
 ) -> list[StartupEstimate]:
     """Drop crossings of one form that follow another within ``CHATTER_SAMPLES`` samples:
     measurement scatter dithering X_T (or B_T) about zero, not separate resonances."""
-    window = CHATTER_SAMPLES * float(np.median(np.diff(frequency_hz)))
+    window = CHATTER_SAMPLES * float(median(np.diff(frequency_hz)))
     kept: list[StartupEstimate] = []
     last: dict[str, float] = {}
     for estimate in estimates:

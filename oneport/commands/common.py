@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import argparse
-import json
 from typing import Any, TextIO
 
 
@@ -31,6 +30,8 @@ def add_output_options(
 
 def write_json(data: dict[str, Any], out: TextIO) -> None:
     """One JSON object on ``out``."""
+    import json
+
     json.dump(data, out, indent=2, allow_nan=False)
     out.write("\n")
 

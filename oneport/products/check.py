@@ -9,15 +9,17 @@ from __future__ import annotations
 
 from dataclasses import replace
 from pathlib import Path
-from typing import Any, overload
+from typing import TYPE_CHECKING, Any, overload
 
 from ..analysis.reasons import describe
 from ..analysis.result import CheckResult
-from ..analysis.small_gain import BoundResult, check_return_loss
 from ..errors import InputError
 from ..reading.preparation import PortSetup, PreparedPort
 from ..reading.touchstone import OnePort
 from .pair import PreparedPair, prepare_device, prepare_pair
+
+if TYPE_CHECKING:
+    from ..analysis.small_gain import BoundResult
 
 OneportSource = str | Path | OnePort | PreparedPort | Any
 
@@ -268,6 +270,8 @@ def check_load_class(
     """Is ``device`` stable into *every* passive load with at least ``load_return_loss_db`` of
     return loss? The one small-gain rule (:mod:`oneport.analysis.small_gain`), on the device as
     the one preparation reads it; ``amplifier --port-return-loss`` asks the same."""
+    from ..analysis.small_gain import check_return_loss
+
     prepared = prepare_device(
         device, measurement_impedance_ohm=measurement_impedance_ohm, device_setup=device_setup
     )

@@ -111,10 +111,10 @@ def port_setup(
     ``differential_ports`` is the command's text (``"1,2"``, ``"1,3:2,4"``) or pairs of port
     numbers; the other arguments are read as the ``--{role}-…`` options are.
     """
-    from ..reading.planes import parse_port_pairs
-
     pairs: tuple[tuple[int, int], ...] = ()
     if isinstance(differential_ports, str):
+        from ..reading.planes import parse_port_pairs
+
         pairs = tuple(parse_port_pairs(differential_ports))
     elif differential_ports is not None:
         pairs = _pairs(differential_ports)

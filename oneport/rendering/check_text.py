@@ -9,12 +9,15 @@ from __future__ import annotations
 import math
 import textwrap
 from collections.abc import Sequence
+from typing import TYPE_CHECKING
 
 from ..analysis.result import CheckResult
-from ..analysis.small_gain import BoundResult
 from ..errors import printable
 from ..findings import Finding
 from ..units import format_frequency, to_decibels
+
+if TYPE_CHECKING:
+    from ..analysis.small_gain import BoundResult
 
 _HEADLINE = {
     "stable": "STABLE (small-signal)",
@@ -226,12 +229,12 @@ def _startup(result: CheckResult) -> list[str]:
 
 def render_result(result: CheckResult | BoundResult) -> str:
     """The text report of what ``check`` returned: a pair's check, or a load class's bound."""
-    return render_bound(result) if isinstance(result, BoundResult) else render(result)
+    return render(result) if isinstance(result, CheckResult) else render_bound(result)
 
 
 def summary_line(result: CheckResult | BoundResult) -> str:
     """The verdict line of what ``check`` returned (``--quiet``)."""
-    return bound_line(result) if isinstance(result, BoundResult) else verdict_line(result)
+    return verdict_line(result) if isinstance(result, CheckResult) else bound_line(result)
 
 
 def bound_line(result: BoundResult) -> str:
