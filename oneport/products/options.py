@@ -39,7 +39,9 @@ def positive_resistance(value: Any, option: str) -> float | None:
     """A reference or measurement impedance, Ω: positive, or None when not given."""
     resistance = optional_quantity(value, "resistance", option)
     if resistance is not None and not resistance > 0:
-        raise InputError(f"{option} {value!r}: a positive number of ohms is needed, e.g. 50ohm")
+        raise InputError(
+            f"{option} {resistance:g} ohm: a positive number of ohms is needed, e.g. 50ohm"
+        )
     return resistance
 
 
