@@ -6,6 +6,7 @@ import argparse
 from typing import Any, TextIO
 
 from .common import add_output_options, write_json
+from .outcome import ExitCode
 
 NAME = "export"
 
@@ -70,4 +71,4 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         write_json(result.to_dict(), out)
     elif not arguments.quiet:
         print(verdict_line(result), file=out)
-    return 0
+    return int(ExitCode.HOLDS)

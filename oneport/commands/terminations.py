@@ -8,6 +8,7 @@ from typing import Any, TextIO
 from ..errors import InputError
 from ..reading.files import is_netlist_path
 from .common import add_output_options, grid_from_options, write_json
+from .outcome import ExitCode
 
 NAME = "terminations"
 
@@ -84,4 +85,4 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         print(verdict_line(result), file=out)
     else:
         out.write(render(result))
-    return 0
+    return int(ExitCode.HOLDS)

@@ -9,6 +9,8 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any, TextIO
 
+from .outcome import ExitCode
+
 NAME = "watch"
 
 
@@ -89,4 +91,4 @@ def watch_folder(
         clock=clock,
         sleep=sleep,
     )
-    return 0
+    return int(ExitCode.HOLDS)
