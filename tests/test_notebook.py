@@ -74,7 +74,7 @@ PRODUCTS = [
 
 @pytest.fixture(scope="module")
 def executed(tmp_path_factory: pytest.TempPathFactory) -> Any:
-    """The notebook, run once: a result cell and (but for watch) a ``.plot()`` cell per product."""
+    """The notebook, run once: a result cell and a ``.plot()`` cell per product."""
     folder = tmp_path_factory.mktemp("notebook")
     shutil.copytree(ROOT / "touchstone_examples", folder / "examples")
     cells = [
@@ -85,8 +85,7 @@ def executed(tmp_path_factory: pytest.TempPathFactory) -> Any:
     ]
     for name, code, _ in PRODUCTS:
         cells.append(nbformat.v4.new_code_cell(f"{name} = {code}\n{name}"))
-        if name != "watch":
-            cells.append(nbformat.v4.new_code_cell(f"{name}.plot()"))
+        cells.append(nbformat.v4.new_code_cell(f"{name}.plot()"))
     cells.append(nbformat.v4.new_code_cell("'matplotlib.pyplot' in sys.modules"))
     notebook = nbformat.v4.new_notebook(cells=cells)
     client = nbclient.NotebookClient(
@@ -120,7 +119,7 @@ def test_every_result_shows_html_and_a_one_line_repr(executed: Any) -> None:
 
 def test_a_returned_figure_shows_as_an_image_without_pyplot(executed: Any) -> None:
     plots = [c for c in executed.cells if c.source.endswith(".plot()")]
-    assert len(plots) == len(PRODUCTS) - 1
+    assert len(plots) == len(PRODUCTS)
     for cell in plots:
         data = _result(cell)
         assert "image/png" in data and data["text/plain"].startswith("<"), cell.source

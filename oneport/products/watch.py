@@ -95,6 +95,15 @@ class WatchResult(Displayed):
     polls: int
     outcomes: tuple[WatchOutcome, ...]
 
+    def plot(self, ax: Any = None) -> Any:
+        """Each checked file's closest approach to +1, coloured by its verdict.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.watch_plot import plot_watch
+
+        return plot_watch(self, ax)
+
     @property
     def cautions(self) -> tuple[str, ...]:
         """The safety cautions every check ends with."""
