@@ -248,7 +248,9 @@ def close_edges(
     - ``dc-sample``: the low edge is 0 Hz; F(0) takes the sign of Re F there.
     - ``loop-gain-below-unity``: |L| at the edge sample and in a five-point median there stays
       below 1 by more than ``NOISE_MARGIN`` times the data's scatter over the outermost
-      ``EDGE_NOISE_SAMPLES`` samples plus ``uncertainty``. F at the limit is positive.
+      ``EDGE_NOISE_SAMPLES`` samples plus ``uncertainty`` — towards DC also by more than |L|
+      grew over the lowest octave, so that one more octave like it below the sweep cannot
+      reach |L| = 1. F at the limit is positive.
     - ``settled`` (towards DC only): L has stopped moving far from +1 — its motion per octave
       over the outermost octave of the sweep (or the whole of a narrower one), and F's distance
       from the real axis, are both below ``SETTLED_FRACTION`` of |F| at the edge (medians, so
@@ -272,6 +274,10 @@ def close_edges(
     below_unity = largest + margin < 1.0
     settled = np.zeros(below_unity.shape, dtype=bool)
     if side == "low":
+        # Below the sweep |L| goes on growing as it grew over the lowest octave: |L| < 1 at
+        # the edge founds the closure only if one more such octave cannot take it to 1 (a
+        # real root just below the sweep shows as L creeping towards +1 at the edge).
+        below_unity &= largest + margin + _growth_towards_edge(frequency_hz, loop_gain) < 1.0
         spread = np.maximum(motion, np.abs(f_edge.imag))
         settled = spread < SETTLED_FRACTION * np.abs(f_edge)
     sign_of_real = np.where(f_edge.real > 0, 1, -1)
@@ -370,6 +376,19 @@ def motion_per_octave(frequency_hz: np.ndarray, values: np.ndarray, side: str) -
         return np.zeros(values.shape[:-1])
     change = np.abs(_smoothed(values, inner) - _smoothed(values, edge))
     return change / octaves
+
+
+def _growth_towards_edge(frequency_hz: np.ndarray, values: np.ndarray) -> np.ndarray:
+    """How much |L| grows per octave towards the low edge (medians; 0 where it falls).
+
+    ``values`` has shape (..., n); the result has shape (...).
+    """
+    edge, inner = _octave_ends(frequency_hz, "low")
+    if frequency_hz[edge] <= 0 or frequency_hz[inner] <= frequency_hz[edge]:
+        return np.zeros(np.shape(values)[:-1])
+    octaves = np.log2(frequency_hz[inner] / frequency_hz[edge])
+    growth = np.abs(_smoothed(values, edge)) - np.abs(_smoothed(values, inner))
+    return np.maximum(growth, 0.0) / octaves
 
 
 def _octave_ends(frequency_hz: np.ndarray, side: str) -> tuple[int, int]:
