@@ -26,6 +26,7 @@ import numpy as np
 
 from ..cautions import CAUTIONS
 from ..circuit.blocks import interpolate_block
+from ..display import Displayed
 from ..errors import InputError
 from ..reading.touchstone import Multiport
 
@@ -106,8 +107,8 @@ class BestTermination:
         }
 
 
-@dataclass(frozen=True)
-class TerminationsResult:
+@dataclass(frozen=True, repr=False)
+class TerminationsResult(Displayed):
     """Terminations of port ``terminated_port`` that make port ``observed_port`` negative.
 
     Attributes
@@ -148,6 +149,15 @@ class TerminationsResult:
     bands_hz: tuple[tuple[float, float], ...]
     warnings: tuple[dict[str, str], ...] = ()
     cautions: tuple[str, ...] = field(default=CAUTIONS)
+
+    def plot(self, ax: Any = None) -> Any:
+        """A Smith chart of the Γ_T plane, the negative-resistance terminations shaded.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.smith import termination_figure
+
+        return termination_figure(self, ax)
 
     def to_dict(self) -> dict[str, Any]:
         """The JSON object (schema ``oneport.terminations/1``)."""

@@ -5,9 +5,8 @@ Rendering only: every function draws what a :class:`~oneport.analysis.result.Che
 GHz, |L| in dB and phases in degrees here and nowhere inside the package.
 
 matplotlib is imported inside the functions, never when ``oneport`` is imported. Figures are
-built as :class:`matplotlib.figure.Figure` objects without ``pyplot``, so they need no display;
-the Agg backend is selected unless the caller already imported ``pyplot`` (an interactive
-session keeps its own backend).
+built as :class:`matplotlib.figure.Figure` objects without ``pyplot``, so they need no display
+and no backend is ever selected (an interactive session keeps its own).
 
 Artists that tests and callers may look for carry a ``gid``: ``"critical-point"`` (the +1
 marker), ``"frequency-arrow"``, ``"crossing-label"``, ``"unit-circle"``, ``"loop-gain-band"``
@@ -33,6 +32,7 @@ if TYPE_CHECKING:
     from matplotlib.figure import Figure
 
     from ..analysis.result import CheckResult
+    from ..analysis.small_gain import BoundResult
 
 # A neutral palette of our own: ink for the loop, muted warm and cool tones for the rest.
 _INK = "#26323d"
@@ -514,3 +514,36 @@ def _smith_closest_approach(
     )
     joint.set_gid("closest-approach")
     joint.set_clip_path(clip)
+
+
+def plot_bound(result: BoundResult, ax: Axes | None = None) -> Figure:
+    """The return loss a load needs for the small-gain bound, against frequency, beside the
+    stated one (``check --load-return-loss``); bands where the stated one is not enough shaded.
+
+    Drawn into ``ax`` when given, else on a new headless figure; returns the figure.
+    """
+    figure, ax = _target(ax, (7.6, 4.6))
+    frequency_ghz = result.frequency_hz / _GIGAHERTZ
+    stated = 0.0 - 20.0 * np.log10(result.reflection_bound)
+    ax.plot(
+        frequency_ghz,
+        0.0 - 20.0 * np.log10(result.allowed_reflection),
+        color=_DEVICE,
+        linewidth=1.3,
+        label="return loss needed (20·log10 |Γd|, at least 0 dB)",
+    )
+    ax.axhline(stated, color=_LOAD, linewidth=1.2, linestyle="--", label=f"stated: {stated:g} dB")
+    for index, band in enumerate(result.failing_bands):
+        ax.axvspan(
+            band.start_hz / _GIGAHERTZ,
+            band.stop_hz / _GIGAHERTZ,
+            color=_BAND,
+            alpha=0.35,
+            label="stated return loss not enough" if index == 0 else None,
+        )
+    ax.grid(True, color=_GRID, linewidth=0.6)
+    ax.set_xlabel("frequency (GHz)")
+    ax.set_ylabel(f"return loss (dB, Z0 = {result.reference_impedance_ohm:g} ohm)")
+    ax.legend(loc="best", fontsize="small", framealpha=0.85)
+    ax.set_title(f"Small-gain bound for the load class: {result.verdict}", fontsize="medium")
+    return figure

@@ -9,12 +9,15 @@ from __future__ import annotations
 import math
 import textwrap
 from collections.abc import Sequence
+from typing import TYPE_CHECKING
 
 from ..analysis.result import CheckResult
-from ..analysis.small_gain import BoundResult
 from ..errors import printable
 from ..findings import Finding
 from ..units import format_frequency, to_decibels
+
+if TYPE_CHECKING:
+    from ..analysis.small_gain import BoundResult
 
 _HEADLINE = {
     "stable": "STABLE (small-signal)",
@@ -78,8 +81,23 @@ def render(result: CheckResult) -> str:
     parts += ["", *_diagnostics(result)]
     if result.startup_estimates:
         parts += ["", *_startup(result)]
-    parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
+    parts += closing_sections(
+        result.warnings,
+        result.next_steps,
+        result.premise,
+        result.cautions,
+        before_premise=_second_opinion(result),
+    )
     return "\n".join(parts) + "\n"
+
+
+def _second_opinion(result: CheckResult) -> list[str]:
+    """The fit's section of ``check --poles``, when the result carries it."""
+    if result.second_opinion is None:
+        return []
+    from .poles_text import second_opinion_lines
+
+    return second_opinion_lines(result.second_opinion)
 
 
 def _bands(result: CheckResult) -> list[str]:
@@ -119,16 +137,16 @@ def _margins(result: CheckResult) -> list[str]:
         f"  closest approach to +1   |1 - L| = {margins.modulus_margin:.3g}"
         f" at {format_frequency(margins.modulus_margin_frequency_hz)}"
     )
-    if margins.gain_margin_db is not None and margins.gain_margin_frequency_hz is not None:
+    if margins.gain_margin is not None and margins.gain_margin_frequency_hz is not None:
         rows.append(
-            f"  gain margin              {margins.gain_margin_db:.2f} dB"
+            f"  gain margin              {to_decibels(margins.gain_margin):.2f} dB"
             f" at {format_frequency(margins.gain_margin_frequency_hz)}"
         )
     else:
         rows.append("  gain margin              none (L does not cross (0, 1) on the real axis)")
-    if margins.phase_margin_deg is not None and margins.phase_margin_frequency_hz is not None:
+    if margins.phase_margin_rad is not None and margins.phase_margin_frequency_hz is not None:
         rows.append(
-            f"  phase margin             {margins.phase_margin_deg:.1f} deg"
+            f"  phase margin             {math.degrees(margins.phase_margin_rad):.1f} deg"
             f" at {format_frequency(margins.phase_margin_frequency_hz)}"
         )
     else:
@@ -189,7 +207,7 @@ def _startup(result: CheckResult) -> list[str]:
             f"  {estimate.form:<11}{format_frequency(estimate.crossing_frequency_hz):>12}"
             f"  {format_frequency(estimate.estimated_frequency_hz):>12}"
             f"  {estimate.sigma_per_s:>11.3g}  {ratio:>7}  {q:>7}"
-            + ("  grows" if estimate.growing else "")
+            + ("  grows" if estimate.grows else "")
         )
     rows.append(
         wrap(
@@ -198,7 +216,7 @@ def _startup(result: CheckResult) -> list[str]:
             "  ",
         )
     )
-    if any(e.growing for e in result.startup_estimates):
+    if any(e.grows for e in result.startup_estimates):
         rows.append(
             wrap(
                 "where a 'grows' disagrees with the count, the count decides: one Newton step"
@@ -209,25 +227,39 @@ def _startup(result: CheckResult) -> list[str]:
     return rows
 
 
-def render_bound(result: BoundResult) -> str:
-    """The text report of a worst-case-load (return-loss bound) check."""
+def render_result(result: CheckResult | BoundResult) -> str:
+    """The text report of what ``check`` returned: a pair's check, or a load class's bound."""
+    return render(result) if isinstance(result, CheckResult) else render_bound(result)
+
+
+def summary_line(result: CheckResult | BoundResult) -> str:
+    """The verdict line of what ``check`` returned (``--quiet``)."""
+    return verdict_line(result) if isinstance(result, CheckResult) else bound_line(result)
+
+
+def bound_line(result: BoundResult) -> str:
+    """One line: the load class's verdict, its return loss, Z0 and the band."""
     low, high = result.frequency_range_hz
     headline = {
         "guaranteed": "GUARANTEED STABLE (small-signal) for the load class",
         "not-guaranteed": "NOT GUARANTEED for the load class",
         "inconclusive": "INCONCLUSIVE: the data cannot decide",
     }[result.verdict]
-    parts = [
-        f"{headline}: return loss >= {result.load_return_loss_db:g} dB in"
+    return (
+        f"{headline}: return loss >= {0.0 - to_decibels(result.reflection_bound):g} dB in"
         f" {result.reference_impedance_ohm:g} ohm;"
-        f" {format_frequency(low)}-{format_frequency(high)}",
-        "",
-    ]
+        f" {format_frequency(low)}-{format_frequency(high)}"
+    )
+
+
+def render_bound(result: BoundResult) -> str:
+    """The text report of a worst-case-load (return-loss bound) check."""
+    parts = [bound_line(result), ""]
     parts += [wrap(reason, "  ") for reason in result.reasons]
     parts += [
         "",
         f"Required load return loss (Z0 = {result.reference_impedance_ohm:g} ohm)",
-        f"  worst: {result.worst_required_return_loss_db:.2f} dB at"
+        f"  worst: {0.0 - to_decibels(result.smallest_allowed_reflection):.2f} dB at"
         f" {format_frequency(result.worst_frequency_hz)}",
     ]
     if result.failing_bands:
@@ -248,13 +280,18 @@ def closing_sections(
     premise: str | None = None,
     cautions: Sequence[str] = (),
     limits: Sequence[str] = (),
+    *,
+    before_premise: Sequence[str] = (),
 ) -> list[str]:
-    """The sections every report ends with: warnings, next steps, premise, limits, cautions."""
+    """The sections every report ends with: warnings, next steps, premise, limits, cautions
+    (``before_premise``: a product's own section just before the premise)."""
     parts: list[str] = []
     if warnings:
         parts += ["", "Warnings", *[wrap(f"[{w.code}] {w.message}", "  ") for w in warnings]]
     if next_steps:
         parts += ["", "What to do next", *[wrap(step, "  - ") for step in next_steps]]
+    if before_premise:
+        parts += ["", *before_premise]
     if premise:
         parts += ["", "Premise", wrap(premise, "  ")]
     if limits:

@@ -234,21 +234,21 @@ def _margins_table(result: CheckResult) -> str:
             format_frequency(margins.modulus_margin_frequency_hz),
         ]
     ]
-    if margins.gain_margin_db is not None and margins.gain_margin_frequency_hz is not None:
+    if margins.gain_margin is not None and margins.gain_margin_frequency_hz is not None:
         rows.append(
             [
                 "gain margin",
-                f"{margins.gain_margin_db:.2f} dB",
+                f"{to_decibels(margins.gain_margin):.2f} dB",
                 format_frequency(margins.gain_margin_frequency_hz),
             ]
         )
     else:
         rows.append(["gain margin", "none", "L does not cross (0, 1) on the real axis"])
-    if margins.phase_margin_deg is not None and margins.phase_margin_frequency_hz is not None:
+    if margins.phase_margin_rad is not None and margins.phase_margin_frequency_hz is not None:
         rows.append(
             [
                 "phase margin",
-                f"{margins.phase_margin_deg:.1f} deg",
+                f"{math.degrees(margins.phase_margin_rad):.1f} deg",
                 format_frequency(margins.phase_margin_frequency_hz),
             ]
         )

@@ -18,7 +18,7 @@ from ..products.stabilise.result import (
 )
 from ..products.stabilise.scan import Range
 from ..products.stabilise.wording import LETTERS, format_element, format_value
-from ..units import format_frequency
+from ..units import format_frequency, to_decibels
 from .check_text import closing_sections, wrap
 
 _HEADLINE = {
@@ -159,14 +159,14 @@ def _margins(margins: MarginsAfter) -> str:
     text = f"|1 - L| = {margins.min_distance:.3g}"
     if margins.min_distance_frequency_hz is not None:
         text += f" at {format_frequency(margins.min_distance_frequency_hz)}"
-    gain = margins.gain_margin_db
+    gain = margins.gain_margin
     text += (
         "; gain margin none (L does not cross (0, 1))"
         if gain is None or not math.isfinite(gain)
-        else f"; gain margin {gain:.1f} dB"
+        else f"; gain margin {to_decibels(gain):.1f} dB"
     )
-    if margins.phase_margin_deg is not None:
-        text += f"; phase margin {margins.phase_margin_deg:.0f} deg"
+    if margins.phase_margin_rad is not None:
+        text += f"; phase margin {math.degrees(margins.phase_margin_rad):.0f} deg"
     return text + where
 
 
@@ -175,9 +175,9 @@ def _gain_cost(cost: GainCost) -> str:
     low, high = cost.band_hz
     return (
         f"{what} in {format_frequency(low)}-{format_frequency(high)}:"
-        f" {cost.before_db[0]:.1f} to {cost.before_db[1]:.1f} dB before,"
-        f" {cost.after_db[0]:.1f} to {cost.after_db[1]:.1f} dB after; at most"
-        f" {cost.largest_loss_db:.2f} dB lost"
+        f" {to_decibels(cost.before[0]):.1f} to {to_decibels(cost.before[1]):.1f} dB before,"
+        f" {to_decibels(cost.after[0]):.1f} to {to_decibels(cost.after[1]):.1f} dB after;"
+        f" at most {to_decibels(cost.largest_loss):.2f} dB lost"
         f" (at {format_frequency(cost.largest_loss_frequency_hz)})"
     )
 
@@ -188,12 +188,12 @@ def _wanted(mode: WantedMode) -> str:
     crossing = mode.crossing_frequency_hz or 0.0
     shift = (crossing - mode.keep_hz) / mode.keep_hz
     parts = [f"starts: crossing at {format_frequency(crossing)} ({shift:+.1%} from the wanted)"]
-    if mode.loop_gain_at_crossing_db is not None:
-        parts[0] += f" with |L| = {mode.loop_gain_at_crossing_db:.2f} dB"
-    if mode.growth_rate_per_s is not None and mode.natural_frequency_hz is not None:
+    if mode.loop_gain_at_crossing is not None:
+        parts[0] += f" with |L| = {to_decibels(mode.loop_gain_at_crossing):.2f} dB"
+    if mode.sigma_per_s is not None and mode.natural_frequency_hz is not None:
         parts.append(
             f"natural frequency {format_frequency(mode.natural_frequency_hz)}, growth rate"
-            f" {mode.growth_rate_per_s:.3g} 1/s (pole-zero fit)"
+            f" {mode.sigma_per_s:.3g} 1/s (pole-zero fit)"
         )
     else:
         parts.append("the pole-zero fit does not confirm its growth rate")
@@ -245,8 +245,8 @@ def _margin(result: StabiliseResult) -> str:
     parts = []
     if requirement.min_distance is not None:
         parts.append(f"|1 - L| >= {requirement.min_distance:g}")
-    if requirement.gain_margin_db is not None:
-        parts.append(f"gain margin >= {requirement.gain_margin_db:g} dB")
+    if requirement.gain_margin is not None:
+        parts.append(f"gain margin >= {to_decibels(requirement.gain_margin):g} dB")
     where = " away from the wanted mode" if requirement.keep_hz is not None else ""
     return " and ".join(parts) + where
 

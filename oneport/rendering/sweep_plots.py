@@ -1,6 +1,6 @@
 """Pictures of a sweep: a stability map over two swept parameters, or a histogram of margins.
 
-Rendering only (matplotlib, Agg, imported inside the functions).
+Rendering only (matplotlib imported inside the functions; headless figures, no backend chosen).
 """
 
 from __future__ import annotations
@@ -10,18 +10,19 @@ from typing import Any
 import numpy as np
 
 from ..analysis.variants import STABLE
-from ..products.sweep.runner import SweepResult
+from ..products.sweep.runner import SweepRun
 
 
-def plot_sweep(result: SweepResult, ax: Any = None) -> Any:
-    """Stability map for a two-parameter grid, otherwise a histogram of min |1 − L|."""
-    import matplotlib
+def plot_sweep(result: SweepRun, ax: Any = None) -> Any:
+    """Stability map for a two-parameter grid, otherwise a histogram of min |1 − L|.
 
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-
+    Drawn into ``ax`` when given, else on a new headless figure; returns the figure.
+    """
     if ax is None:
-        figure, ax = plt.subplots(figsize=(7.5, 5.5), layout="constrained")
+        from .figures import new_figure
+
+        figure = new_figure((7.5, 5.5))
+        ax = figure.add_subplot()
     else:
         figure = ax.figure
     names = list(result.plan.values)
@@ -32,7 +33,7 @@ def plot_sweep(result: SweepResult, ax: Any = None) -> Any:
     return figure
 
 
-def _map(result: SweepResult, names: list[str], ax: Any, figure: Any) -> None:
+def _map(result: SweepRun, names: list[str], ax: Any, figure: Any) -> None:
     shape = result.plan.shape
     x = result.table[names[1]].reshape(shape)
     y = result.table[names[0]].reshape(shape)
@@ -52,7 +53,7 @@ def _map(result: SweepResult, names: list[str], ax: Any, figure: Any) -> None:
     ax.set_title("Stability map (white line: stability boundary; contours: oscillation GHz)")
 
 
-def _histogram(result: SweepResult, ax: Any) -> None:
+def _histogram(result: SweepRun, ax: Any) -> None:
     margin = result.table["min_distance"]
     stable = result.table["verdict_code"] == STABLE
     bins = np.linspace(0.0, float(margin.max()) or 1.0, 41)

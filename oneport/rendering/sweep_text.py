@@ -8,31 +8,36 @@ from __future__ import annotations
 from typing import Any
 
 
-def render(
-    result: Any, summary: Any, table_path: str | None, quiet: bool, warnings: list[Any]
-) -> str:
-    from ..units import format_frequency
-
+def verdict_line(result: Any) -> str:
+    """One line: the headline and the fractions of the variants (``--quiet``)."""
+    summary = result.summary
     headline = {
         "stable": "ALL STABLE (small-signal)",
         "unstable": "SOME VARIANTS UNSTABLE",
         "inconclusive": "INCONCLUSIVE for some variants",
     }[summary.verdict]
-    line = (
+    return (
         f"{headline}: {summary.stable_fraction:.1%} stable, {summary.unstable_fraction:.1%}"
         f" unstable, {summary.inconclusive_fraction:.1%} inconclusive of {summary.completed}"
-        f" variants; Z0 = {result.reference_impedance_ohm:g} ohm"
+        f" variants; Z0 = {result.run.reference_impedance_ohm:g} ohm"
     )
-    if quiet:
-        return line + "\n"
+
+
+def render(result: Any) -> str:
+    """The text report of a :class:`~oneport.products.sweep.summary.SweepResult`."""
+    from ..units import format_frequency
+
+    summary, table_path, warnings = result.summary, result.table_path, list(result.warnings)
+    line = verdict_line(result)
+    run = result.run
     rows = [line, ""]
     if summary.interrupted:
         rows.append(f"  interrupted: {summary.completed} of {summary.variants} variants finished")
     rows.append(
-        f"  band {format_frequency(result.frequency_hz[0])}-"
-        f"{format_frequency(result.frequency_hz[-1])}, {result.frequency_hz.size} points"
+        f"  band {format_frequency(run.frequency_hz[0])}-"
+        f"{format_frequency(run.frequency_hz[-1])}, {run.frequency_hz.size} points"
     )
-    for name, text in result.plan.description.items():
+    for name, text in run.plan.description.items():
         rows.append(f"  {name}: {text}")
     if summary.stable_bounds:
         rows.append("  stable variants span (not necessarily one connected region):")
@@ -40,7 +45,7 @@ def render(
             rows.append(f"    {name}: {low:.4g} to {high:.4g}")
     if summary.worst_row is not None:
         values = ", ".join(
-            f"{name}={result.table[name][summary.worst_row]:.4g}" for name in result.plan.values
+            f"{name}={run.table[name][summary.worst_row]:.4g}" for name in run.plan.values
         )
         rows.append(f"  worst variant (row {summary.worst_row}; {values}): {summary.worst_reason}")
     if table_path:

@@ -1,15 +1,21 @@
-"""What a designer reads first about a sweep: how much is stable, where, and the worst case."""
+"""What a designer reads first about a sweep: how much is stable, where, and the worst case;
+and the sweep's frozen result, whose ``to_dict()`` is the command's JSON."""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-from typing import Any
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from ...analysis.variants import INCONCLUSIVE, STABLE, UNSTABLE
 from ...cautions import CAUTIONS
-from .runner import SweepResult
+from ...display import Displayed
+from ...findings import Finding
+from .runner import SweepRun
+
+if TYPE_CHECKING:
+    from matplotlib.figure import Figure
 
 SWEEP_SCHEMA = "oneport.sweep/1"
 
@@ -30,7 +36,7 @@ class SweepSummary:
     interrupted: bool
 
 
-def summarise(result: SweepResult) -> SweepSummary:
+def summarise(result: SweepRun) -> SweepSummary:
     """Fractions, the stable variants' parameter bounds, and the worst variant with its reason."""
     table = result.table
     completed = result.completed
@@ -91,10 +97,67 @@ def _worst(
     )
 
 
+@dataclass(frozen=True, repr=False)
+class SweepResult(Displayed):
+    """Everything ``oneport sweep`` found, frozen: the run (plan, table, how it ended), its
+    summary, what was read, the warnings, and the table file written (if any).
+
+    Attributes
+    ----------
+    run : SweepRun
+        The plan, the grid, the per-variant table (column → array) and how it ended.
+    summary : SweepSummary
+        Verdict, fractions, the stable variants' bounds, the worst variant and why.
+    inputs : tuple of dict
+        What was read, per device file and the load (the JSON's ``inputs``).
+    warnings : tuple of Finding
+    table_path : str or None
+        Where the table was written (``output=``).
+    """
+
+    run: SweepRun = field(repr=False)
+    summary: SweepSummary
+    inputs: tuple[dict[str, Any], ...]
+    warnings: tuple[Finding, ...]
+    table_path: str | None = None
+    cautions: tuple[str, ...] = CAUTIONS
+
+    @property
+    def verdict(self) -> str:
+        """``unstable`` if any variant is, ``stable`` if all are, else ``inconclusive``."""
+        return self.summary.verdict
+
+    @property
+    def table(self) -> dict[str, np.ndarray]:
+        """The per-variant table: parameter and result columns, one row per variant."""
+        return self.run.table
+
+    @property
+    def interrupted(self) -> bool:
+        """True when the run was stopped before every chunk finished."""
+        return self.run.interrupted
+
+    def plot(self, ax: Any = None) -> Figure:
+        """A stability map over two swept parameters, else a histogram of min |1 − L|.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ...rendering.sweep_plots import plot_sweep
+
+        figure: Figure = plot_sweep(self.run, ax)
+        return figure
+
+    def to_dict(self) -> dict[str, Any]:
+        """The ``oneport.sweep/1`` JSON object (docs/sweep.md)."""
+        data = summary_dict(self.run, self.summary, list(self.inputs), self.table_path)
+        data["warnings"] = [finding.to_dict() for finding in self.warnings]
+        return data
+
+
 def summary_dict(
-    result: SweepResult, summary: SweepSummary, inputs: list[dict[str, Any]], table_path: str | None
+    result: SweepRun, summary: SweepSummary, inputs: list[dict[str, Any]], table_path: str | None
 ) -> dict[str, Any]:
-    """The ``oneport.sweep/1`` JSON object."""
+    """The ``oneport.sweep/1`` JSON object of a run (warnings left empty)."""
     worst = None
     if summary.worst_row is not None:
         worst = {name: _plain(column[summary.worst_row]) for name, column in result.table.items()}
