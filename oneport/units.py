@@ -7,6 +7,7 @@ parsed or produced. Everything it returns is in SI base units (Hz, s, Ω) or a l
 from __future__ import annotations
 
 import math
+import numbers
 import re
 
 from .errors import InputError
@@ -87,6 +88,54 @@ def parse_decibels(text: str, *, option: str) -> float:
     if not match:
         raise InputError(f"{option}: cannot read {text!r} as a level in dB; give e.g. 15dB")
     return float(match.group(1))
+
+
+def quantity(value: object, kind: str, *, option: str) -> float:
+    """A quantity given from Python or typed on the command line, in SI units.
+
+    ``value`` is a number (already SI: Hz, s, Ω, …) or text with a unit (``"2.4GHz"``), read by
+    :func:`parse_quantity`, the one rule the commands use too; ``option`` names the option in
+    the error (``--start``), so a function call fails with the command's own line.
+
+    Examples
+    --------
+    >>> quantity("50ohm", "resistance", option="--measurement-impedance")
+    50.0
+    >>> quantity(2.4e9, "frequency", option="--at")
+    2400000000.0
+    >>> quantity(True, "resistance", option="--load-dc-resistance")
+    Traceback (most recent call last):
+    ...
+    oneport.errors.InputError: --load-dc-resistance: cannot read True as a resistance; give a \
+number with an optional SI prefix and unit, e.g. 50ohm
+    """
+    if isinstance(value, str):
+        return parse_quantity(value, kind, option=option)
+    accepted = f"a number with an optional SI prefix and unit, e.g. {_EXAMPLES[kind]}"
+    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+        raise InputError(f"{option}: cannot read {value!r} as a {kind}; give {accepted}")
+    number = float(value)
+    if not math.isfinite(number):
+        raise InputError(f"{option}: {value!r} is not a finite number; give {accepted}")
+    return number
+
+
+def decibels(value: object, *, option: str) -> float:
+    """A level in dB given as a number (dB) or text (``"15dB"``), by :func:`parse_decibels`.
+
+    Examples
+    --------
+    >>> decibels("15dB", option="--load-return-loss"), decibels(20, option="--gain-threshold")
+    (15.0, 20.0)
+    """
+    if isinstance(value, str):
+        return parse_decibels(value, option=option)
+    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+        raise InputError(f"{option}: cannot read {value!r} as a level in dB; give e.g. 15dB")
+    number = float(value)
+    if not math.isfinite(number):
+        raise InputError(f"{option}: {value!r} is not a finite level in dB; give e.g. 15dB")
+    return number
 
 
 _EXAMPLES = {

@@ -79,7 +79,10 @@ def test_two_port_export_with_log_spacing_and_json(tmp_path: Path) -> None:
         (["--start", "1GHz", "--stop", "2GHz", "--param", "RX=3"], "unknown parameter 'RX'"),
         (["--start", "1GHz", "--stop", "2GHz", "--param", "RD"], "give NAME=VALUE"),
         (["--start", "1GHz", "--stop", "2GHz", "--param", "RD=5M"], "milli"),
-        (["--start", "1GHz", "--stop", "2GHz", "--reference-impedance", "-5"], "ohms > 0"),
+        (
+            ["--start", "1GHz", "--stop", "2GHz", "--reference-impedance", "-5"],
+            "positive number of ohms",
+        ),
     ],
 )
 def test_bad_options_exit_2(tmp_path: Path, options: list[str], message: str) -> None:

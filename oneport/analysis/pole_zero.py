@@ -21,6 +21,7 @@ from typing import Any
 import numpy as np
 
 from ..cautions import CAUTIONS
+from ..display import Displayed
 from ..findings import Finding
 from ..reading.records import InputRecord
 from ..units import format_count, format_frequency, format_plain, format_rate
@@ -105,8 +106,8 @@ class NaturalFrequency:
         }
 
 
-@dataclass(frozen=True)
-class PoleZeroResult:
+@dataclass(frozen=True, repr=False)
+class PoleZeroResult(Displayed):
     """What a rational fit of F = 1 − Γd·ΓL says about the closed circuit's natural frequencies.
 
     Attributes
@@ -164,6 +165,15 @@ class PoleZeroResult:
     def frequency_range_hz(self) -> tuple[float, float]:
         """The fitted band, Hz."""
         return float(self.frequency_hz[0]), float(self.frequency_hz[-1])
+
+    def plot(self, ax: Any = None) -> Any:
+        """The natural frequencies and the fit's poles, frequency against growth rate.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.poles_plot import plot_poles
+
+        return plot_poles(self, ax)
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
         """The ``oneport.poles/1`` JSON object (docs/json-poles.md)."""

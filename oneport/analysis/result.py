@@ -8,15 +8,21 @@ computes an analysis or renders text.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
+from ..display import Displayed
 from ..findings import Finding, complex_json
 from ..reading.records import InputRecord
 from .diagnostics import GridResolution, HiddenResonance
 from .nyquist import Band, Crossing, EdgeClosure, Margins
 from .startup import Mode, StartupEstimate
+
+if TYPE_CHECKING:
+    from matplotlib.figure import Figure
+
+    from .pole_zero import PoleZeroResult
 
 CHECK_SCHEMA = "oneport.check/3"
 VERDICTS = ("stable", "unstable", "inconclusive")
@@ -51,8 +57,8 @@ class Uncertainty:
         }
 
 
-@dataclass(frozen=True)
-class CheckResult:
+@dataclass(frozen=True, repr=False)
+class CheckResult(Displayed):
     """Everything one stability check found, frozen.
 
     Attributes
@@ -90,6 +96,9 @@ class CheckResult:
     dc_facts_source : str or None
         Where the DC facts that closed the contour towards DC came from, in words; None when
         the low edge was not closed by DC facts.
+    second_opinion : PoleZeroResult or None
+        With ``check(…, poles=True)``: the rational fit of 1 − L and its natural frequencies,
+        cross-checked with the count (the JSON's ``poles``).
     """
 
     verdict: str
@@ -122,16 +131,18 @@ class CheckResult:
     modes: tuple[Mode, ...] | None = None
     dc_resistances_ohm: tuple[float | None, float | None] = (None, None)
     dc_facts_source: str | None = None
+    second_opinion: PoleZeroResult | None = None
 
     @property
     def frequency_range_hz(self) -> tuple[float, float]:
         """The analysed band, Hz."""
         return float(self.frequency_hz[0]), float(self.frequency_hz[-1])
 
-    def plot(self, kind: str = "nyquist", ax: Any = None, **options: Any) -> Any:
+    def plot(self, ax: Any = None, kind: str = "nyquist", **options: Any) -> Figure:
         """Draw the result: ``kind`` is ``"nyquist"``, ``"loop-gain"`` or ``"smith"``.
 
-        Returns the matplotlib figure; ``ax`` draws into existing axes. Options go to
+        Returns the matplotlib figure (headless; a notebook shows it when it is the cell's
+        value); ``ax`` draws into existing axes. Options go to
         :func:`oneport.rendering.check_plots.plot_nyquist` (``compress_radius``), ``plot_loop_gain``
         (``log_frequency``) or ``plot_smith`` (``max_radius``).
         """
@@ -146,7 +157,8 @@ class CheckResult:
             from ..errors import InputError
 
             raise InputError(f"plot kind {kind!r}: accepted: {', '.join(drawers)}")
-        return drawers[kind](self, ax=ax, **options)
+        figure: Figure = drawers[kind](self, ax=ax, **options)
+        return figure
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
         """The ``oneport.check/3`` JSON object (plain Python types only)."""
@@ -219,6 +231,8 @@ class CheckResult:
                 "gamma_load": _complex_list(self.gamma_load),
                 "loop_gain": _complex_list(self.loop_gain),
             }
+        if self.second_opinion is not None:
+            data["poles"] = self.second_opinion.to_dict()
         return data
 
 
@@ -228,6 +242,16 @@ def _complex_list(values: np.ndarray) -> list[dict[str, float]]:
 
 def _db(magnitude: float) -> float:
     return float(20.0 * np.log10(magnitude))
+
+
+def _optional_db(factor: float | None) -> float | None:
+    """A linear margin factor in dB for a ``_db`` key (None stays None)."""
+    return None if factor is None else _db(factor)
+
+
+def _optional_deg(angle_rad: float | None) -> float | None:
+    """An angle in degrees for a ``_deg`` key (None stays None)."""
+    return None if angle_rad is None else float(np.degrees(angle_rad))
 
 
 def _crossing(crossing: Crossing, z0: float) -> dict[str, Any]:
@@ -259,9 +283,9 @@ def _margins(margins: Margins, z0: float, stable: bool) -> dict[str, Any]:
     other verdict they are null (the distance of L from +1 always means something)."""
     return {
         "reference_impedance_ohm": z0,
-        "gain_margin_db": margins.gain_margin_db if stable else None,
+        "gain_margin_db": _optional_db(margins.gain_margin) if stable else None,
         "gain_margin_frequency_hz": margins.gain_margin_frequency_hz if stable else None,
-        "phase_margin_deg": margins.phase_margin_deg if stable else None,
+        "phase_margin_deg": _optional_deg(margins.phase_margin_rad) if stable else None,
         "phase_margin_frequency_hz": margins.phase_margin_frequency_hz if stable else None,
         "min_distance_to_critical_point": margins.modulus_margin,
         "min_distance_frequency_hz": margins.modulus_margin_frequency_hz,
@@ -276,7 +300,7 @@ def _startup(estimate: StartupEstimate, z0: float) -> dict[str, Any]:
         "crossing_frequency_hz": estimate.crossing_frequency_hz,
         "estimated_frequency_hz": estimate.estimated_frequency_hz,
         "sigma_per_s": estimate.sigma_per_s,
-        "growing": estimate.growing,
+        "growing": estimate.grows,
         "total_resistance_ohm": estimate.total_real_part if impedance else None,
         "total_conductance_siemens": None if impedance else estimate.total_real_part,
         "negative_to_load_resistance_ratio": estimate.resistance_ratio,

@@ -23,6 +23,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .nyquist import median
+
 #: Samples each side of a crossing used for the local slopes.
 SLOPE_HALF_WIDTH = 3
 #: Crossings of one form closer than this many samples are scatter around zero, not modes.
@@ -44,7 +46,7 @@ class StartupEstimate:
     crossing_frequency_hz: float
     estimated_frequency_hz: float
     sigma_per_s: float
-    growing: bool
+    grows: bool
     total_real_part: float
     resistance_ratio: float | None
     external_q: float | None
@@ -229,7 +231,7 @@ def _without_chatter(
 ) -> list[StartupEstimate]:
     """Drop crossings of one form that follow another within ``CHATTER_SAMPLES`` samples:
     measurement scatter dithering X_T (or B_T) about zero, not separate resonances."""
-    window = CHATTER_SAMPLES * float(np.median(np.diff(frequency_hz)))
+    window = CHATTER_SAMPLES * float(median(np.diff(frequency_hz)))
     kept: list[StartupEstimate] = []
     last: dict[str, float] = {}
     for estimate in estimates:
@@ -270,7 +272,7 @@ def _estimates_for_form(
                 crossing_frequency_hz=float(omega0 / (2 * np.pi)),
                 estimated_frequency_hz=float((omega0 + delta_omega) / (2 * np.pi)),
                 sigma_per_s=float(sigma),
-                growing=bool(sigma > 0),
+                grows=bool(sigma > 0),
                 total_real_part=real_total,
                 resistance_ratio=-device_real / load_real if load_real > 0 else None,
                 external_q=omega0 * load_slope / (2 * load_real) if load_real > 0 else None,

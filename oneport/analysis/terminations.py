@@ -26,6 +26,7 @@ import numpy as np
 
 from ..cautions import CAUTIONS
 from ..circuit.blocks import interpolate_block
+from ..display import Displayed
 from ..errors import InputError, printable
 from ..reading.touchstone import Multiport
 from ..units import format_frequency
@@ -110,8 +111,8 @@ class BestTermination:
         }
 
 
-@dataclass(frozen=True)
-class TerminationsResult:
+@dataclass(frozen=True, repr=False)
+class TerminationsResult(Displayed):
     """Terminations of port ``terminated_port`` that make port ``observed_port`` negative.
 
     Attributes
@@ -161,6 +162,15 @@ class TerminationsResult:
         if self.best.unbounded or self.negative_fraction > 0:
             return TERMINATIONS_VERDICTS[0]
         return TERMINATIONS_VERDICTS[1]
+
+    def plot(self, ax: Any = None) -> Any:
+        """A Smith chart of the ΓT plane, the negative-resistance terminations shaded.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.smith import termination_figure
+
+        return termination_figure(self, ax)
 
     def to_dict(self) -> dict[str, Any]:
         """The JSON object (schema ``oneport.terminations/2``)."""

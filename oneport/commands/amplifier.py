@@ -3,18 +3,9 @@
 from __future__ import annotations
 
 import argparse
-from typing import TYPE_CHECKING, Any, TextIO
+from typing import Any, TextIO
 
-from ..units import parse_decibels
-from .common import (
-    add_measurement_impedance_option,
-    add_output_options,
-    measurement_impedance,
-    write_json,
-)
-
-if TYPE_CHECKING:
-    pass
+from .common import add_measurement_impedance_option, add_output_options, write_json
 
 NAME = "amplifier"
 
@@ -53,22 +44,17 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Screen, print, optionally plot; return the exit code of the verdict."""
-    from ..products.amplifier import screen_amplifier
+    from ..products.amplifier import amplifier
     from ..rendering.amplifier_plot import save_amplifier_plot
     from ..rendering.amplifier_text import render, verdict_line
     from .outcome import exit_code
 
-    impedance = measurement_impedance(arguments)
-    return_loss = None
-    if arguments.port_return_loss is not None:
-        return_loss = parse_decibels(arguments.port_return_loss, option="--port-return-loss")
-    threshold = parse_decibels(arguments.gain_threshold, option="--gain-threshold")
-    result = screen_amplifier(
+    result = amplifier(
         arguments.device,
-        load=arguments.load,
-        port_return_loss_db=return_loss,
-        gain_threshold_db=threshold,
-        measurement_impedance_ohm=impedance,
+        arguments.load,
+        port_return_loss_db=arguments.port_return_loss,
+        gain_threshold_db=arguments.gain_threshold,
+        measurement_impedance_ohm=arguments.measurement_impedance,
     )
     if arguments.plot:
         save_amplifier_plot(result, arguments.plot)

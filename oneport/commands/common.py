@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import argparse
-import json
 from typing import Any, TextIO
 
 
@@ -31,6 +30,8 @@ def add_output_options(
 
 def write_json(data: dict[str, Any], out: TextIO) -> None:
     """One JSON object on ``out``."""
+    import json
+
     json.dump(data, out, indent=2, allow_nan=False)
     out.write("\n")
 
@@ -52,15 +53,9 @@ def grid_from_options(arguments: argparse.Namespace, required: bool) -> Any:
         from ..errors import InputError
 
         raise InputError("give both --start and --stop (e.g. 1MHz and 6GHz)")
-    from ..products.export import frequency_grid
-    from ..units import parse_quantity
+    from ..products.options import frequency_grid
 
-    return frequency_grid(
-        parse_quantity(arguments.start, "frequency", option="--start"),
-        parse_quantity(arguments.stop, "frequency", option="--stop"),
-        arguments.points,
-        arguments.spacing,
-    )
+    return frequency_grid(arguments.start, arguments.stop, arguments.points, arguments.spacing)
 
 
 def add_measurement_impedance_option(command: argparse.ArgumentParser) -> None:
@@ -70,15 +65,4 @@ def add_measurement_impedance_option(command: argparse.ArgumentParser) -> None:
         metavar="OHMS",
         help="impedance the device was measured in, if its file was renormalised afterwards"
         " (e.g. 50ohm); default: the device file's reference",
-    )
-
-
-def measurement_impedance(arguments: argparse.Namespace) -> float | None:
-    """The ``--measurement-impedance`` value in Ω, or None when not given."""
-    if arguments.measurement_impedance is None:
-        return None
-    from ..units import parse_quantity
-
-    return parse_quantity(
-        arguments.measurement_impedance, "resistance", option="--measurement-impedance"
     )

@@ -5,9 +5,8 @@ from __future__ import annotations
 import argparse
 from typing import Any, TextIO
 
-from ..errors import InputError
-from ..units import parse_quantity
 from .common import add_output_options, write_json
+from .outcome import ExitCode
 
 NAME = "export"
 
@@ -56,55 +55,20 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Write the file; return 0 (bad input raises and becomes exit code 2)."""
-    from ..products.export import export_circuit, frequency_grid
-    from ..units import format_frequency
+    from ..products.export import export
+    from ..products.options import frequency_grid
+    from ..rendering.export_text import verdict_line
 
-    start = parse_quantity(arguments.start, "frequency", option="--start")
-    stop = parse_quantity(arguments.stop, "frequency", option="--stop")
-    reference = parse_quantity(
-        arguments.reference_impedance, "resistance", option="--reference-impedance"
-    )
-    if not reference > 0:
-        raise InputError(f"--reference-impedance {arguments.reference_impedance!r}: give ohms > 0")
-    grid = frequency_grid(start, stop, arguments.points, arguments.spacing)
-    result = export_circuit(
+    result = export(
         arguments.circuit,
         arguments.output,
-        grid,
-        reference_impedance_ohm=reference,
-        params=parse_parameter_options(arguments.param),
+        frequency_grid(arguments.start, arguments.stop, arguments.points, arguments.spacing),
+        reference_impedance_ohm=arguments.reference_impedance,
+        params=arguments.param,
         spacing=arguments.spacing,
     )
     if arguments.json:
         write_json(result.to_dict(), out)
     elif not arguments.quiet:
-        kind = "one-port" if result.ports == 1 else "two-port"
-        print(
-            f"wrote {result.output_path}: {kind}, {result.points} points,"
-            f" {format_frequency(result.start_hz)} to {format_frequency(result.stop_hz)}"
-            f" ({result.spacing}), reference {result.reference_impedance_ohm:g} ohm",
-            file=out,
-        )
-    return 0
-
-
-def parse_parameter_options(texts: list[str]) -> dict[str, float]:
-    """``--param NAME=VALUE`` options as a dict (netlist value suffixes)."""
-    from ..circuit.values import ValueTokenError, is_name, parse_number
-
-    values: dict[str, float] = {}
-    for text in texts:
-        name, equals, value_text = text.partition("=")
-        name = name.strip()
-        if not equals or not is_name(name):
-            raise InputError(f"--param {text!r}: give NAME=VALUE, e.g. --param RL=75")
-        try:
-            value = parse_number(value_text.strip())
-        except ValueTokenError as error:
-            raise InputError(f"--param {name}: {error}") from None
-        if value is None:
-            raise InputError(
-                f"--param {text!r}: {value_text!r} is not a number (netlist suffixes: 2.2p, 5meg)"
-            )
-        values[name] = value
-    return values
+        print(verdict_line(result), file=out)
+    return int(ExitCode.HOLDS)

@@ -5,7 +5,6 @@ from __future__ import annotations
 import argparse
 from typing import Any, TextIO
 
-from ..units import parse_decibels
 from .common import add_output_options, write_json
 
 NAME = "oscillator"
@@ -49,20 +48,20 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the analysis and print it; return the verdict's exit code."""
-    from ..products.oscillator import analyse_oscillator
-    from ..products.oscillator.analysis import injection_ratio_below
+    from ..products.oscillator import oscillator
     from ..rendering.oscillator_text import render, verdict_line
     from .outcome import exit_code
 
-    below = parse_decibels(arguments.injection_below, option="--injection-below")
-    injection_ratio_below(below, "--injection-below")  # refused before any work
     target = None
     if arguments.plot is not None:
         from ..rendering.figures import image_target
 
         target, _ = image_target(arguments.plot)  # checked before any work
-    result = analyse_oscillator(
-        arguments.device, arguments.load, form=arguments.form, injection_below_db=below
+    result = oscillator(
+        arguments.device,
+        arguments.load,
+        form=arguments.form,
+        injection_below_db=arguments.injection_below,
     )
     if target is not None:
         from ..rendering.figures import save_figure

@@ -3,18 +3,10 @@
 from __future__ import annotations
 
 import argparse
-from typing import TYPE_CHECKING, Any, TextIO
+from typing import Any, TextIO
 
-from .common import (
-    add_measurement_impedance_option,
-    add_output_options,
-    measurement_impedance,
-    write_json,
-)
+from .common import add_measurement_impedance_option, add_output_options, write_json
 from .outcome import exit_code
-
-if TYPE_CHECKING:
-    pass
 
 NAME = "poles"
 
@@ -67,7 +59,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     result = poles(
         arguments.device,
         arguments.load,
-        measurement_impedance_ohm=measurement_impedance(arguments),
+        measurement_impedance_ohm=arguments.measurement_impedance,
         max_order=arguments.max_order,
         character=arguments.character,
     )
@@ -76,5 +68,5 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     elif arguments.quiet:
         print(verdict_line(result), file=out)
     else:
-        out.write(render(result, result.device_character))
+        out.write(render(result))
     return exit_code(result.verdict)

@@ -12,7 +12,6 @@ from .common import (
     add_measurement_impedance_option,
     add_output_options,
     grid_from_options,
-    measurement_impedance,
     write_json,
 )
 from .outcome import exit_code
@@ -144,7 +143,6 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     from ..rendering.stabilise_text import render, verdict_line
 
     plot_target = _plot_target(arguments)
-    sides = _check_inputs(arguments)
     families: tuple[str, ...] | None = None
     if arguments.only_at_node:
         if not arguments.at_node:
@@ -153,8 +151,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     elif arguments.family:
         families = tuple(dict.fromkeys(arguments.family))
     result = stabilise(
-        sides["device"],
-        sides["load"],
+        arguments.device,
+        arguments.load,
         margin=arguments.margin,
         band=arguments.band,
         keep=arguments.keep,
@@ -166,13 +164,19 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         distribution=arguments.distribution,
         bias_current=arguments.bias_current,
         bias_voltage=arguments.bias_voltage,
-        measurement_impedance_ohm=measurement_impedance(arguments),
-        device_dc_resistance_ohm=sides["device_dc"],
-        load_dc_resistance_ohm=sides["load_dc"],
-        gamma_uncertainty=sides["uncertainty"],
-        device_setup=sides["device_setup"],
-        load_setup=sides["load_setup"],
+        measurement_impedance_ohm=arguments.measurement_impedance,
+        device_dc_resistance_ohm=arguments.device_dc_resistance,
+        load_dc_resistance_ohm=arguments.load_dc_resistance,
+        gamma_uncertainty=arguments.gamma_uncertainty,
         frequency_hz=grid_from_options(arguments, required=False),
+        terminate=arguments.terminate,
+        terminate_impedance_ohm=arguments.terminate_impedance,
+        terminated_port=arguments.terminated_port,
+        differential_ports=arguments.differential_ports,
+        device_fixture=arguments.device_fixture,
+        device_delay_s=arguments.device_delay,
+        load_fixture=arguments.load_fixture,
+        load_delay_s=arguments.load_delay,
     )
     if plot_target is not None:
         from ..rendering.stabilise_plots import save_stabilise_plot
@@ -185,29 +189,6 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     else:
         out.write(render(result))
     return exit_code(result.verdict)
-
-
-def _check_inputs(arguments: argparse.Namespace) -> dict[str, Any]:
-    """Both sides and the DC facts, read exactly as ``oneport check`` reads them.
-
-    The check command's own helpers are used, so every option means the same here; when they
-    move, this is the one function to re-point.
-    """
-    from ..reading.preparation import PortSetup
-    from .check import _device_setup, _resistance, _time, _uncertainty
-
-    load_setup = PortSetup(
-        fixture_path=arguments.load_fixture, delay_s=_time(arguments.load_delay, "--load-delay")
-    )
-    return {
-        "device": arguments.device,
-        "load": arguments.load,
-        "device_setup": _device_setup(arguments),
-        "load_setup": load_setup,
-        "device_dc": _resistance(arguments.device_dc_resistance, "--device-dc-resistance"),
-        "load_dc": _resistance(arguments.load_dc_resistance, "--load-dc-resistance"),
-        "uncertainty": _uncertainty(arguments.gamma_uncertainty),
-    }
 
 
 def _plot_target(arguments: argparse.Namespace) -> Path | None:

@@ -6,9 +6,9 @@ import argparse
 from typing import Any, TextIO
 
 from ..errors import InputError
-from ..units import parse_quantity
-from .common import add_output_options, write_json
-from .export import parse_parameter_options
+from ..reading.files import is_netlist_path
+from .common import add_output_options, grid_from_options, write_json
+from .outcome import ExitCode
 
 NAME = "terminations"
 
@@ -55,16 +55,26 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Analyse, print, optionally plot; return 0 (bad input raises: exit code 2)."""
-    from ..analysis.terminations import analyse_terminations
+    from ..products.terminations import terminations
     from ..rendering.terminations_text import render, verdict_line
 
-    frequency = parse_quantity(arguments.at, "frequency", option="--at")
-    data = _two_port(arguments)
     if arguments.plot is not None:
-        from ..rendering.files import require_folder
+        from ..rendering.figures import image_target
 
-        require_folder(_path(arguments.plot))
-    result = analyse_terminations(data, frequency, terminated_port=arguments.terminate)
+        image_target(arguments.plot)  # checked before any work
+    netlist = is_netlist_path(arguments.device)
+    if not netlist and (arguments.start is not None or arguments.stop is not None):
+        raise InputError("--start, --stop and --param apply to netlists (.cir) only")
+    if netlist and (arguments.start is None or arguments.stop is None):
+        raise InputError(f"{arguments.device}: a netlist needs --start and --stop for its grid")
+    result = terminations(
+        arguments.device,
+        arguments.at,
+        terminated_port=arguments.terminate,
+        frequency_hz=grid_from_options(arguments, required=False),
+        params=arguments.param,
+        reference_impedance_ohm=arguments.reference_impedance,
+    )
     if arguments.plot is not None:
         from ..rendering.smith import save_termination_chart
 
@@ -75,34 +85,4 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         print(verdict_line(result), file=out)
     else:
         out.write(render(result))
-    return 0
-
-
-def _path(text: str) -> Any:
-    from pathlib import Path
-
-    return Path(text)
-
-
-def _two_port(arguments: argparse.Namespace) -> Any:
-    from ..circuit import is_circuit_path, multiport_from_circuit
-    from ..products.export import frequency_grid
-    from ..reading.touchstone import read_touchstone
-
-    if not is_circuit_path(arguments.device):
-        if arguments.start or arguments.stop or arguments.param:
-            raise InputError("--start, --stop and --param apply to netlists (.cir) only")
-        return read_touchstone(arguments.device)
-    if arguments.start is None or arguments.stop is None:
-        raise InputError(f"{arguments.device}: a netlist needs --start and --stop for its grid")
-    start = parse_quantity(arguments.start, "frequency", option="--start")
-    stop = parse_quantity(arguments.stop, "frequency", option="--stop")
-    reference = parse_quantity(
-        arguments.reference_impedance, "resistance", option="--reference-impedance"
-    )
-    if not reference > 0:
-        raise InputError(f"--reference-impedance {arguments.reference_impedance!r}: give ohms > 0")
-    grid = frequency_grid(start, stop, arguments.points, arguments.spacing)
-    return multiport_from_circuit(
-        arguments.device, grid, reference, parse_parameter_options(arguments.param)
-    )
+    return int(ExitCode.HOLDS)

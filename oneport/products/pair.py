@@ -397,7 +397,12 @@ def as_circuit(source: Any) -> Any:
 
 
 def _data_side(source: Any, setup: PortSetup | None, role: str) -> Side:
-    if isinstance(source, str | Path) and setup is not None and setup != PortSetup():
+    if setup is not None and setup != PortSetup(terminated_port=setup.terminated_port):
+        if not isinstance(source, str | Path):
+            raise InputError(
+                f"the {role}'s termination, fixture and delay options apply to a Touchstone file"
+                f" given by its path; apply them to the {role} before handing it in"
+            )
         source = prepare(source, setup, role)
     # What the reader could not confirm (no option line, ignored port-impedance comments)
     # travels on the port's record and joins the side's findings.

@@ -5,9 +5,8 @@ Rendering only: every function draws what a :class:`~oneport.analysis.result.Che
 GHz, |L| in dB and phases in degrees here and nowhere inside the package.
 
 matplotlib is imported inside the functions, never when ``oneport`` is imported. Figures are
-built as :class:`matplotlib.figure.Figure` objects without ``pyplot``, so they need no display;
-the Agg backend is selected unless the caller already imported ``pyplot`` (an interactive
-session keeps its own backend).
+built as :class:`matplotlib.figure.Figure` objects without ``pyplot``, so they need no display
+and no backend is ever selected (an interactive session keeps its own).
 
 Artists that tests and callers may look for carry a ``gid``: ``"critical-point"`` (the +1
 marker), ``"frequency-arrow"``, ``"crossing-label"``, ``"unit-circle"``, ``"loop-gain-band"``
@@ -36,6 +35,7 @@ if TYPE_CHECKING:
     from matplotlib.figure import Figure
 
     from ..analysis.result import CheckResult
+    from ..analysis.small_gain import BoundResult
 
 # A neutral palette of our own: ink for the loop, muted warm and cool tones for the rest.
 _INK = "#26323d"
@@ -54,6 +54,7 @@ _SMITH_REACTANCES = (0.2, 0.5, 1.0, 2.0, 5.0)
 _NYQUIST_MARGINS = {"left": 0.14, "right": 0.97, "top": 0.9, "bottom": 0.2}
 _SMITH_MARGINS = {"left": 0.02, "right": 0.98, "top": 0.9, "bottom": 0.12}
 _LOOP_GAIN_MARGINS = {"left": 0.1, "right": 0.74, "top": 0.9, "bottom": 0.09, "hspace": 0.15}
+_BOUND_MARGINS = {"left": 0.11, "right": 0.97, "top": 0.91, "bottom": 0.3}
 _QUICK_LOOK_MARGINS = {
     "left": 0.06,
     "right": 0.85,
@@ -637,3 +638,39 @@ def _smith_frequency_marks(
                 zorder=4,
             )
             label.set_gid("smith-frequency-label")
+
+
+def plot_bound(result: BoundResult, ax: Axes | None = None) -> Figure:
+    """The return loss a load needs for the small-gain bound, against frequency, beside the
+    stated one (``check --load-return-loss``); bands where the stated one is not enough shaded.
+
+    Drawn into ``ax`` when given, else on a new headless figure; returns the figure.
+    """
+    figure, ax = _target(ax, (7.6, 5.0), _BOUND_MARGINS)
+    frequency_ghz = result.frequency_hz / _GIGAHERTZ
+    stated = 0.0 - 20.0 * np.log10(result.reflection_bound)
+    ax.plot(
+        frequency_ghz,
+        0.0 - 20.0 * np.log10(result.allowed_reflection),
+        color=_DEVICE,
+        linewidth=1.3,
+        label="return loss needed (20·log10 |Γd|, at least 0 dB)",
+    )
+    ax.axhline(stated, color=_LOAD, linewidth=1.2, linestyle="--", label=f"stated: {stated:g} dB")
+    for index, band in enumerate(result.failing_bands):
+        ax.axvspan(
+            band.start_hz / _GIGAHERTZ,
+            band.stop_hz / _GIGAHERTZ,
+            color=_BAND,
+            alpha=0.35,
+            label="stated return loss not enough" if index == 0 else None,
+        )
+    ax.grid(True, color=_GRID, linewidth=0.6)
+    ax.set_xlabel("frequency (GHz)")
+    ax.set_ylabel(f"return loss (dB, Z0 = {format_resistance(result.reference_impedance_ohm)})")
+    _legend_below(ax, 2)
+    ax.set_title(
+        f"Small-gain bound for the load class: {result.verdict.replace('-', ' ')}",
+        fontsize="medium",
+    )
+    return figure

@@ -17,9 +17,9 @@ import math
 import re
 import textwrap
 from collections.abc import Sequence
+from typing import TYPE_CHECKING
 
 from ..analysis.result import CheckResult
-from ..analysis.small_gain import BoundResult
 from ..errors import printable
 from ..findings import Finding
 from ..units import (
@@ -29,8 +29,12 @@ from ..units import (
     format_plain,
     format_rate,
     format_resistance,
+    to_decibels,
 )
 from .formatting import format_table
+
+if TYPE_CHECKING:
+    from ..analysis.small_gain import BoundResult
 
 _HEADLINE = {
     "stable": "STABLE (small-signal)",
@@ -90,8 +94,23 @@ def render(result: CheckResult) -> str:
         if rows:
             parts += format_table(headings, rows, right=(0, 1))
         parts += [wrap(note, "  ") for note in mode_notes(result)]
-    parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
+    parts += closing_sections(
+        result.warnings,
+        result.next_steps,
+        result.premise,
+        result.cautions,
+        before_premise=_second_opinion(result),
+    )
     return "\n".join(parts) + "\n"
+
+
+def _second_opinion(result: CheckResult) -> list[str]:
+    """The fit's section of ``check --poles``, when the result carries it."""
+    if result.second_opinion is None:
+        return []
+    from .poles_text import second_opinion_lines
+
+    return second_opinion_lines(result.second_opinion)
 
 
 # --- rows shared with the HTML report ------------------------------------------------------
@@ -218,17 +237,17 @@ def margins_rows(result: CheckResult) -> list[tuple[str, str]]:
     ]
     if result.verdict != "stable":
         return rows
-    if margins.gain_margin_db is not None and margins.gain_margin_frequency_hz is not None:
+    if margins.gain_margin is not None and margins.gain_margin_frequency_hz is not None:
         gain = (
-            f"{margins.gain_margin_db:.2f} dB at"
+            f"{to_decibels(margins.gain_margin):.2f} dB at"
             f" {format_frequency(margins.gain_margin_frequency_hz)}"
         )
     else:
         gain = "none: L does not cross the real axis between 0 and +1"
     rows.append(("gain margin", gain))
-    if margins.phase_margin_deg is not None and margins.phase_margin_frequency_hz is not None:
+    if margins.phase_margin_rad is not None and margins.phase_margin_frequency_hz is not None:
         phase = (
-            f"{margins.phase_margin_deg:.1f}° at"
+            f"{math.degrees(margins.phase_margin_rad):.1f}° at"
             f" {format_frequency(margins.phase_margin_frequency_hz)}"
         )
     else:
@@ -343,25 +362,41 @@ def mode_notes(result: CheckResult) -> list[str]:
 # --- the return-loss bound -----------------------------------------------------------------
 
 
-def render_bound(result: BoundResult) -> str:
-    """The text report of a worst-case-load (return-loss bound) check."""
+def render_result(result: CheckResult | BoundResult) -> str:
+    """The text report of what ``check`` returned: a pair's check, or a load class's bound."""
+    return render(result) if isinstance(result, CheckResult) else render_bound(result)
+
+
+def summary_line(result: CheckResult | BoundResult) -> str:
+    """The verdict line of what ``check`` returned (``--quiet``)."""
+    return verdict_line(result) if isinstance(result, CheckResult) else bound_line(result)
+
+
+def bound_line(result: BoundResult) -> str:
+    """One line: the load class's verdict, its return loss, Z0 and the band."""
     low, high = result.frequency_range_hz
     headline = {
         "guaranteed": "GUARANTEED STABLE (small-signal) for the load class",
         "not-guaranteed": "NOT GUARANTEED for the load class",
         "inconclusive": "INCONCLUSIVE: the data cannot decide",
     }[result.verdict]
+    return_loss = 0.0 - to_decibels(result.reflection_bound)
+    return (
+        f"{headline}: return loss ≥ {format_plain(return_loss)} dB in"
+        f" {format_resistance(result.reference_impedance_ohm)};"
+        f" {format_frequency(low)}-{format_frequency(high)}"
+    )
+
+
+def render_bound(result: BoundResult) -> str:
+    """The text report of a worst-case-load (return-loss bound) check."""
     z0 = format_resistance(result.reference_impedance_ohm)
-    parts = [
-        f"{headline}: return loss ≥ {format_plain(result.load_return_loss_db)} dB in {z0};"
-        f" {format_frequency(low)}-{format_frequency(high)}",
-        "",
-    ]
+    parts = [bound_line(result), ""]
     parts += [wrap(reason, "  ") for reason in result.reasons]
     parts += [
         "",
         f"Required load return loss (Z0 = {z0})",
-        f"  worst: {result.worst_required_return_loss_db:.2f} dB at"
+        f"  worst: {0.0 - to_decibels(result.smallest_allowed_reflection):.2f} dB at"
         f" {format_frequency(result.worst_frequency_hz)}",
     ]
     if result.failing_bands:
@@ -385,13 +420,18 @@ def closing_sections(
     premise: str | None = None,
     cautions: Sequence[str] = (),
     limits: Sequence[str] = (),
+    *,
+    before_premise: Sequence[str] = (),
 ) -> list[str]:
-    """The sections every report ends with: warnings, next steps, premise, limits, cautions."""
+    """The sections every report ends with: warnings, next steps, premise, limits, cautions
+    (``before_premise``: a product's own section just before the premise)."""
     parts: list[str] = []
     if warnings:
         parts += ["", "Warnings", *[wrap(w.message, "  - ") for w in warnings]]
     if next_steps:
         parts += ["", "What to do next", *[wrap(step, "  - ") for step in next_steps]]
+    if before_premise:
+        parts += ["", *before_premise]
     if premise:
         parts += ["", "Premise", wrap(premise, "  ")]
     if limits:

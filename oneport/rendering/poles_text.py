@@ -36,8 +36,10 @@ def verdict_line(result: PoleZeroResult) -> str:
     return f"{_HEADLINE[result.verdict]}{extra}; {band}{ohm}"
 
 
-def render(result: PoleZeroResult, character: DeviceCharacter | None = None) -> str:
-    """The full text report: verdict first, the modes, the fit, cautions last."""
+def render(result: PoleZeroResult) -> str:
+    """The full text report: verdict first, the modes, the fit, the device's character when the
+    result carries it, cautions last."""
+    character = result.device_character
     parts = [verdict_line(result), ""]
     parts += [wrap(reason, "  ") for reason in result.reasons]
     parts += [
@@ -55,11 +57,11 @@ def render(result: PoleZeroResult, character: DeviceCharacter | None = None) -> 
 
 
 def second_opinion_lines(result: PoleZeroResult) -> list[str]:
-    """The fit's section in ``oneport check --poles``: verdict, modes, fit, disagreements."""
+    """The fit's section in ``oneport check --poles``: verdict, modes, fit (a disagreement with
+    the count is among the check's own warnings)."""
     rows = ["Second opinion: pole-zero fit of 1 - L", "  " + verdict_line(result)]
     rows += _table(result.natural_frequencies)
     rows += _fit(result)
-    rows += [wrap(w.message, "  ") for w in result.warnings if w.code == "pole-count-disagrees"]
     return rows
 
 

@@ -11,7 +11,6 @@ Artists carry a ``gid`` for tests and callers: ``"passive-boundary"`` (|ΓT| = 1
 
 from __future__ import annotations
 
-import sys
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -31,16 +30,18 @@ _MUTED = "#8b949a"
 _VALUES = (0.2, 0.5, 1.0, 2.0, 5.0)
 
 
-def termination_figure(result: TerminationsResult) -> Figure:
-    """A Smith chart of the ΓT plane with the negative-resistance terminations shaded."""
-    import matplotlib
+def termination_figure(result: TerminationsResult, ax: Axes | None = None) -> Figure:
+    """A Smith chart of the ΓT plane with the negative-resistance terminations shaded.
 
-    if "matplotlib.pyplot" not in sys.modules:
-        matplotlib.use("Agg")
-    from matplotlib.figure import Figure
+    Drawn into ``ax`` when given, else on a new headless figure; returns the figure.
+    """
+    if ax is None:
+        from .figures import new_figure
 
-    figure = Figure(figsize=(6.4, 6.8), layout="constrained")
-    ax = figure.add_subplot()
+        figure = new_figure((6.4, 6.8))
+        ax = figure.add_subplot()
+    else:
+        figure = ax.figure  # type: ignore[assignment]
     clip = _circle(1.0, fill=False, linewidth=0.0)
     ax.add_patch(clip)
     _shade_negative(ax, result, clip)

@@ -18,7 +18,7 @@ from ..products.stabilise.result import (
 )
 from ..products.stabilise.scan import Range
 from ..products.stabilise.wording import LETTERS, format_element, format_value, topology_words
-from ..units import format_frequency, format_plain, format_rate, format_resistance
+from ..units import format_frequency, format_plain, format_rate, format_resistance, to_decibels
 from .check_text import closing_sections, wrap
 
 _HEADLINE = {
@@ -182,14 +182,14 @@ def _margins(margins: MarginsAfter, verdict: str) -> str:
         text += f" at {format_frequency(margins.min_distance_frequency_hz)}"
     if verdict != "stable":
         return text + where + " (no gain or phase margin: the changed pair is not stable)"
-    gain = margins.gain_margin_db
+    gain = margins.gain_margin
     text += (
         "; gain margin none: L does not cross the real axis between 0 and +1"
         if gain is None or not math.isfinite(gain)
-        else f"; gain margin {gain:.1f} dB"
+        else f"; gain margin {to_decibels(gain):.1f} dB"
     )
-    if margins.phase_margin_deg is not None:
-        text += f"; phase margin {margins.phase_margin_deg:.0f}°"
+    if margins.phase_margin_rad is not None:
+        text += f"; phase margin {math.degrees(margins.phase_margin_rad):.0f}°"
     return text + where
 
 
@@ -197,19 +197,22 @@ def _gain_cost(cost: GainCost) -> str:
     """Before and after with as many decimals as it takes for a loss to show in them."""
     what = "reflection gain |Γ|²" if cost.kind == "reflection-gain" else "loop gain |L|"
     low, high = cost.band_hz
+    before = (to_decibels(cost.before[0]), to_decibels(cost.before[1]))
+    after = (to_decibels(cost.after[0]), to_decibels(cost.after[1]))
+    largest_loss_db = to_decibels(cost.largest_loss)
     decimals = 1
-    while decimals < 3 and _span(cost.before_db, decimals) == _span(cost.after_db, decimals):
+    while decimals < 3 and _span(before, decimals) == _span(after, decimals):
         decimals += 1
     band = f"{what} in {format_frequency(low)}-{format_frequency(high)}"
-    if round(cost.largest_loss_db, decimals) <= 0:
+    if round(largest_loss_db, decimals) <= 0:
         return (
-            f"{band}: {_span(cost.before_db, decimals)} dB before and after; no loss larger"
+            f"{band}: {_span(before, decimals)} dB before and after; no loss larger"
             f" than {0.5 * 10.0**-decimals:g} dB"
         )
     return (
-        f"{band}: {_span(cost.before_db, decimals)} dB before,"
-        f" {_span(cost.after_db, decimals)} dB after; at most"
-        f" {cost.largest_loss_db:.{max(decimals, 2)}f} dB lost"
+        f"{band}: {_span(before, decimals)} dB before,"
+        f" {_span(after, decimals)} dB after; at most"
+        f" {largest_loss_db:.{max(decimals, 2)}f} dB lost"
         f" (at {format_frequency(cost.largest_loss_frequency_hz)})"
     )
 
@@ -224,12 +227,12 @@ def _wanted(mode: WantedMode) -> str:
     crossing = mode.crossing_frequency_hz or 0.0
     shift = (crossing - mode.keep_hz) / mode.keep_hz
     parts = [f"starts: crossing at {format_frequency(crossing)} ({shift:+.1%} from the wanted)"]
-    if mode.loop_gain_at_crossing_db is not None:
-        parts[0] += f" with |L| = {mode.loop_gain_at_crossing_db:.2f} dB"
-    if mode.growth_rate_per_s is not None and mode.natural_frequency_hz is not None:
+    if mode.loop_gain_at_crossing is not None:
+        parts[0] += f" with |L| = {to_decibels(mode.loop_gain_at_crossing):.2f} dB"
+    if mode.sigma_per_s is not None and mode.natural_frequency_hz is not None:
         parts.append(
             f"natural frequency {format_frequency(mode.natural_frequency_hz)}, growth rate"
-            f" {format_rate(mode.growth_rate_per_s)} (pole-zero fit)"
+            f" {format_rate(mode.sigma_per_s)} (pole-zero fit)"
         )
     else:
         parts.append("the pole-zero fit does not confirm its growth rate")
@@ -281,8 +284,8 @@ def _margin(result: StabiliseResult) -> str:
     parts = []
     if requirement.min_distance is not None:
         parts.append(f"|1 - L| ≥ {requirement.min_distance:g}")
-    if requirement.gain_margin_db is not None:
-        parts.append(f"gain margin ≥ {requirement.gain_margin_db:g} dB")
+    if requirement.gain_margin is not None:
+        parts.append(f"gain margin ≥ {to_decibels(requirement.gain_margin):g} dB")
     where = " away from the wanted mode" if requirement.keep_hz is not None else ""
     return " and ".join(parts) + where
 

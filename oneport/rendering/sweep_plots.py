@@ -14,7 +14,7 @@ from typing import Any
 import numpy as np
 
 from ..analysis.variants import STABLE
-from ..products.sweep.runner import SweepResult
+from ..products.sweep.runner import SweepRun
 from ..units import format_resistance
 
 #: Display scale of each SI unit on an axis: (factor to divide by, label unit).
@@ -31,15 +31,16 @@ _STABLE = "#4a7f8c"
 _NOT_STABLE = "#b5533c"
 
 
-def plot_sweep(result: SweepResult, ax: Any = None, summary: Any = None) -> Any:
+def plot_sweep(result: SweepRun, ax: Any = None, summary: Any = None) -> Any:
     """Stability map for a two-parameter grid, otherwise a histogram of min |1 − L|.
 
     ``summary`` (:func:`oneport.products.sweep.summary.summarise`) supplies the parameters'
     units and the nominal design of a Monte Carlo run; without it the axes show SI values.
+    Drawn into ``ax`` when given, else on a new headless figure; returns the figure.
     """
-    from .figures import new_figure
-
     if ax is None:
+        from .figures import new_figure
+
         figure = new_figure((7.8, 5.8))
         ax = figure.add_subplot()
     else:
@@ -63,9 +64,7 @@ def axis_label(name: str, unit: str) -> tuple[str, float]:
     return f"{name} ({scale[1]})", scale[0]
 
 
-def _map(
-    result: SweepResult, names: list[str], units: dict[str, str], ax: Any, figure: Any
-) -> None:
+def _map(result: SweepRun, names: list[str], units: dict[str, str], ax: Any, figure: Any) -> None:
     shape = result.plan.shape
     x_label, x_scale = axis_label(names[1], units.get(names[1], ""))
     y_label, y_scale = axis_label(names[0], units.get(names[0], ""))
@@ -128,7 +127,7 @@ def _linear(ax: Any) -> bool:
     return bool(ax.get_xscale() == "linear" and ax.get_yscale() == "linear")
 
 
-def _histogram(result: SweepResult, ax: Any, summary: Any) -> None:
+def _histogram(result: SweepRun, ax: Any, summary: Any) -> None:
     margin = result.table["min_distance"]
     stable = result.table["verdict_code"] == STABLE
     bins = np.linspace(0.0, float(margin.max()) or 1.0, 41)

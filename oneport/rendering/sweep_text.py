@@ -20,32 +20,32 @@ _HEADLINE = {
 }
 
 
-def verdict_line(result: Any, summary: Any) -> str:
-    """One line: the verdict and the shares of each verdict word."""
+def verdict_line(result: Any) -> str:
+    """One line: the verdict and the shares of each verdict word (``--quiet``)."""
+    summary = result.summary
     return (
         f"{_HEADLINE[summary.verdict]}: {summary.stable_fraction:.1%} stable,"
         f" {summary.unstable_fraction:.1%} unstable, {summary.inconclusive_fraction:.1%}"
         f" inconclusive of {summary.completed} variants;"
-        f" Z0 = {format_resistance(result.reference_impedance_ohm)}"
+        f" Z0 = {format_resistance(result.run.reference_impedance_ohm)}"
     )
 
 
-def render(
-    result: Any, summary: Any, table_path: str | None, quiet: bool, warnings: list[Any]
-) -> str:
-    """The summary: verdict, reasons, what was varied, what was found, cautions."""
-    line = verdict_line(result, summary)
-    if quiet:
-        return line + "\n"
+def render(result: Any) -> str:
+    """The text report of a :class:`~oneport.products.sweep.summary.SweepResult`: verdict,
+    reasons, what was varied, what was found, cautions."""
+    summary, table_path, warnings = result.summary, result.table_path, list(result.warnings)
+    run = result.run
+    line = verdict_line(result)
     units = summary.units
     rows = [line, ""]
     rows += [wrap(reason, "  ") for reason in summary.reasons]
     rows += ["", "Plan"]
     rows.append(
-        f"  band {format_frequency(result.frequency_hz[0])}-"
-        f"{format_frequency(result.frequency_hz[-1])}, {result.frequency_hz.size} points"
+        f"  band {format_frequency(run.frequency_hz[0])}-"
+        f"{format_frequency(run.frequency_hz[-1])}, {run.frequency_hz.size} points"
     )
-    for plan in result.plan.parameters:
+    for plan in run.plan.parameters:
         rows.append(wrap(f"{plan.name}: {parameter_words(plan, units.get(plan.name, ''))}", "  "))
     rows += ["", "Found"]
     if summary.interrupted:
@@ -59,7 +59,7 @@ def render(
         rows.append("  no variant is stable")
     if summary.worst_row is not None:
         values = values_words(
-            {name: float(result.table[name][summary.worst_row]) for name in result.plan.values},
+            {name: float(run.table[name][summary.worst_row]) for name in run.plan.values},
             units,
         )
         rows.append(
@@ -71,7 +71,5 @@ def render(
         )
     if table_path:
         rows.append(f"  table: {table_path}")
-    from ..cautions import CAUTIONS
-
-    rows += closing_sections(warnings, (), None, CAUTIONS)
+    rows += closing_sections(warnings, (), None, result.cautions)
     return "\n".join(rows) + "\n"

@@ -19,7 +19,7 @@ from typing import Any
 import numpy as np
 
 from ...errors import InputError
-from ...units import parse_decibels, parse_quantity
+from ...units import parse_decibels, parse_quantity, to_decibels
 from . import adapter
 
 #: A wanted mode is "the same mode" when its crossing lies within this fraction of its
@@ -38,8 +38,9 @@ class Requirement:
     ----------
     min_distance : float or None
         Required minimum |1 − L| (a linear distance from +1).
-    gain_margin_db : float or None
-        Required gain margin, dB.
+    gain_margin : float or None
+        Required gain margin: the factor |L| may still grow by where L crosses (0, 1)
+        (linear; ``"6dB"`` is 2.0).
     keep_hz : float or None
         The wanted mode's frequency, Hz (None: the goal is "stable").
     band_hz : tuple of float or None
@@ -49,7 +50,7 @@ class Requirement:
     """
 
     min_distance: float | None
-    gain_margin_db: float | None
+    gain_margin: float | None
     keep_hz: float | None
     band_hz: tuple[float, float] | None
     band_stated: bool
@@ -66,14 +67,15 @@ class Requirement:
             "keep_frequency_hz": self.keep_hz,
             "keep_window": KEEP_WINDOW if self.keep else None,
             "min_distance_to_critical_point": self.min_distance,
-            "gain_margin_db": self.gain_margin_db,
+            "gain_margin_db": None if self.gain_margin is None else to_decibels(self.gain_margin),
             "band_hz": list(self.band_hz) if self.band_hz is not None else None,
             "band_stated": self.band_stated,
         }
 
 
 def parse_margins(margin: Any) -> tuple[float | None, float | None]:
-    """``0.2`` (minimum |1 − L|), ``"6dB"`` (gain margin), or several: (distance, dB).
+    """``0.2`` (minimum |1 − L|), ``"6dB"`` (gain margin), or several: (distance, gain margin
+    as a linear factor).
 
     Without any, the minimum |1 − L| is :data:`DEFAULT_MIN_DISTANCE`.
     """
@@ -87,7 +89,8 @@ def parse_margins(margin: Any) -> tuple[float | None, float | None]:
                 value = parse_decibels(text, option="--margin")
                 if not value > 0:
                     raise InputError(f"--margin {text!r}: a gain margin above 0 dB is needed")
-                decibels = value if decibels is None else max(decibels, value)
+                factor = 10.0 ** (value / 20.0)
+                decibels = factor if decibels is None else max(decibels, factor)
                 continue
             try:
                 value = float(text)
@@ -175,7 +178,8 @@ def distance_outside(loop_gain: np.ndarray, region: np.ndarray) -> np.ndarray:
 def gain_margin_outside(
     frequency_hz: np.ndarray, loop_gain: np.ndarray, region: np.ndarray | None
 ) -> float:
-    """The check's gain margin (dB) of one loop gain, over the stretches outside ``region``.
+    """The check's gain margin (a linear factor) of one loop gain, over the stretches outside
+    ``region``.
 
     ``inf`` when L does not cross the positive real axis inside (0, 1) there.
     """
@@ -185,19 +189,19 @@ def gain_margin_outside(
     for start, stop in zip(edges[::2], edges[1::2], strict=True):
         if stop - start < 2:
             continue
-        found = adapter.margins(frequency_hz[start:stop], loop_gain[start:stop]).gain_margin_db
+        found = adapter.margins(frequency_hz[start:stop], loop_gain[start:stop]).gain_margin
         if found is not None:
             smallest = min(smallest, found)
     return float(smallest)
 
 
 def margin_met(
-    requirement: Requirement, distance: np.ndarray, gain_margin_db: np.ndarray
+    requirement: Requirement, distance: np.ndarray, gain_margin: np.ndarray
 ) -> np.ndarray:
     """Per variant: both asked-for margins reached."""
     met = np.ones(np.shape(distance), dtype=bool)
     if requirement.min_distance is not None:
         met &= distance >= requirement.min_distance
-    if requirement.gain_margin_db is not None:
-        met &= gain_margin_db >= requirement.gain_margin_db
+    if requirement.gain_margin is not None:
+        met &= gain_margin >= requirement.gain_margin
     return met

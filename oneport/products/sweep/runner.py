@@ -33,7 +33,7 @@ CHUNK_SAMPLES = 1_000_000
 
 
 @dataclass(frozen=True)
-class SweepResult:
+class SweepRun:
     """The per-variant table (column name → array, one row per variant) and how it ended."""
 
     plan: SweepPlan
@@ -117,7 +117,7 @@ def run_sweep(
     workers: int | None = None,
     threads: int | None = None,
     progress: Callable[[int], Any] | None = None,
-) -> SweepResult:
+) -> SweepRun:
     """Run every chunk of ``plan``; ``progress(n)`` is called with each finished chunk's size.
 
     ``scheduler`` (``tcp://host:port``) sends chunks to a running Dask cluster; ``workers``
@@ -156,7 +156,7 @@ def run_sweep(
         {name: np.concatenate([part[name] for part in parts]) for name in parts[0]} if parts else {}
     )
     completed = bounds[done - 1][1] if done else 0
-    return SweepResult(plan, frequency_hz, reference_impedance_ohm, table, completed, interrupted)
+    return SweepRun(plan, frequency_hz, reference_impedance_ohm, table, completed, interrupted)
 
 
 def _execute(

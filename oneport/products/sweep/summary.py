@@ -4,24 +4,30 @@ nominal design, in words and in the ``oneport.sweep/2`` JSON object.
 Every parameter carries its SI unit, found from the netlist elements that use it (an
 inductance in H, a resistance in ohm, …); the JSON keys name it (``start_h``, ``value_ohm``)
 and the words read it in engineering notation (``0.5 nH``). The verdict words are the
-check's: ``stable``, ``unstable``, ``inconclusive``, for the run and for each row.
+check's: ``stable``, ``unstable``, ``inconclusive``, for the run and for each row. The sweep's
+frozen result, :class:`SweepResult`, lives here too: its ``to_dict()`` is the command's JSON.
 """
 
 from __future__ import annotations
 
 from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
 from ...analysis.variants import INCONCLUSIVE, STABLE, UNSTABLE, VERDICT_CODES
 from ...cautions import CAUTIONS
+from ...display import Displayed
+from ...findings import Finding
 from ...units import format_count, format_frequency, format_plain, format_value, to_decibels
 from ..parameters import key_suffix, value_record
 from ..parameters import parameter_units as units_of
 from .plan import ParameterPlan
-from .runner import SweepResult, run_chunk
+from .runner import SweepRun, run_chunk
+
+if TYPE_CHECKING:
+    from matplotlib.figure import Figure
 
 SWEEP_SCHEMA = "oneport.sweep/2"
 #: What the device-list column counts.
@@ -65,7 +71,7 @@ def parameter_units(source: Any) -> dict[str, str]:
     return units_of([getattr(side, "circuit", None) for side in sides])
 
 
-def summarise(result: SweepResult, source: Any = None, dc_sign: int | None = None) -> SweepSummary:
+def summarise(result: SweepRun, source: Any = None, dc_sign: int | None = None) -> SweepSummary:
     """Fractions, the stable variants' parameter bounds, the worst variant with its reason, the
     parameters' units and, for a Monte Carlo run, the nominal design judged (``source`` is the
     sweep's variant source; without it units are unknown and the nominal is not judged)."""
@@ -119,7 +125,7 @@ def summarise(result: SweepResult, source: Any = None, dc_sign: int | None = Non
     return _with_reasons(summary, result)
 
 
-def _nominal(result: SweepResult, source: Any, dc_sign: int | None) -> Nominal | None:
+def _nominal(result: SweepRun, source: Any, dc_sign: int | None) -> Nominal | None:
     """The Monte Carlo run's nominal design, judged by the one judgement (one more row)."""
     if result.plan.kind != "monte-carlo" or source is None:
         return None
@@ -203,7 +209,7 @@ def _device_index_name() -> str:
     return DEVICE_INDEX
 
 
-def _with_reasons(summary: SweepSummary, result: SweepResult) -> SweepSummary:
+def _with_reasons(summary: SweepSummary, result: SweepRun) -> SweepSummary:
     """The verdict's reasons: how many variants are what, the nominal design, interruption."""
     from dataclasses import replace
 
@@ -244,10 +250,67 @@ def _with_reasons(summary: SweepSummary, result: SweepResult) -> SweepSummary:
     return replace(summary, reasons=tuple(reasons))
 
 
+@dataclass(frozen=True, repr=False)
+class SweepResult(Displayed):
+    """Everything ``oneport sweep`` found, frozen: the run (plan, table, how it ended), its
+    summary, what was read, the warnings, and the table file written (if any).
+
+    Attributes
+    ----------
+    run : SweepRun
+        The plan, the grid, the per-variant table (column → array) and how it ended.
+    summary : SweepSummary
+        Verdict, fractions, the stable variants' bounds, the worst variant and why.
+    inputs : tuple of dict
+        What was read, per device file and the load (the JSON's ``inputs``).
+    warnings : tuple of Finding
+    table_path : str or None
+        Where the table was written (``output=``).
+    """
+
+    run: SweepRun = field(repr=False)
+    summary: SweepSummary
+    inputs: tuple[dict[str, Any], ...]
+    warnings: tuple[Finding, ...]
+    table_path: str | None = None
+    cautions: tuple[str, ...] = CAUTIONS
+
+    @property
+    def verdict(self) -> str:
+        """``unstable`` if any variant is, ``stable`` if all are, else ``inconclusive``."""
+        return self.summary.verdict
+
+    @property
+    def table(self) -> dict[str, np.ndarray]:
+        """The per-variant table: parameter and result columns, one row per variant."""
+        return self.run.table
+
+    @property
+    def interrupted(self) -> bool:
+        """True when the run was stopped before every chunk finished."""
+        return self.run.interrupted
+
+    def plot(self, ax: Any = None) -> Figure:
+        """A stability map over two swept parameters, else a histogram of min |1 − L|.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ...rendering.sweep_plots import plot_sweep
+
+        figure: Figure = plot_sweep(self.run, ax, summary=self.summary)
+        return figure
+
+    def to_dict(self) -> dict[str, Any]:
+        """The ``oneport.sweep/2`` JSON object (docs/sweep.md)."""
+        data = summary_dict(self.run, self.summary, list(self.inputs), self.table_path)
+        data["warnings"] = [finding.to_dict() for finding in self.warnings]
+        return data
+
+
 def summary_dict(
-    result: SweepResult, summary: SweepSummary, inputs: list[dict[str, Any]], table_path: str | None
+    result: SweepRun, summary: SweepSummary, inputs: list[dict[str, Any]], table_path: str | None
 ) -> dict[str, Any]:
-    """The ``oneport.sweep/2`` JSON object."""
+    """The ``oneport.sweep/2`` JSON object of a run (warnings left empty)."""
     units = summary.units
     worst = None
     if summary.worst_row is not None:
