@@ -247,10 +247,14 @@ def test_legends_sit_outside_the_data_areas(oscillating, draw):
     _drawn(figure)
     legends = _with_gid(figure, "legend")
     assert legends
+    page = figure.bbox
     for legend in legends:
         box = legend.get_window_extent()
         for ax in figure.axes:
             assert _overlap(box, ax.get_window_extent()) == 0.0, (draw, ax.get_title())
+        # and on the page: a legend cut at the figure's edge loses its numbers' units
+        assert page.x0 <= box.x0 and box.x1 <= page.x1, (draw, "legend cut at the side")
+        assert page.y0 <= box.y0 and box.y1 <= page.y1, (draw, "legend cut at the top or bottom")
 
 
 def test_sweep_map_names_its_axes_with_units_and_the_boundary_stands_out(tmp_path):

@@ -53,11 +53,11 @@ _SMITH_REACTANCES = (0.2, 0.5, 1.0, 2.0, 5.0)
 # several times quicker to draw than matplotlib's constrained layout.
 _NYQUIST_MARGINS = {"left": 0.14, "right": 0.97, "top": 0.9, "bottom": 0.2}
 _SMITH_MARGINS = {"left": 0.02, "right": 0.98, "top": 0.9, "bottom": 0.12}
-_LOOP_GAIN_MARGINS = {"left": 0.1, "right": 0.74, "top": 0.9, "bottom": 0.09, "hspace": 0.15}
+_LOOP_GAIN_MARGINS = {"left": 0.1, "right": 0.7, "top": 0.9, "bottom": 0.09, "hspace": 0.15}
 _BOUND_MARGINS = {"left": 0.11, "right": 0.97, "top": 0.91, "bottom": 0.3}
 _QUICK_LOOK_MARGINS = {
     "left": 0.06,
-    "right": 0.85,
+    "right": 0.79,
     "top": 0.9,
     "bottom": 0.19,
     "wspace": 0.22,
