@@ -87,6 +87,8 @@ def main(
     arguments = None
     try:
         arguments = parser.parse_args(argv)
+        # The words as typed, for reports that record their command line.
+        arguments.argv = list(sys.argv[1:] if argv is None else argv)
         if arguments.version:
             from . import __version__
 

@@ -154,7 +154,7 @@ def test_nyquist_with_the_load_decides():
 def test_json_form():
     result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=10.0)
     data = json.loads(json.dumps(result.to_dict(include_arrays=True), allow_nan=False))
-    assert data["schema"] == "oneport.amplifier/2"
+    assert data["schema"] == "oneport.amplifier/3"
     assert data["verdict"] == "not-guaranteed"
     assert data["gain"]["reference_impedance_ohm"] == Z0
     assert data["gain"]["bandwidth_3db"]["bandwidth_hz"] == pytest.approx(

@@ -162,13 +162,13 @@ def test_a_stable_verdict_states_the_resolution_where_the_device_has_gain():
     result = oneport.check(EXAMPLES / "stable" / "device.s1p", _load_file("stable"))
     assert result.verdict == "stable"
     assert result.hidden_resonances == ()  # its measurement noise passes for no feature
-    (sentence,) = [r for r in result.reasons if "resolves a loaded Q" in r]
+    (sentence,) = [r for r in result.reasons if "resolves loaded resonances up to Q =" in r]
     # The load's 801-point linear grid (8.12 MHz steps) at its coarsest point inside the band
     # where the demo diode has gain (up to 4.3 GHz): f/(2Δf) at its lowest interval there.
     load = read_one_port(_load_file("stable"))
     step = load.frequency_hz[1] - load.frequency_hz[0]
     lowest = 0.5 * (load.frequency_hz[0] + load.frequency_hz[1]) / (2 * step)
-    assert f"{lowest:.2g}" in sentence
+    assert f"Q = {lowest:.2g}" in sentence
 
 
 # --- netlist pairs: numpy.roots, the joined circuit's eigenvalues, P ------------------------------

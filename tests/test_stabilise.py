@@ -354,7 +354,7 @@ def test_result_json_is_the_schema(shipped):
 
     data = shipped["oscillates"].to_dict()
     text = json.dumps(data, allow_nan=False)  # no NaN or infinity anywhere
-    assert json.loads(text)["schema"] == "oneport.stabilise/1"
+    assert json.loads(text)["schema"] == "oneport.stabilise/2"
     for key in ("verdict", "reasons", "warnings", "cautions", "inputs", "suggestions"):
         assert key in data
     units = {"resistance_ohm", "capacitance_f", "inductance_h"}

@@ -31,7 +31,7 @@ from ..units import format_frequency, to_decibels
 from .result import CheckResult
 from .small_gain import EdgeBound, SmallGainBound, bound_premise, bound_words, small_gain_bound
 
-AMPLIFIER_SCHEMA = "oneport.amplifier/2"
+AMPLIFIER_SCHEMA = "oneport.amplifier/3"
 VERDICTS = ("guaranteed", "not-guaranteed", "stable", "unstable", "inconclusive")
 DEFAULT_GAIN_THRESHOLD_DB = 10.0
 #: The bandwidth is where the gain stays within this many dB of its peak.
@@ -156,7 +156,7 @@ class AmplifierResult(Displayed):
         return plot_amplifier(self, ax)
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
-        """The ``oneport.amplifier/2`` JSON object (docs/json-amplifier.md)."""
+        """The ``oneport.amplifier/3`` JSON object (docs/json-amplifier.md)."""
         z0 = self.reference_impedance_ohm
         data: dict[str, Any] = {
             "schema": AMPLIFIER_SCHEMA,

@@ -203,8 +203,9 @@ def bound_words(
         return (
             [
                 f"NOT GUARANTEED: the small-gain bound fails for {what}: at"
-                f" {format_frequency(bound.worst_frequency_hz)} |gamma_d|*rho ="
-                f" {bound.worst_loop_gain:.3g}, so some such load could make the device oscillate"
+                f" {format_frequency(bound.worst_frequency_hz)} |Γd|·ρ ="
+                f" {bound.worst_loop_gain:.3g} (ρ: the largest |ΓL| the class allows), so some"
+                " such load could make the device oscillate"
                 f" (not necessarily the one you build). It needs at least {need} (in {z0:g} ohm).",
             ],
             [
@@ -220,7 +221,7 @@ def bound_words(
         return (
             [
                 f"The small-gain bound holds for {what} on the data, but not by more than their"
-                f" scatter and the stated |gamma| errors at {listed} (margin"
+                f" scatter and the stated |Γ| errors at {listed} (margin"
                 f" {to_decibels(bound.margin):+.2f} dB): the guarantee cannot be given.",
                 *[edge.note for edge in bound.edges if not edge.founded],
             ],
@@ -233,9 +234,9 @@ def bound_words(
         [
             f"GUARANTEED: {what} keeps the loop gain below 1 at every frequency, by"
             f" {to_decibels(bound.margin):.2f} dB beyond the data's scatter and the stated errors"
-            " (worst"
-            f" |gamma_d|*rho = {bound.worst_loop_gain:.3g} at"
-            f" {format_frequency(bound.worst_frequency_hz)}): small-signal stable into all of"
+            f" (worst |Γd|·ρ = {bound.worst_loop_gain:.3g} at"
+            f" {format_frequency(bound.worst_frequency_hz)}, ρ being the largest |ΓL| the class"
+            " allows): small-signal stable into all of"
             " them. The guarantee rests on the device being stable in its measurement impedance"
             " and on the bound holding beyond both sweep edges, as it does at them.",
         ],

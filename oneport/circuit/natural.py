@@ -81,7 +81,7 @@ def require_lumped(circuit: Circuit) -> None:
     if refused:
         raise InputError(
             f"{circuit.source}: natural frequencies need a lumped circuit with polynomial"
-            f" equations; {', '.join(refused)} (lines, blocks, q= loss) have none: use rser="
+            f" equations; {', '.join(refused)} (lines, blocks, q= loss) have none: use esr="
             " for loss"
         )
 

@@ -159,6 +159,6 @@ def _pictures(result: Any, arguments: argparse.Namespace) -> None:
 
         save_plots(result, arguments.plot)
     if arguments.report:
-        from ..rendering.report import write_report
+        from ..rendering.report import run_record, write_report
 
-        write_report(result, arguments.report)
+        write_report(result, arguments.report, run=run_record(getattr(arguments, "argv", None)))

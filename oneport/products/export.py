@@ -3,7 +3,7 @@
 :func:`export` (``oneport.export``) evaluates a netlist on a grid
 (:func:`~oneport.products.options.frequency_grid`) and writes ``.s1p`` (one port) or ``.s2p``
 (two ports); the frozen :class:`ExportResult` says what was written (JSON schema
-``oneport.export/1``, docs/netlist.md). Nothing here prints.
+``oneport.export/2``, docs/netlist.md). Nothing here prints.
 """
 
 from __future__ import annotations
@@ -23,8 +23,9 @@ from ..display import Displayed
 from ..errors import InputError
 from ..reading.files import read_user_bytes
 from .options import frequency_grid
+from .parameters import parameter_units
 
-EXPORT_SCHEMA = "oneport.export/1"
+EXPORT_SCHEMA = "oneport.export/2"
 
 __all__ = ["EXPORT_SCHEMA", "ExportResult", "export", "export_circuit", "frequency_grid"]
 
@@ -49,6 +50,8 @@ class ExportResult(Displayed):
         Z0 of the written S-parameters, Ω.
     parameters : dict of str to float
         Every parameter's value as used (netlist defaults with the overrides applied).
+    parameter_units : dict of str to str
+        Each parameter's SI unit symbol, from the elements that use it (``""``: a number).
     frequency_hz, s_parameters : ndarray
         What was written: the grid, Hz, and S, shape (ports, ports, points), in
         ``reference_impedance_ohm``.
@@ -66,6 +69,7 @@ class ExportResult(Displayed):
     parameters: dict[str, float]
     warnings: tuple[dict[str, str], ...] = ()
     cautions: tuple[str, ...] = field(default=CAUTIONS)
+    parameter_units: dict[str, str] = field(default_factory=dict)
     frequency_hz: np.ndarray | None = field(default=None, repr=False)
     s_parameters: np.ndarray | None = field(default=None, repr=False)
 
@@ -79,14 +83,22 @@ class ExportResult(Displayed):
         return plot_export(self, ax)
 
     def to_dict(self) -> dict[str, Any]:
-        """The JSON object (schema ``oneport.export/1``)."""
+        """The JSON object (schema ``oneport.export/2``)."""
+        from .parameters import value_record
+
         return {
             "schema": EXPORT_SCHEMA,
-            "inputs": {
-                "path": self.circuit_path,
-                "sha256": self.circuit_sha256,
-                "parameters": dict(self.parameters),
-            },
+            "inputs": [
+                {
+                    "role": "netlist",
+                    "path": self.circuit_path,
+                    "sha256": self.circuit_sha256,
+                    "parameters": [
+                        value_record(name, value, self.parameter_units.get(name, ""))
+                        for name, value in self.parameters.items()
+                    ],
+                }
+            ],
             "output": {
                 "path": self.output_path,
                 "ports": self.ports,
@@ -215,6 +227,7 @@ def export_circuit(
         spacing=spacing,
         reference_impedance_ohm=float(reference_impedance_ohm),
         parameters=used,
+        parameter_units=parameter_units([circuit]),
         frequency_hz=np.asarray(frequency_hz, dtype=float),
         s_parameters=s,
     )

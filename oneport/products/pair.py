@@ -266,6 +266,7 @@ def prepare_pair(
         natural_frequencies=natural,
         findings=device_side.findings + load_side.findings,
         grid_chosen=grid_chosen,
+        dc_resistances_ohm=dc_facts,
     )
     return PreparedPair(
         frequency_hz=frequency,

@@ -1,7 +1,8 @@
 """Pictures of a reflection-amplifier screening: gain and the return loss stability needs.
 
-Rendering only (matplotlib imported inside the functions): it draws what an
-:class:`~oneport.analysis.amplifier.AmplifierResult` holds and computes nothing.
+Rendering only (matplotlib imported inside the functions; headless figures, no backend
+chosen): it draws what an :class:`~oneport.analysis.amplifier.AmplifierResult` holds and
+computes nothing. The records are linear (power gains, reflections); dB only here.
 """
 
 from __future__ import annotations
@@ -13,6 +14,7 @@ import numpy as np
 
 from ..analysis.amplifier import AmplifierResult
 from ..errors import InputError
+from ..units import format_plain, format_resistance
 
 
 def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
@@ -22,7 +24,7 @@ def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
     ----------
     result : AmplifierResult
     ax : matplotlib Axes, optional
-        Drawn into; a new figure's axes otherwise.
+        Drawn into; a new headless figure's axes otherwise.
 
     Returns
     -------
@@ -32,7 +34,7 @@ def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
     if ax is None:
         from .figures import new_figure
 
-        ax = new_figure((8.0, 5.0)).add_subplot()
+        ax = new_figure((9.0, 5.4)).add_subplot()
     f_ghz = result.frequency_hz / 1e9
     z0 = result.reference_impedance_ohm
     ax.plot(f_ghz, _power_db(result.gain), label="gain |Γd|²")
@@ -48,11 +50,19 @@ def plot_amplifier(result: AmplifierResult, ax: Any = None) -> Any:
     if result.gain_with_load is not None:
         ax.plot(f_ghz, _power_db(result.gain_with_load), label="gain with this port")
     threshold = float(_power_db(np.array(result.gain_threshold)))
-    ax.axhline(threshold, color="grey", linewidth=0.8, label="gain threshold")
+    ax.axhline(
+        threshold,
+        color="grey",
+        linewidth=0.8,
+        label=f"gain threshold {format_plain(threshold)} dB",
+    )
     ax.set_xlabel("frequency (GHz)")
-    ax.set_ylabel(f"dB (Z0 = {z0:g} ohm)")
-    ax.set_title(f"Reflection amplifier: {result.verdict}")
-    ax.legend(loc="best", fontsize="small")
+    ax.set_ylabel(f"dB (Z0 = {format_resistance(z0)})")
+    ax.set_title(f"Reflection amplifier: {result.verdict.replace('-', ' ')}")
+    ax.grid(True, color="#cfd3d6", linewidth=0.6)
+    ax.legend(
+        loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize="small", frameon=False
+    ).set_gid("legend")
     return ax.figure
 
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 import math
 from typing import TYPE_CHECKING
 
-from ..units import format_frequency, to_decibels
+from ..units import format_frequency, format_plain, format_resistance, to_decibels
 from .check_text import closing_sections, wrap
 
 if TYPE_CHECKING:
@@ -33,13 +33,13 @@ def verdict_line(result: AmplifierResult) -> str:
     }[result.basis]
     port = ""
     if result.port_source == "return-loss":
-        port = f"; port {_return_loss(result.port_reflection_bound):.1f} dB return loss"
+        port = f"; port return loss {_return_loss(result.port_reflection_bound):.1f} dB"
     elif result.port_source == "load":
         port = f"; port file, worst return loss {_return_loss(result.port_reflection_bound):.1f} dB"
     return (
         f"{_HEADLINE[result.verdict]} ({basis}): peak gain {_power(result.peak_gain):.2f} dB at"
         f" {format_frequency(result.peak_frequency_hz)}{port};"
-        f" Z0 = {result.reference_impedance_ohm:g} ohm"
+        f" Z0 = {format_resistance(result.reference_impedance_ohm)}"
     )
 
 
@@ -51,7 +51,7 @@ def render(result: AmplifierResult) -> str:
     if result.nyquist is not None:
         nyquist = result.nyquist
         count = "?" if nyquist.encirclements is None else str(nyquist.encirclements)
-        parts += ["", "Nyquist check with the load", f"  {nyquist.verdict}, N = {count}"]
+        parts += ["", "Nyquist check with the port file", f"  {nyquist.verdict}, N = {count}"]
     parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
     return "\n".join(parts) + "\n"
 
@@ -60,17 +60,18 @@ def _gain(result: AmplifierResult) -> list[str]:
     z0 = result.reference_impedance_ohm
     bandwidth = result.bandwidth
     rows = [
-        f"Gain |gamma_device|^2 (Z0 = {z0:g} ohm)",
+        f"Gain |Γd|² (Z0 = {format_resistance(z0)})",
         f"  peak {_power(result.peak_gain):.2f} dB at {format_frequency(result.peak_frequency_hz)}",
         f"  -3 dB band {_span(bandwidth)}, bandwidth"
         f" {format_frequency(bandwidth.stop_hz - bandwidth.start_hz)}",
     ]
     threshold = _power(result.gain_threshold)
     if not result.bands:
-        rows.append(f"  no band reaches {threshold:g} dB")
+        rows.append(f"  no band reaches {format_plain(threshold)} dB")
     for band in result.bands:
         rows.append(
-            f"  >= {threshold:g} dB: {_span(band)}, peak {_power(band.peak_gain):.2f} dB"
+            f"  ≥ {format_plain(threshold)} dB: {_span(band)}, peak"
+            f" {_power(band.peak_gain):.2f} dB"
             f" at {format_frequency(band.peak_frequency_hz)}"
         )
     return rows
@@ -78,7 +79,7 @@ def _gain(result: AmplifierResult) -> list[str]:
 
 def _requirement(result: AmplifierResult) -> list[str]:
     rows = [
-        "Port match for guaranteed stability (small-gain bound |gamma_device * gamma_port| < 1)",
+        "Port match for guaranteed stability (small-gain bound |Γd·Γport| < 1 at every frequency)",
         f"  return loss needed: {_return_loss(result.smallest_allowed_reflection):.2f} dB at"
         f" {format_frequency(result.worst_frequency_hz)} (the gain in dB at each frequency)",
     ]

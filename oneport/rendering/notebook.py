@@ -13,7 +13,7 @@ import math
 from collections.abc import Callable
 from typing import Any
 
-from ..units import format_frequency, to_decibels
+from ..units import format_frequency, format_plain, format_resistance, to_decibels
 
 #: How a repr is kept short: the verdict line is cut here.
 REPR_WIDTH = 160
@@ -118,7 +118,7 @@ def _view(result: Any) -> _View:
 
 
 def _ohm(value: float | None) -> str:
-    return "—" if value is None else f"{value:g} ohm"
+    return "—" if value is None else format_resistance(value)
 
 
 def _band(low: float, high: float) -> str:
@@ -144,7 +144,7 @@ def _check() -> _View:
             ("reference impedance Z0", _ohm(result.reference_impedance_ohm)),
             (
                 "closest approach to +1",
-                f"|1 - L| = {margins.modulus_margin:.3g} at"
+                f"|1 - L| = {format_plain(margins.modulus_margin)} at"
                 f" {format_frequency(margins.modulus_margin_frequency_hz)}",
             ),
         ]
@@ -172,8 +172,8 @@ def _bound() -> _View:
             ("verdict", result.verdict),
             (
                 "load class",
-                f"|gamma_load| <= {result.reflection_bound:.4g}"
-                f" (return loss >= {0.0 - to_decibels(result.reflection_bound):g} dB)",
+                f"|ΓL| ≤ {format_plain(result.reflection_bound, 4)}"
+                f" (return loss ≥ {format_plain(0.0 - to_decibels(result.reflection_bound))} dB)",
             ),
             (
                 "return loss the device needs",
@@ -215,8 +215,9 @@ def _amplifier() -> _View:
         return [
             ("verdict", f"{result.verdict} ({result.basis})"),
             (
-                "peak gain |gamma_device|^2",
-                f"{result.peak_gain:.4g} ({10 * math.log10(result.peak_gain):.2f} dB) at"
+                "peak gain |Γd|²",
+                f"{format_plain(result.peak_gain, 4)}"
+                f" ({10 * math.log10(result.peak_gain):.2f} dB) at"
                 f" {format_frequency(result.peak_frequency_hz)}",
             ),
             (
@@ -291,7 +292,7 @@ def _terminations() -> _View:
         resistance = (
             "unbounded"
             if best.unbounded
-            else f"{best.observed_resistance_ohm:.4g} ohm at port {result.observed_port}"
+            else f"{format_resistance(best.observed_resistance_ohm)} at port {result.observed_port}"
         )
         return [
             ("at", format_frequency(result.frequency_hz)),

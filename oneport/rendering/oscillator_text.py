@@ -147,7 +147,7 @@ def _loads(result: OscillatorResult) -> list[str]:
                 format_frequency(point.frequency_hz),
                 format_impedance(point.load_impedance_ohm),
                 format_reflection(point.gamma_load),
-                format_plain(point.pulling.external_q),
+                f"Q = {format_plain(point.pulling.external_q)}",
                 "none (Q not positive)" if lock is None else f"±{format_frequency(lock)}",
             ]
         )

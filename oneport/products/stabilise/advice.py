@@ -23,6 +23,7 @@ from .families import FAMILIES
 from .goal import KEEP_WINDOW, Requirement
 from .result import GainCost, StabiliseResult, Suggestion, Unsolved, WantedMode
 from .scan import Scanner
+from .wording import lower_first, topology_words
 
 
 def stabilise(
@@ -378,9 +379,9 @@ def _rank(suggestion: Suggestion) -> tuple[Any, ...]:
 def _margin_words(requirement: Requirement) -> str:
     parts = []
     if requirement.min_distance is not None:
-        parts.append(f"|1 - L| >= {requirement.min_distance:g}")
+        parts.append(f"|1 - L| ≥ {requirement.min_distance:g}")
     if requirement.gain_margin is not None:
-        parts.append(f"gain margin >= {to_decibels(requirement.gain_margin):g} dB")
+        parts.append(f"gain margin ≥ {to_decibels(requirement.gain_margin):g} dB")
     return " and ".join(parts)
 
 
@@ -402,7 +403,7 @@ def _explain(
     reaching = [s for s in ranked if s.reaches_margin]
     goal_words, margin_words = _goal_words(requirement), _margin_words(requirement)
     first = original.reasons[0]
-    reasons = [f"As given the pair is {original.verdict}: {first[:1].lower()}{first[1:]}"]
+    reasons = [f"As given the pair is {original.verdict}: {lower_first(first)}"]
     next_steps: list[str] = []
     if verdict == "stabilised":
         best = reaching[0]
@@ -413,7 +414,8 @@ def _explain(
             " what they cost."
         )
         next_steps.append(
-            f"Fit the first suggestion ({best.topology}, {best.position.describe()}), then"
+            f"Fit the first suggestion ({topology_words(best.topology)},"
+            f" {best.position.describe()}), then"
             " measure the pair again and check it before raising the bias fully."
         )
         return reasons, next_steps
@@ -426,7 +428,8 @@ def _explain(
         reasons.append(
             f"{len(ranked)} {'network reaches' if len(ranked) == 1 else 'networks reach'} the"
             f" goal ({goal_words}) but {'not' if len(ranked) == 1 else 'none'} with"
-            f" {margin_words}: the best, {closest.topology} {closest.position.describe()},"
+            f" {margin_words}: the best, {topology_words(closest.topology)}"
+            f" {closest.position.describe()},"
             f" reaches |1 - L| = {closest.margins_after.min_distance:.3g}."
         )
     gain = np.abs(pair.gamma_device)

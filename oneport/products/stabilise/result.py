@@ -1,4 +1,4 @@
-"""The frozen result of stabilising advice, and its JSON form (``oneport.stabilise/1``).
+"""The frozen result of stabilising advice, and its JSON form (``oneport.stabilise/2``).
 
 Results carry the original check, each suggestion's verifying check and its scan; ``to_dict()``
 gives the JSON object documented in docs/stabilise.md. Nothing here computes or renders text.
@@ -16,7 +16,7 @@ from .goal import Requirement
 from .placements import Position
 from .scan import Line, Range
 
-STABILISE_SCHEMA = "oneport.stabilise/1"
+STABILISE_SCHEMA = "oneport.stabilise/2"
 #: The command's verdict words (mapped to exit codes in ``commands/outcome.py``).
 VERDICTS = ("stabilised", "no-change-needed", "not-stabilised", "inconclusive")
 
@@ -221,12 +221,19 @@ class Suggestion:
             "verdict_after": self.verdict_after,
             "encirclements_after": self.encirclements_after,
             "oscillation_frequencies_after_hz": list(self.check_after.oscillation_frequencies_hz),
-            "margins_after": self.margins_after.to_dict(),
+            "margins_after": _margins_for(self.margins_after.to_dict(), self.verdict_after),
             "cost": None if self.cost is None else self.cost.to_dict(),
             "tolerance": None if self.tolerance is None else self.tolerance.to_dict(),
             "bias": None if self.bias is None else self.bias.to_dict(),
             "notes": list(self.notes),
         }
+
+
+def _margins_for(margins: dict[str, Any], verdict: str) -> dict[str, Any]:
+    """Gain and phase margins only for a stable changed pair; the distance always."""
+    if verdict != "stable":
+        margins = {**margins, "gain_margin_db": None, "phase_margin_deg": None}
+    return margins
 
 
 @dataclass(frozen=True)
@@ -277,8 +284,9 @@ class StabiliseResult(Displayed):
     tolerance_asked: dict[str, float] = field(default_factory=dict)
 
     def to_dict(self) -> dict[str, Any]:
-        """The ``oneport.stabilise/1`` JSON object (plain Python types only)."""
+        """The ``oneport.stabilise/2`` JSON object (plain Python types only)."""
         original = self.original
+        stable = original.verdict == "stable"
         return {
             "schema": STABILISE_SCHEMA,
             "verdict": self.verdict,
@@ -292,11 +300,16 @@ class StabiliseResult(Displayed):
                 "encirclements": original.encirclements,
                 "latch_up": original.latch_up,
                 "oscillation_frequencies_hz": list(original.oscillation_frequencies_hz),
+                # Gain and phase margins only where the loop is stable (CONVENTIONS).
                 "margins": {
                     "reference_impedance_ohm": original.reference_impedance_ohm,
                     "min_distance_to_critical_point": original.margins.modulus_margin,
-                    "gain_margin_db": _decibels(original.margins.gain_margin),
-                    "phase_margin_deg": _degrees(original.margins.phase_margin_rad),
+                    "gain_margin_db": (
+                        _finite(_decibels(original.margins.gain_margin)) if stable else None
+                    ),
+                    "phase_margin_deg": (
+                        _degrees(original.margins.phase_margin_rad) if stable else None
+                    ),
                 },
             },
             "suggestions": [s.to_dict() for s in self.suggestions],

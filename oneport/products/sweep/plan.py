@@ -24,6 +24,25 @@ _TOLERANCE = re.compile(r"^\s*([A-Za-z_]\w*)\s*=\s*([0-9.eE+-]+)\s*%\s*$")
 
 
 @dataclass(frozen=True)
+class ParameterPlan:
+    """How one parameter's values were chosen (SI units), for reports and JSON.
+
+    A grid parameter has ``start``, ``stop``, ``count`` and ``spacing`` (``"linear"`` or
+    ``"logarithmic"``); a Monte Carlo one has ``nominal``, ``tolerance`` (a fraction, 0.05 for
+    ±5 %) and ``distribution``.
+    """
+
+    name: str
+    start: float | None = None
+    stop: float | None = None
+    count: int | None = None
+    spacing: str | None = None
+    nominal: float | None = None
+    tolerance: float | None = None
+    distribution: str | None = None
+
+
+@dataclass(frozen=True)
 class SweepPlan:
     """Parameter values per variant, and how they were chosen."""
 
@@ -31,6 +50,7 @@ class SweepPlan:
     values: Mapping[str, np.ndarray]
     shape: tuple[int, ...]
     description: Mapping[str, str]
+    parameters: tuple[ParameterPlan, ...] = ()
 
     @property
     def variants(self) -> int:
@@ -78,6 +98,7 @@ def grid_plan(
         raise InputError(f"--log {', '.join(sorted(unknown))}: not a swept parameter (--vary)")
     axes = []
     description = {}
+    plans = []
     for name, start, stop, count in specifications:
         if name in logarithmic:
             if start <= 0 or stop <= 0:
@@ -87,10 +108,12 @@ def grid_plan(
         else:
             axes.append(np.linspace(start, stop, count))
             description[name] = f"{count} values from {start:g} to {stop:g}, linear"
+        spacing = "logarithmic" if name in logarithmic else "linear"
+        plans.append(ParameterPlan(name, start=start, stop=stop, count=count, spacing=spacing))
     mesh = np.meshgrid(*axes, indexing="ij")
     shape = tuple(axis.size for axis in axes)
     values = {name: grid.reshape(-1) for name, grid in zip(names, mesh, strict=True)}
-    return SweepPlan("grid", values, shape, description)
+    return SweepPlan("grid", values, shape, description, tuple(plans))
 
 
 def parse_tolerance(text: str) -> tuple[str, float]:
@@ -119,6 +142,7 @@ def monte_carlo_plan(
     rng = np.random.default_rng(seed)
     values = {}
     description = {}
+    plans = []
     for name, tolerance in tolerances:
         if name not in nominal:
             known = ", ".join(sorted(nominal)) or "none"
@@ -126,7 +150,12 @@ def monte_carlo_plan(
         relative = _draw(rng, distribution, tolerance, samples)
         values[name] = nominal[name] * (1.0 + relative)
         description[name] = f"{nominal[name]:g} ±{tolerance:.0%} ({distribution})"
-    return SweepPlan("monte-carlo", values, (samples,), description)
+        plans.append(
+            ParameterPlan(
+                name, nominal=nominal[name], tolerance=tolerance, distribution=distribution
+            )
+        )
+    return SweepPlan("monte-carlo", values, (samples,), description, tuple(plans))
 
 
 def _draw(

@@ -148,7 +148,7 @@ def sweep(
         table_path = str(write_table(run.table, output))
     return SweepResult(
         run=run,
-        summary=summarise(run),
+        summary=summarise(run, prepared.source),
         inputs=tuple(prepared.inputs),
         warnings=tuple(prepared.warnings),
         table_path=table_path,
