@@ -23,7 +23,7 @@ CAUTIONS: tuple[str, ...] = (
 #: Added to the cautions of stabilising advice (``oneport stabilise``).
 STABILISER_CAUTIONS: tuple[str, ...] = (
     "A stabilising resistor in the bias path carries the bias current and heats: rate it for at"
-    " least twice its DC dissipation (I^2 R in series, V^2 / R across the port) plus the RF"
+    " least twice its DC dissipation (I²·R in series, V²/R across the port) plus the RF"
     " power it absorbs, keep it away from heat-sensitive parts, and remember that its DC drop"
     " moves the bias point: raise the bias slowly and re-check the current.",
     "Verify the network at the bench before full bias: a part's own parasitics (a resistor's"

@@ -59,9 +59,19 @@ def _hint(message: str) -> str:
     return ""
 
 
-def build_parser() -> tuple[argparse.ArgumentParser, dict[str, ModuleType]]:
-    """The ``oneport`` parser and the subcommand modules by name."""
-    from .commands import load_commands
+def build_parser(
+    argv: Sequence[str] | None = None,
+) -> tuple[argparse.ArgumentParser, dict[str, ModuleType]]:
+    """The ``oneport`` parser and the subcommand modules by name.
+
+    When ``argv`` starts with a subcommand's name, only that subcommand is registered (a quick
+    command loads none of the others); otherwise all are, for ``--help`` and usage errors.
+    """
+    from .commands import COMMAND_MODULES, load_commands
+
+    chosen: tuple[str, ...] = COMMAND_MODULES
+    if argv and argv[0] in COMMAND_MODULES:
+        chosen = (argv[0],)
 
     parser = _Parser(
         prog="oneport",
@@ -70,7 +80,7 @@ def build_parser() -> tuple[argparse.ArgumentParser, dict[str, ModuleType]]:
     parser.add_argument("--version", action="store_true", help="print the version and stop")
     subparsers = parser.add_subparsers(dest="command", parser_class=_Parser)
     modules = {}
-    for module in load_commands():
+    for module in load_commands(chosen):
         module.add_parser(subparsers)
         modules[module.NAME] = module
     return parser, modules
@@ -93,10 +103,12 @@ def main(
     """Run the command line; return the exit code (streams injectable for tests)."""
     out = stdout or sys.stdout
     err = stderr or sys.stderr
-    parser, modules = build_parser()
+    parser, modules = build_parser(sys.argv[1:] if argv is None else list(argv))
     arguments = None
     try:
         arguments = parser.parse_args(argv)
+        # The words as typed, for reports that record their command line.
+        arguments.argv = list(sys.argv[1:] if argv is None else argv)
         if arguments.version:
             from . import __version__
 

@@ -169,7 +169,7 @@ def circuit(z: Impedance, source: str = "circuit") -> Circuit:
     --------
     >>> built = circuit(series(resistor(10.0), inductor(1e-9)), "R+L")
     >>> [element.name for element in built.elements]
-    ['R1', 'L2']
+    ['R2', 'L3']
     """
     built = Circuit(source)
     counter = iter(range(1, 1_000_000))

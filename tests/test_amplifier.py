@@ -10,7 +10,7 @@ import pytest
 
 from oneport.analysis.amplifier import analyse_amplifier
 from oneport.errors import InputError
-from oneport.products.amplifier import screen_amplifier
+from oneport.products.amplifier import amplifier
 from oneport.rendering.amplifier_plot import plot_amplifier
 
 from helpers import Z0, one_port, run_cli
@@ -46,8 +46,12 @@ def test_pure_negative_resistance_gain(resistance):
     result = analyse_amplifier(f, gamma, Z0)
     # METHODS section 6: gain ((R + Z0)/(R - Z0))^2 for a pure -R.
     expected = 10 * np.log10(((resistance + Z0) / (resistance - Z0)) ** 2)
-    assert result.gain_db == pytest.approx(np.full(f.size, expected))
-    assert result.worst_required_return_loss_db == pytest.approx(expected)
+    # Linear inside the result (SI); dB in its JSON.
+    assert 10 * np.log10(result.gain) == pytest.approx(np.full(f.size, expected))
+    assert -20 * np.log10(result.smallest_allowed_reflection) == pytest.approx(expected)
+    assert result.to_dict()["stability_requirement"]["worst_required_return_loss_db"] == (
+        pytest.approx(expected)
+    )
 
 
 F_FINE = np.linspace(0.0, 5e9, 2001)
@@ -56,7 +60,8 @@ F_FINE = np.linspace(0.0, 5e9, 2001)
 def test_parallel_device_gain_and_bandwidth():
     result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, gain_threshold_db=10.0)
     # -75 ohm || 1 pF in 50 ohm: low-frequency gain ((75 + 50)/(75 - 50))^2 = 25, 13.98 dB.
-    assert result.peak_gain_db == pytest.approx(13.979, abs=1e-3)
+    assert result.peak_gain == pytest.approx(25.0, rel=1e-9)
+    assert result.to_dict()["gain"]["peak_gain_db"] == pytest.approx(13.979, abs=1e-3)
     assert result.peak_frequency_hz == 0.0
     upper = frequency_for_gain(25 * 10 ** (-0.3))  # exactly 3 dB below the peak
     assert result.bandwidth.start_hz == 0.0 and result.bandwidth.starts_at_sweep_edge
@@ -70,11 +75,15 @@ def test_ripple_bounds_for_a_stated_return_loss():
     magnitude = np.abs(parallel_device(F_FINE))
     port = 10 ** (-20 / 20)
     # METHODS section 6: voltage gain between |Gd|/(1 +- |Gd GL|), power gain their squares.
-    lower, upper = result.gain_bounds_db
-    assert lower == pytest.approx(20 * np.log10(magnitude / (1 + magnitude * port)))
-    assert upper == pytest.approx(20 * np.log10(magnitude / (1 - magnitude * port)))
-    assert result.ripple_at_peak_db == pytest.approx((20 * np.log10(5 / 1.5), 20.0))
-    assert result.port_margin_db == pytest.approx(20 - 13.979, abs=1e-3)
+    lower, upper = result.gain_bounds
+    assert lower == pytest.approx((magnitude / (1 + magnitude * port)) ** 2)
+    assert upper == pytest.approx((magnitude / (1 - magnitude * port)) ** 2)
+    assert result.ripple_at_peak == pytest.approx(((5 / 1.5) ** 2, 100.0))
+    assert 20 * np.log10(result.port_margin) == pytest.approx(20 - 13.979, abs=1e-3)
+    ripple = result.to_dict()["port"]["ripple_at_peak"]
+    assert (ripple["gain_lower_db"], ripple["gain_upper_db"]) == pytest.approx(
+        (20 * np.log10(5 / 1.5), 20.0)
+    )
     assert result.verdict == "guaranteed" and result.guaranteed
 
 
@@ -82,7 +91,9 @@ def test_required_return_loss_is_the_gain_where_there_is_gain():
     result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0)
     # Small-gain bound |GL| < 1/|Gd| (METHODS section 6): 20 log10 |Gd| dB wherever |Gd| > 1.
     expected = np.maximum(20 * np.log10(np.abs(parallel_device(F_FINE))), 0.0)
-    assert result.required_return_loss_db == pytest.approx(expected)
+    assert -20 * np.log10(result.allowed_reflection) == pytest.approx(expected)
+    arrays = result.to_dict(include_arrays=True)["arrays"]
+    assert arrays["required_return_loss_db"] == pytest.approx(expected)
     assert result.worst_frequency_hz == 0.0
     assert result.verdict == "inconclusive" and result.basis == "none"
 
@@ -103,7 +114,7 @@ def test_the_bound_beyond_an_edge_rests_on_its_margin_there():
     # indeed needs only 13.98 dB at DC (worked by hand above).
     f = np.linspace(1e9, 5e9, 401)
     result = analyse_amplifier(f, parallel_device(f), Z0, port_return_loss_db=14.5)
-    assert result.port_margin_db > 0
+    assert result.port_margin > 1.0
     assert result.verdict == "guaranteed"
     assert all(edge.founded for edge in result.edges)
     assert "below the sweep" in result.edges[0].note
@@ -127,23 +138,23 @@ def test_passive_device_is_stable_with_any_passive_port():
 def test_nyquist_with_the_load_decides():
     device = one_port(F_FINE, parallel_device(F_FINE), "device")
     port = circulator_port(F_FINE)
-    result = screen_amplifier(device, load=one_port(F_FINE, port, "circulator"))
+    result = amplifier(device, load=one_port(F_FINE, port, "circulator"))
     assert result.verdict == "stable" and result.basis == "nyquist"
     assert result.nyquist is not None and result.nyquist.encirclements == 0
     # Multiple reflections between device and port: Gd/(1 - Gd GL) (common practice).
     gamma_device = parallel_device(F_FINE)
-    expected = 20 * np.log10(np.abs(gamma_device / (1 - gamma_device * port)))
-    assert result.gain_with_load_db == pytest.approx(expected)
+    expected = np.abs(gamma_device / (1 - gamma_device * port)) ** 2
+    assert result.gain_with_load == pytest.approx(expected)
     # 100 ohm: Yd + YL = -1/75 + 1/100 + sC = 0 at s > 0 (by hand): a latch-up.
     resistive = one_port(F_FINE, np.full(F_FINE.size, (100 - Z0) / (100 + Z0) + 0j), "100 ohm")
-    result = screen_amplifier(device, load=resistive)
+    result = amplifier(device, load=resistive)
     assert result.verdict == "unstable" and result.nyquist.encirclements == 1
 
 
 def test_json_form():
     result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=10.0)
     data = json.loads(json.dumps(result.to_dict(include_arrays=True), allow_nan=False))
-    assert data["schema"] == "oneport.amplifier/2"
+    assert data["schema"] == "oneport.amplifier/3"
     assert data["verdict"] == "not-guaranteed"
     assert data["gain"]["reference_impedance_ohm"] == Z0
     assert data["gain"]["bandwidth_3db"]["bandwidth_hz"] == pytest.approx(
@@ -156,7 +167,7 @@ def test_json_form():
 def test_bad_input():
     device = one_port(F_FINE, parallel_device(F_FINE), "device")
     with pytest.raises(InputError, match="not both"):
-        screen_amplifier(device, load=device, port_return_loss_db=20.0)
+        amplifier(device, load=device, port_return_loss_db=20.0)
     with pytest.raises(InputError, match="0 or more"):
         analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=-3.0)
 
@@ -165,11 +176,12 @@ def test_plot_draws_gain_and_requirement():
     from matplotlib.figure import Figure
 
     result = analyse_amplifier(F_FINE, parallel_device(F_FINE), Z0, port_return_loss_db=20.0)
-    axes = plot_amplifier(result, Figure().subplots())
+    axes = Figure().subplots()
+    assert plot_amplifier(result, axes) is axes.figure
     labels = [line.get_label() for line in axes.get_lines()]
     assert "gain |Γd|²" in labels and "return loss needed (small gain)" in labels
     gain_line = axes.get_lines()[0]
-    assert gain_line.get_ydata() == pytest.approx(result.gain_db)
+    assert gain_line.get_ydata() == pytest.approx(10 * np.log10(result.gain))
 
 
 def write_s1p(path: Path, f: np.ndarray, gamma: np.ndarray) -> Path:

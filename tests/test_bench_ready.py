@@ -22,6 +22,7 @@ import oneport
 from oneport import OnePort
 from oneport.analysis import nyquist
 from oneport.reading.preparation import PortSetup, prepare
+from oneport.units import to_decibels
 
 from helpers import Z0, gamma_of, one_port, run_cli, write_touchstone
 from lumped import (
@@ -570,7 +571,7 @@ def test_series_loop_estimate_matches_the_roots():
     assert root.imag == pytest.approx(6.263e9, rel=1e-3)
     result = _check_on(STARTUP_GRID_HZ, device, load)
     estimate = _estimates(result, "impedance", 1e9)
-    assert estimate.growing and estimate.total_real_part == pytest.approx(-10.0, rel=1e-3)
+    assert estimate.grows and estimate.total_real_part == pytest.approx(-10.0, rel=1e-3)
     # One Newton step from jω0 is an estimate: δs = −R_T/Z′ = 10/(2L) = 5e8 1/s, exact for σ
     # here, and it keeps ω0 = 1/√(LC) (R′ = 0), 0.3 % above the root's 996.8 MHz. Tolerances:
     # 1 % on σ, 0.5 % on the frequency.
@@ -591,14 +592,14 @@ def test_growth_with_positive_loop_resistance_and_falling_reactance_is_kept():
     estimate = _estimates(result, "impedance", 1e9)
     # (R_T is interpolated linearly across the peak of Re Z: within 0.1 Ω)
     assert estimate.total_real_part == pytest.approx(tank_ohm - negative_ohm, abs=0.1)
-    assert estimate.growing and estimate.sigma_per_s > 0
+    assert estimate.grows and estimate.sigma_per_s > 0
     # Hand derivation: σ ≈ −R_T/X′ with X′ = −2Q·Rp/ω0 gives (Rp − R)/(2·Rp²·C), while the roots'
     # σ is (Rp − R)/(2·R·Rp·C): the Newton step is low by the factor R/Rp = 0.9. Tolerance 2 %.
     assert estimate.sigma_per_s / root.real == pytest.approx(negative_ohm / tank_ohm, rel=2e-2)
     # The admittance form suits this parallel-type loop: Y_T is linear in s near ω0, so its
     # Newton step gives σ = −G_T/(2C), the roots' own real part (tolerance 1 %).
     dual = _estimates(result, "admittance", 1e9)
-    assert dual.growing
+    assert dual.grows
     assert dual.sigma_per_s == pytest.approx(root.real, rel=1e-2)
     # The estimates stand beside the count. A bare -180 ohm keeps its gain at every frequency,
     # so no sweep of data closes towards infinity (METHODS §2); as netlists, known everywhere,
@@ -621,7 +622,14 @@ def test_a_loop_gain_real_exactly_on_a_sample_still_has_its_gain_margin():
     # −300 Ω (Γd = 1.4) against a 100 Ω tank at 1 GHz (Γ = 1/3): L = 0.4667 there, real.
     result = _check_on(STARTUP_GRID_HZ, resistor(-300.0), tank(100.0, 20.0, 1e9))
     # source: hand calculation, gain margin = −20·log10(1.4/3) = 6.62 dB
-    assert result.margins.gain_margin_db == pytest.approx(-20 * np.log10(1.4 / 3), rel=1e-6)
+    assert result.margins.gain_margin == pytest.approx(3 / 1.4, rel=1e-6)  # linear inside
+    assert to_decibels(result.margins.gain_margin) == pytest.approx(
+        -20 * np.log10(1.4 / 3), rel=1e-6
+    )
+    # A bare −300 Ω keeps its gain above the sweep, so the verdict is inconclusive, and the
+    # check/3 JSON gives gain and phase margins only under a stable verdict.
+    assert result.verdict == "inconclusive"
+    assert result.to_dict()["margins"]["gain_margin_db"] is None
 
 
 def test_return_loss_bound_needs_a_sweep(tmp_path):

@@ -93,7 +93,7 @@ def test_random_lumped_loops_roots_and_impedance(seed: int) -> None:
     Rd b 0 {-rd!r}
     Cj b 0 {cj!r}
     Rl 1 c {rl!r}
-    Ll c 0 {ll!r} rser=1
+    Ll c 0 {ll!r} esr=1
     Cl c 0 {cl!r}
     Rp c 0 {rp!r}
     .oneport 1
@@ -210,7 +210,7 @@ def test_negative_impedance_converter() -> None:
     beta = r3 / (r2 + r3)
     np.testing.assert_allclose(impedance, r1 / (1 - gain / (1 + gain * beta)), rtol=1e-9)
     ideal = parse_circuit(
-        "O1 out p n\nRf1 out p 1k\nRf2 out n 2k\nRg n 0 500\n.oneport p", source="ideal"
+        ".opamp O1 out p n\nRf1 out p 1k\nRf2 out n 2k\nRg n 0 500\n.oneport p", source="ideal"
     )
     np.testing.assert_allclose(
         _impedance(ideal.gamma(np.array([1e3, 1e9]))), -r1 * r3 / r2, rtol=1e-9

@@ -20,11 +20,11 @@ EXAMPLES = Path(__file__).resolve().parents[1] / "touchstone_examples" / "circui
 LADDER = """
 .set RS=10 LS=2n CP=1.5p RP=300 LQ=5n CC=0.7p
 Rs 1 2 RS
-Ls 2 3 LS rser=0.3
+Ls 2 3 LS esr=0.3
 Cp 3 0 CP q=80
 Rp 3 0 RP
 Lq 3 4 LQ q=40
-Cc 4 0 CC rser=0.5
+Cc 4 0 CC esr=0.5
 .oneport 1
 """
 
@@ -133,7 +133,8 @@ def test_singular_equations_are_refused_with_frequency_and_variant() -> None:
 def test_pivoting_handles_zero_diagonals() -> None:
     # Ideal op-amp follower driving a resistor: every op-amp row has a zero diagonal.
     follower = parse_circuit(
-        "O1 out in out\nRload out 0 10\nRin in 0 1k\nO2 x in 0 gbw=1g\nRx x 0 1k\n.oneport in",
+        ".opamp O1 out in out\nRload out 0 10\nRin in 0 1k\n"
+        ".opamp O2 x in 0 gbw=1g\nRx x 0 1k\n.oneport in",
         source="follower",
     )
     gamma = follower.gamma(np.array([1e3, 1e6, 1e9]))
@@ -144,7 +145,7 @@ def test_pivoting_handles_zero_diagonals() -> None:
 def test_two_port_pi_network_matches_scikit_rf() -> None:
     frequency_hz = np.linspace(0.1e9, 5e9, 60)
     circuit = parse_circuit(
-        "C1 1 0 1p\nL1 1 2 5n rser=0.7\nC2 2 0 2p\nR2 2 0 400\n.twoport 1 2", source="pi"
+        "C1 1 0 1p\nL1 1 2 5n esr=0.7\nC2 2 0 2p\nR2 2 0 400\n.twoport 1 2", source="pi"
     )
     media = skrf.media.DefinedGammaZ0(skrf.Frequency.from_f(frequency_hz, unit="Hz"), z0=50)
     # scikit-rf: shunt C, series L and R, shunt C and R, cascaded with **

@@ -41,7 +41,7 @@ def test_one_port_export_reads_back(tmp_path: Path) -> None:
 
 def test_two_port_export_with_log_spacing_and_json(tmp_path: Path) -> None:
     netlist = tmp_path / "pi.cir"
-    netlist.write_text("C1 1 0 1p\nL1 1 2 5n rser=0.7\nC2 2 0 2p\nR2 2 0 400\n.twoport 1 2\n")
+    netlist.write_text("C1 1 0 1p\nL1 1 2 5n esr=0.7\nC2 2 0 2p\nR2 2 0 400\n.twoport 1 2\n")
     output = tmp_path / "pi.s2p"
     code, out, _ = _run(
         "export", str(netlist), "--start", "10MHz", "--stop", "10GHz", "--points", "31",
@@ -49,7 +49,7 @@ def test_two_port_export_with_log_spacing_and_json(tmp_path: Path) -> None:
     )  # fmt: skip
     assert code == 0
     record = json.loads(out)
-    assert record["schema"] == "oneport.export/1"
+    assert record["schema"] == "oneport.export/2"
     assert record["output"] == {
         "path": str(output),
         "ports": 2,
@@ -59,7 +59,8 @@ def test_two_port_export_with_log_spacing_and_json(tmp_path: Path) -> None:
         "spacing": "log",
         "reference_impedance_ohm": 75.0,
     }
-    assert len(record["inputs"]["sha256"]) == 64 and record["warnings"] == []
+    (netlist_record,) = record["inputs"]
+    assert len(netlist_record["sha256"]) == 64 and record["warnings"] == []
     written = read_touchstone(output)
     np.testing.assert_allclose(written.frequency_hz, np.geomspace(1e7, 1e10, 31), rtol=1e-14)
     np.testing.assert_allclose(written.reference_impedance_ohm, [75.0, 75.0])
@@ -78,7 +79,10 @@ def test_two_port_export_with_log_spacing_and_json(tmp_path: Path) -> None:
         (["--start", "1GHz", "--stop", "2GHz", "--param", "RX=3"], "unknown parameter 'RX'"),
         (["--start", "1GHz", "--stop", "2GHz", "--param", "RD"], "give NAME=VALUE"),
         (["--start", "1GHz", "--stop", "2GHz", "--param", "RD=5M"], "milli"),
-        (["--start", "1GHz", "--stop", "2GHz", "--reference-impedance", "-5"], "positive"),
+        (
+            ["--start", "1GHz", "--stop", "2GHz", "--reference-impedance", "-5"],
+            "positive number of ohms",
+        ),
     ],
 )
 def test_bad_options_exit_2(tmp_path: Path, options: list[str], message: str) -> None:

@@ -192,7 +192,8 @@ def test_row_exchanges_where_pivots_are_small_give_the_same_answer(
     # (exchanges only where needed), once with every point sent to row exchanges.
     netlist = (
         ".set GM=40m\nR1 1 2 20\nR2 1 3 75\nC3 2 3 0.5p\nL4 2 4 4n\nR5 3 0 33\nG1 4 0 2 0 GM\n"
-        "R6 4 0 200\nC7 4 3 0.3p\nO1 5 3 6 gbw=2g\nR8 6 5 1k\nR9 6 0 1k\nR10 5 1 5k\n.oneport 1"
+        "R6 4 0 200\nC7 4 3 0.3p\n.opamp O1 5 3 6 gbw=2g\nR8 6 5 1k\nR9 6 0 1k\n"
+        "R10 5 1 5k\n.oneport 1"
     )
     circuit = parse_circuit(netlist, source="bridge")
     frequency_hz = np.linspace(1e6, 12e9, 401)

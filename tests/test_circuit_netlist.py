@@ -67,7 +67,7 @@ def test_syntax_features() -> None:
         R1 1 2 10
         + * a continuation line holding only a comment is allowed
         L1 2 3 1n
-        +  rser=0.2
+        +  esr=0.2
         RD1 3 0 -Rd
         C1 3 0 CJ q = 50
         .oneport 1
@@ -78,7 +78,7 @@ def test_syntax_features() -> None:
     )
     assert circuit.parameters == {"RD": 80.0, "cj": 2e-12}
     assert [element.name for element in circuit.elements] == ["R1", "L1", "RD1", "C1"]
-    assert circuit.elements[1].values == {"inductance": 1e-9, "rser": 0.2}
+    assert circuit.elements[1].values == {"inductance": 1e-9, "esr": 0.2}
     assert circuit.elements[3].values["q"] == 50.0
     gamma = circuit.gamma([1e9], 50.0, rd=100.0)
     assert gamma.shape == (1,)
@@ -117,8 +117,8 @@ _MALFORMED = [
     ("R1 1 0 5M\n.oneport 1", 1, "milli"),
     ("R1 1 50\n.oneport 1", 1, "R1 needs 2 nodes and a value"),
     ("R1 1 0 50 7\n.oneport 1", 1, "got 4 plain tokens"),
-    ("L1 1 0 1n foo=3\n.oneport 1", 1, "unknown parameter 'foo='; accepted: rser=, q="),
-    ("L1 1 0 1n rser=1 q=20\n.oneport 1", 1, "not both"),
+    ("L1 1 0 1n foo=3\n.oneport 1", 1, "unknown parameter 'foo='; accepted: esr=, q="),
+    ("L1 1 0 1n esr=1 q=20\n.oneport 1", 1, "not both"),
     ("L1 1 0 1n q=-3\n.oneport 1", 1, "q = -3; it must be positive"),
     ("R1 1 0 RX\n.oneport 1", 1, "unknown parameter 'RX'"),
     ("R1 1 0 0\n.oneport 1", 1, "a resistance of 0"),
@@ -133,7 +133,11 @@ _MALFORMED = [
     ("R1 1 0 50\nR2 2 3 10\nR3 3 2 20\n.oneport 1", 2, "floating node 2"),
     ("R1 1 0 50\nR2 1 5 10\n.oneport 1", 2, "dangling node 5"),
     ("R1 1 0 50\nG1 1 0 9 0 0.1\n.oneport 1", 2, "floating node 9"),
-    ("O1 1 2 0\nO2 1 3 0\nR1 1 0 50\nR2 2 0 50\nR3 3 0 50\n.oneport 1", 2, "singular circuit"),
+    (
+        ".opamp O1 1 2 0\n.opamp O2 1 3 0\nR1 1 0 50\nR2 2 0 50\nR3 3 0 50\n.oneport 1",
+        2,
+        "singular circuit",
+    ),
     ("T1 1 0 2 0 len=1m\nR1 2 0 50\n.oneport 1", 1, "needs z0="),
     ("T1 1 0 2 0 z0=50 len=1m delay=1n\nR1 2 0 50\n.oneport 1", 1, "not both"),
     ("T1 1 0 2 0 z0=50 delay=1n loss=1\nR1 2 0 50\n.oneport 1", 1, "needs at="),
@@ -150,6 +154,13 @@ _MALFORMED = [
     ("+ R1 1 0 5\n.oneport 1", 1, "continuation"),
     ("R1 1 0 = 5\n.oneport 1", 1, "'=' needs a keyword name"),
     ("R1 1 0 z0=50\n.oneport 1", 1, "R1 needs 2 nodes and a value"),
+    # Other dialects' spellings are refused with a hint, never read as something else: a SPICE
+    # lossy line (O, four nodes and a model name: common SPICE practice) and rser=.
+    ("O1 1 0 2 0 lossy\nR1 2 0 50\n.oneport 1", 1, "lossy transmission line in the common SPICE"),
+    ("O1 out p n\nR1 out 0 50\n.oneport p", 1, "an op-amp as .opamp NAME OUT IN+ IN-"),
+    ("L1 1 0 1n rser=0.4\n.oneport 1", 1, "write the series resistance as esr= (the equivalent"),
+    (".opamp\nR1 1 0 5\n.oneport 1", 1, ".opamp needs a name, then OUT IN+ IN-"),
+    (".opamp U1 1 2\nR1 1 0 5\n.oneport 1", 1, "U1 needs 3 nodes"),
 ]
 
 

@@ -42,18 +42,18 @@ def _random_ladder(
             "L": generator.uniform(0.2e-9, 20e-9),
             "C": generator.uniform(0.1e-12, 10e-12),
         }[kind]
-        loss = str(generator.choice(["none", "rser", "q"])) if kind != "R" else "none"
-        loss_value = generator.uniform(0.1, 3) if loss == "rser" else generator.uniform(5, 200)
+        loss = str(generator.choice(["none", "esr", "q"])) if kind != "R" else "none"
+        loss_value = generator.uniform(0.1, 3) if loss == "esr" else generator.uniform(5, 200)
         impedance = {
             "R": np.full(frequency_hz.size, value, dtype=complex),
             "L": 1j * omega * value,
             "C": 1 / (1j * omega * value),
         }[kind]
-        if loss == "rser":
+        if loss == "esr":
             impedance = impedance + loss_value
         elif loss == "q":
             impedance = impedance + np.abs(impedance.imag) / loss_value
-        keywords = {"rser": {"series_resistance": loss_value}, "q": {"quality_factor": loss_value}}
+        keywords = {"esr": {"series_resistance": loss_value}, "q": {"quality_factor": loss_value}}
         extra = keywords.get(loss, {})
         shunt = bool(generator.integers(0, 2))
         name = f"{kind}{index}"

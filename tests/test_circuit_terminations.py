@@ -41,7 +41,7 @@ def _passive_grid(rings: int = 250) -> np.ndarray:
 
 def _common_gate() -> Multiport:
     circuit = parse_circuit(
-        f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n rser=0.4\n.twoport s d', source="common gate"
+        f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n esr=0.4\n.twoport s d', source="common gate"
     )
     return multiport_from_circuit(circuit, read_touchstone(TRANSISTOR).frequency_hz)
 
@@ -136,7 +136,10 @@ def _run(*arguments: str) -> tuple[int, str, str]:
 def test_command_text_json_and_chart(tmp_path: Path) -> None:
     code, out, err = _run("terminations", str(TRANSISTOR), "--at", "8GHz")
     assert (code, err) == (0, "")
-    assert "most negative resistance: -11.18 ohm" in out and "1.172 nH inductor" in out
+    assert out.startswith("NEGATIVE RESISTANCE POSSIBLE at 8 GHz:")
+    assert "most negative resistance: -11.2 ohm" in out and "1.17 nH inductor" in out
+    assert "ZT = 0 + j" in out and " ∠ " in out, "R + jX ohm and |Γ| ∠ angle°"
+    assert out.rstrip().endswith("do not replace them."), "the cautions last"
     chart = tmp_path / "chart.png"
     code, out, _ = _run(
         "terminations", str(TRANSISTOR), "--at", "8GHz", "--terminated-port", "1", "--json",
@@ -144,7 +147,9 @@ def test_command_text_json_and_chart(tmp_path: Path) -> None:
     )  # fmt: skip
     assert code == 0
     record = json.loads(out)
-    assert record["schema"] == "oneport.terminations/1"
+    assert record["schema"] == "oneport.terminations/2"
+    assert record["verdict"] == "negative-resistance-possible"
+    assert [entry["path"] for entry in record["inputs"]] == [str(TRANSISTOR)]
     assert (record["terminated_port"], record["observed_port"]) == (1, 2)
     at = record["at"]
     assert at["reference_impedance_ohm"] == 50.0 and at["negative_resistance_possible"]
@@ -155,20 +160,20 @@ def test_command_text_json_and_chart(tmp_path: Path) -> None:
 
 def test_command_with_a_netlist(tmp_path: Path) -> None:
     netlist = tmp_path / "cg.cir"
-    netlist.write_text(f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n rser=0.4\n.twoport s d\n')
+    netlist.write_text(f'N1 g d s file="{TRANSISTOR}"\nLg g 0 1.2n esr=0.4\n.twoport s d\n')
     code, out, _ = _run(
         "terminations", str(netlist), "--at", "5GHz", "--start", "1GHz", "--stop", "10GHz",
         "--points", "91", "--quiet",
     )  # fmt: skip
     assert code == 0
-    assert out.startswith("port 2 terminations making port 1 negative at 5 GHz:")
-    assert "unbounded" in out
+    assert out.startswith("NEGATIVE RESISTANCE POSSIBLE at 5 GHz:")
+    assert "without limit" in out
 
 
 @pytest.mark.parametrize(
     ("arguments", "message"),
     [
-        (["--at", "30GHz"], "leaves the band"),
+        (["--at", "30GHz"], "30 GHz lies outside its data"),
         (["--at", "8GHz", "--start", "1GHz"], "apply to netlists"),
         (["--at", "8 parsecs"], "--at"),
     ],

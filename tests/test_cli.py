@@ -151,7 +151,7 @@ def test_json_has_the_schema_keys(name):
     assert err == ""
     assert code == EXIT_CODES[data["verdict"]]
     assert data.keys() >= REQUIRED_KEYS, REQUIRED_KEYS - data.keys()
-    assert data["schema"] == "oneport.check/2"
+    assert data["schema"] == "oneport.check/3"
     assert data["verdict"] in EXIT_CODES
     assert isinstance(data["reasons"], list) and data["reasons"]
     assert all(isinstance(reason, str) and reason for reason in data["reasons"])

@@ -162,13 +162,13 @@ def test_a_stable_verdict_states_the_resolution_where_the_device_has_gain():
     result = oneport.check(EXAMPLES / "stable" / "device.s1p", _load_file("stable"))
     assert result.verdict == "stable"
     assert result.hidden_resonances == ()  # its measurement noise passes for no feature
-    (sentence,) = [r for r in result.reasons if "resolves a loaded Q" in r]
+    (sentence,) = [r for r in result.reasons if "resolves loaded resonances up to Q =" in r]
     # The load's 801-point linear grid (8.12 MHz steps) at its coarsest point inside the band
     # where the demo diode has gain (up to 4.3 GHz): f/(2Δf) at its lowest interval there.
     load = read_one_port(_load_file("stable"))
     step = load.frequency_hz[1] - load.frequency_hz[0]
     lowest = 0.5 * (load.frequency_hz[0] + load.frequency_hz[1]) / (2 * step)
-    assert f"{lowest:.2g}" in sentence
+    assert f"Q = {lowest:.2g}" in sentence
 
 
 # --- netlist pairs: numpy.roots, the joined circuit's eigenvalues, P ------------------------------
@@ -438,3 +438,26 @@ def test_the_load_of_an_oscillator_can_be_a_netlist(tmp_path):
     np.testing.assert_allclose(side.port.gamma, (z - 75.0) / (z + 75.0), atol=1e-12)
     measured = prepare_load(_load_file("stable"), grid, 75.0)
     assert not measured.is_netlist and measured.port.points == 801
+
+
+def test_a_loop_creeping_towards_plus_one_at_the_low_edge_is_not_closed_by_its_magnitude():
+    # A constant -40 ohm device (stable in 50 ohm: -40 + 50 > 0) into 30 ohm + (20 ohm ∥ 1 uH).
+    # Circuit algebra: Zd + ZL = 0 gives -10 (20 + sL) + 20 sL = 0, a real root s = 20/L =
+    # 2e7 /s: a latch-up whose loop, sampled from 7 MHz up, still has |L| ≈ 0.76 < 1 at the
+    # edge but grows by about 0.36 an octave towards it. One more such octave reaches |L| = 1,
+    # so the closure towards DC is not founded by |L| < 1: not "stable".
+    from oneport.reading.touchstone import OnePort
+
+    frequency_hz = np.geomspace(7e6, 3e9, 801)
+    s = 2j * np.pi * frequency_hz
+    z_load = 30.0 + (20.0 * s * 1e-6) / (20.0 + s * 1e-6)
+    device = OnePort(
+        frequency_hz, np.full(frequency_hz.size, (-40 - 50) / (-40 + 50), complex), 50.0, "device"
+    )
+    load = OnePort(frequency_hz, (z_load - 50) / (z_load + 50), 50.0, "load")
+    result = oneport.check(device, load)
+    assert result.verdict == "inconclusive"
+    assert result.closures[0].basis != "loop-gain-below-unity"
+    # The DC facts decide it (the real root is there): unstable, a latch-up.
+    fixed = oneport.check(device, load, device_dc_resistance_ohm=-40.0, load_dc_resistance_ohm=30.0)
+    assert fixed.verdict == "unstable" and fixed.latch_up

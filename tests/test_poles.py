@@ -281,3 +281,32 @@ def test_agrees_with_the_nyquist_count_of_check():
     )
     assert compare_with_count(result, checked.encirclements) == []
     assert [record["role"] for record in result.to_dict()["inputs"]] == ["device", "load"]
+
+
+@pytest.mark.parametrize("slope", [0.0, 0.3 - 0.1j])
+def test_zeros_of_a_model_match_the_generalized_eigenvalues(slope):
+    # The zeros are found with numpy's eigvals (no scipy import on the fit's path); source:
+    # scipy.linalg.eigvals on the pencil (M, E) of the model's docstring, the QZ reference.
+    from scipy.linalg import eigvals
+
+    from oneport.analysis.rational import RationalModel
+
+    rng = np.random.default_rng(11)
+    for _ in range(20):
+        n = int(rng.integers(1, 9))
+        poles = rng.normal(size=n) * 0.3 - 0.05 + 1j * rng.normal(size=n)
+        residues = rng.normal(size=n) + 1j * rng.normal(size=n)
+        constant = complex(rng.normal(), rng.normal())
+        model = RationalModel(poles, residues, constant, slope, 2e9 * np.pi)
+        matrix = np.zeros((n + 1, n + 1), dtype=complex)
+        matrix[0, 0], matrix[0, 1:], matrix[1:, 0] = constant, residues, 1.0
+        matrix[1:, 1:] = np.diag(poles)
+        weight = np.eye(n + 1, dtype=complex)
+        weight[0, 0] = -slope
+        reference = eigvals(matrix, weight)
+        reference = reference[np.isfinite(reference)]
+        reference = reference[np.abs(reference) < 1e8] * model.angular_scale
+        found = model.zeros()
+        assert found.size == reference.size
+        assert np.sort_complex(found) == pytest.approx(np.sort_complex(reference), rel=1e-8)
+        assert np.abs(model.evaluate(found)).max() < 1e-6

@@ -8,6 +8,7 @@ import re
 import shutil
 import subprocess
 from pathlib import Path
+from xml.etree import ElementTree
 
 import pytest
 
@@ -65,11 +66,13 @@ def test_report_opens_with_the_verdict(oscillating, oscillating_report):
 
 def test_report_order_and_contents(oscillating, oscillating_report):
     text = oscillating_report.read_text(encoding="utf-8")
-    assert "<h1>oneport check: device.s1p into load.s1p</h1>" in text, "default title"
+    device, load = (html.escape(record.source) for record in oscillating.inputs)
+    assert f"<h1>oneport check: {device} into {load}</h1>" in text, "default title: the paths"
     headings = re.findall(r"<h2>(.*?)</h2>", text)
     assert headings[0] == "Inputs"
     assert headings[-2:] == ["Premise", "Cautions"], "premise, then the cautions last"
-    for wanted in ("Bands", "Crossings", "Margins", "Closing", "Warnings", "What to do", "Plots"):
+    wanted_headings = ("Bands", "Crossings", "Distance of L from +1", "Closing", "Modes")
+    for wanted in (*wanted_headings, "Warnings", "What to do", "Plots"):
         assert any(heading.startswith(wanted) for heading in headings), wanted
     for record in oscillating.inputs:
         assert record.sha256 in text
@@ -86,9 +89,13 @@ def test_report_is_self_contained(oscillating_report):
     sources = re.findall(r'<img [^>]*src="([^"]+)"', text)
     assert len(sources) == 3, "Nyquist, loop gain and Smith chart"
     for source in sources:
-        prefix = "data:image/png;base64,"
+        prefix = "data:image/svg+xml;base64,"
         assert source.startswith(prefix)
-        assert base64.b64decode(source[len(prefix) :]).startswith(b"\x89PNG\r\n\x1a\n")
+        picture = base64.b64decode(source[len(prefix) :]).decode("utf-8")
+        root = ElementTree.fromstring(picture)  # well-formed XML (Python's own parser)
+        assert root.tag == "{http://www.w3.org/2000/svg}svg"
+        for forbidden in ("<script", "href", "<image", "<foreignObject", "url(http"):
+            assert forbidden not in picture, forbidden
     assert "Content-Security-Policy" in text
 
 
@@ -100,7 +107,10 @@ def test_hostile_names_and_comments_are_escaped(hostile_result, tmp_path):
     assert html.escape(HOSTILE) in text
     assert "<title>&lt;b&gt;bench&lt;/b&gt; &amp; co</title>" in text
     assert "<b>" not in text
-    assert "device-points-outside-load-band" in text, "the warnings table"
+    warning = next(
+        w for w in hostile_result.warnings if w.code == "device-points-outside-load-band"
+    )
+    assert html.escape(warning.message) in text, "the warnings list"
 
 
 def test_unwritable_report_is_one_line(oscillating, tmp_path):
@@ -157,6 +167,58 @@ def test_chromium_renders_the_report_without_console_messages(
     rendered = _chromium_dump(chromium, oscillating_report, tmp_path / "profile-report")
     assert rendered.returncode == 0, rendered.stderr[-2000:]
     assert html.escape(verdict_line(oscillating)) in rendered.stdout
-    assert rendered.stdout.count("data:image/png;base64,") == 3
+    assert rendered.stdout.count("data:image/svg+xml;base64,") == 3
     console = [line for line in rendered.stderr.splitlines() if "CONSOLE" in line]
     assert console == []
+
+
+# --- the report's pictures (SVG written directly; elements inspected by class) ---------------
+
+
+def _pictures(page: str) -> list[ElementTree.Element]:
+    sources = re.findall(r'src="data:image/svg\+xml;base64,([^"]+)"', page)
+    return [ElementTree.fromstring(base64.b64decode(source)) for source in sources]
+
+
+def _with_class(root: ElementTree.Element, name: str) -> list[ElementTree.Element]:
+    return [element for element in root.iter() if element.get("class") == name]
+
+
+def test_report_pictures_carry_frequency_labels_and_the_true_nyquist_scale(oscillating_report):
+    nyquist, loop_gain, smith = _pictures(oscillating_report.read_text(encoding="utf-8"))
+    ticks = [element.text for element in _with_class(nyquist, "compressed-tick")]
+    assert {"\N{MINUS SIGN}2", "1", "2", "0.5"} <= set(ticks), "ticks at true values of L"
+    assert _with_class(nyquist, "compressed-ring") and _with_class(nyquist, "critical-point")
+    assert [e.text for e in _with_class(nyquist, "crossing-label")] == ["1.648 GHz (cw)"]
+    labels = [element.text or "" for element in _with_class(smith, "smith-frequency-label")]
+    marks = _with_class(smith, "smith-frequency-mark")
+    assert len(labels) == len(marks) >= 6 and all(text.endswith("GHz") for text in labels)
+    assert {mark.get("fill") for mark in marks} == {
+        _with_class(smith, "load-trace")[0].get("stroke"),
+        _with_class(smith, "device-trace")[0].get("stroke"),
+    }, "marks along both traces"
+    smith_text = " ".join(element.text or "" for element in smith.iter())
+    assert smith_text.count("Z0") == 1
+    assert _with_class(loop_gain, "loop-gain-band") and _with_class(
+        loop_gain, "oscillation-frequency"
+    )
+    for picture in (nyquist, loop_gain, smith):
+        assert _with_class(picture, "legend")
+
+
+def test_the_report_needs_no_matplotlib(tmp_path):
+    # The HTML report is written without importing matplotlib (the reason it is quick).
+    import subprocess
+    import sys
+
+    script = (
+        "import sys, oneport\n"
+        "from oneport.rendering.report import write_report\n"
+        f"r = oneport.check({str(EXAMPLES / 'stable/device.s1p')!r},"
+        f" {str(EXAMPLES / 'stable/load.s1p')!r})\n"
+        f"write_report(r, {str(tmp_path / 'r.html')!r})\n"
+        "print('matplotlib' in sys.modules)\n"
+    )
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True)
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.strip() == "False"

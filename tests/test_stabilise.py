@@ -139,9 +139,13 @@ def test_gain_cost_is_the_closed_form_of_the_series_resistor(series_window):
     after = 20 * np.log10(np.abs((changed - Z0) / (changed + Z0)))
     cost = suggestion.cost
     assert cost.kind == "reflection-gain"
-    assert cost.before_db == pytest.approx((before.min(), before.max()), abs=1e-6)
-    assert cost.after_db == pytest.approx((after.min(), after.max()), abs=1e-6)
-    assert cost.largest_loss_db == pytest.approx(np.max(before - after), abs=1e-6)
+    # Linear inside the result (SI), dB in its JSON.
+    assert 20 * np.log10(cost.before) == pytest.approx((before.min(), before.max()), abs=1e-6)
+    assert 20 * np.log10(cost.after) == pytest.approx((after.min(), after.max()), abs=1e-6)
+    assert 20 * np.log10(cost.largest_loss) == pytest.approx(np.max(before - after), abs=1e-6)
+    data = cost.to_dict()
+    assert data["largest_loss_db"] == pytest.approx(np.max(before - after), abs=1e-6)
+    assert data["before_db"]["min"] == pytest.approx(before.min(), abs=1e-6)
 
 
 @pytest.mark.parametrize(
@@ -167,9 +171,11 @@ def test_gain_cost_of_a_pure_negative_resistance(topology, closed_form):
     expected_before = 20 * np.log10(abs((rn + Z0) / (rn - Z0)))
     expected_after = 20 * np.log10(abs((z - Z0) / (z + Z0)))
     assert cost is not None
-    assert cost.before_db[0] == pytest.approx(expected_before, abs=1e-9)
-    assert cost.after_db[1] == pytest.approx(expected_after, abs=1e-9)
-    assert cost.largest_loss_db == pytest.approx(expected_before - expected_after, abs=1e-9)
+    assert 20 * np.log10(cost.before[0]) == pytest.approx(expected_before, abs=1e-9)
+    assert 20 * np.log10(cost.after[1]) == pytest.approx(expected_after, abs=1e-9)
+    assert 20 * np.log10(cost.largest_loss) == pytest.approx(
+        expected_before - expected_after, abs=1e-9
+    )
 
 
 def test_network_in_reflection_form_matches_the_impedance_sum():
@@ -225,7 +231,7 @@ def test_keep_leaves_exactly_the_wanted_mode():
     mode = suggestion.cost
     assert mode.starts and suggestion.verdict_after == "unstable"
     # The pole-zero fit's growth rate and frequency against numpy.roots (within 5 %).
-    assert mode.growth_rate_per_s == pytest.approx(after[0].real, rel=0.05)
+    assert mode.sigma_per_s == pytest.approx(after[0].real, rel=0.05)
     assert mode.natural_frequency_hz == pytest.approx(frequency, rel=0.05)
 
 
@@ -348,7 +354,7 @@ def test_result_json_is_the_schema(shipped):
 
     data = shipped["oscillates"].to_dict()
     text = json.dumps(data, allow_nan=False)  # no NaN or infinity anywhere
-    assert json.loads(text)["schema"] == "oneport.stabilise/1"
+    assert json.loads(text)["schema"] == "oneport.stabilise/2"
     for key in ("verdict", "reasons", "warnings", "cautions", "inputs", "suggestions"):
         assert key in data
     units = {"resistance_ohm", "capacitance_f", "inductance_h"}
@@ -394,7 +400,7 @@ def test_an_already_stable_pair_needs_no_change():
         ({"at_node": ["n1"]}, "not a netlist"),
         ({"tolerance": "L=5%"}, "not a netlist"),
         ({"tolerance": "5"}, "PERCENT%"),
-        ({"tolerance": "5%", "samples": 0}, "at least 1"),
+        ({"tolerance": "5%", "samples": 0}, "from 1 to"),
     ],
 )
 def test_bad_input_is_one_clear_error(options, message):

@@ -32,7 +32,7 @@ def test_json_is_what_the_python_api_returns():
     code, out, err = run_cli("stabilise", *OSCILLATES, "--family", "series-resistor", "--json")
     assert code == 0, err  # CONVENTIONS.md: 0 when the property holds (a network reaches it)
     data = json.loads(out, parse_constant=_refuse_nan)
-    assert data["schema"] == "oneport.stabilise/1" and data["verdict"] == "stabilised"
+    assert data["schema"] == "oneport.stabilise/2" and data["verdict"] == "stabilised"
     api = oneport.stabilise(
         str(OSCILLATES[0]), str(OSCILLATES[2]), families=["series-resistor"]
     ).to_dict()
@@ -44,7 +44,7 @@ def test_text_report_reads_verdict_first_and_cautions_last():
     assert code == 0
     lines = out.splitlines()
     assert lines[0].startswith("STABILISED")
-    assert "shunt-resistor" in lines[0] and "ohm" in lines[0]
+    assert "shunt R 10 ohm" in lines[0], "the network in words and units"
     assert out.index("Suggestions") < out.index("Cautions")
     assert "A stabilising resistor" in out  # its caution (cautions.py)
 

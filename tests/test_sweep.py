@@ -196,7 +196,7 @@ def test_command_line_writes_table_and_summary(tmp_path):
     )
     summary = json.loads(out)
     assert code == 3  # some variants unstable (CONVENTIONS exit code 3)
-    assert summary["schema"] == "oneport.sweep/1"
+    assert summary["schema"] == "oneport.sweep/2"
     assert summary["variants"] == 45 and summary["completed"] == 45
     assert 0 < summary["stable_fraction"] < 1
     assert pyarrow_parquet.read_table(table).num_rows == 45

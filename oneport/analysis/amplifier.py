@@ -11,7 +11,7 @@ holds is :func:`oneport.analysis.small_gain.small_gain_bound`'s answer, the one 
 ``inconclusive``).
 
 Computation only: arrays in, a frozen :class:`AmplifierResult` out. The product that reads files
-is :func:`oneport.products.amplifier.screen_amplifier`; the pictures are in
+is :func:`oneport.products.amplifier.amplifier`; the pictures are in
 :mod:`oneport.rendering.amplifier_plot`.
 """
 
@@ -23,14 +23,15 @@ from typing import Any
 import numpy as np
 
 from ..cautions import CAUTIONS
+from ..display import Displayed
 from ..errors import InputError
 from ..findings import Finding
 from ..reading.records import InputRecord
-from ..units import format_frequency
+from ..units import format_frequency, to_decibels
 from .result import CheckResult
 from .small_gain import EdgeBound, SmallGainBound, bound_premise, bound_words, small_gain_bound
 
-AMPLIFIER_SCHEMA = "oneport.amplifier/2"
+AMPLIFIER_SCHEMA = "oneport.amplifier/3"
 VERDICTS = ("guaranteed", "not-guaranteed", "stable", "unstable", "inconclusive")
 DEFAULT_GAIN_THRESHOLD_DB = 10.0
 #: The bandwidth is where the gain stays within this many dB of its peak.
@@ -39,11 +40,12 @@ BANDWIDTH_DROP_DB = 3.0
 
 @dataclass(frozen=True)
 class GainBand:
-    """A stretch where the gain is at least the threshold (edges interpolated)."""
+    """A stretch where the gain is at least the threshold (edges interpolated); ``peak_gain`` is
+    the largest power gain |Γd|² in it (linear)."""
 
     start_hz: float
     stop_hz: float
-    peak_gain_db: float
+    peak_gain: float
     peak_frequency_hz: float
     starts_at_sweep_edge: bool
     stops_at_sweep_edge: bool
@@ -53,7 +55,7 @@ class GainBand:
         return {
             "start_hz": self.start_hz,
             "stop_hz": self.stop_hz,
-            "peak_gain_db": self.peak_gain_db,
+            "peak_gain_db": _power_db(self.peak_gain),
             "peak_frequency_hz": self.peak_frequency_hz,
             "starts_at_sweep_edge": self.starts_at_sweep_edge,
             "stops_at_sweep_edge": self.stops_at_sweep_edge,
@@ -61,8 +63,8 @@ class GainBand:
         }
 
 
-@dataclass(frozen=True)
-class AmplifierResult:
+@dataclass(frozen=True, repr=False)
+class AmplifierResult(Displayed):
     """Everything the screening found, frozen.
 
     Attributes
@@ -74,17 +76,28 @@ class AmplifierResult:
         ``inconclusive``.
     basis : str
         ``small-gain``, ``nyquist`` or ``none`` (no port stated).
-    gain_db, required_return_loss_db : ndarray
-        10·log10|Γd|² per frequency, and max(0, that): the port return loss the small-gain
-        bound needs.
+    gain_threshold, peak_gain : float
+        Power gains |Γd|² (linear): the threshold a listed band reaches, and the peak.
+    smallest_allowed_reflection : float
+        The smallest of ``allowed_reflection`` (the port match stability needs most), at
+        ``worst_frequency_hz``.
+    port_reflection_bound : float or None
+        The port's largest |ΓL|: from the stated return loss, or the worst of the port file.
+    port_margin : float or None
+        The factor by which the small-gain bound holds beyond scatter and error (> 1: it holds).
+    gain, allowed_reflection : ndarray
+        |Γd|² per frequency (linear power gain), and min(1, 1/|Γd|): the largest port |ΓL| the
+        small-gain bound allows (its return loss is the gain in dB where there is gain).
     port_reflection : ndarray or None
         |ΓL| of the port per frequency (from the stated return loss or the load).
-    gain_bounds_db : (ndarray, ndarray) or None
-        Lower and upper power-gain bounds; the upper is +inf where |Γd·ΓL| ≥ 1.
-    gain_with_load_db : ndarray or None
-        |Γd/(1 − Γd·ΓL)|² in dB when the load's complex reflection is known.
+    gain_bounds : (ndarray, ndarray) or None
+        Lower and upper power-gain bounds (linear); the upper is +inf where |Γd·ΓL| ≥ 1.
+    gain_with_load : ndarray or None
+        |Γd/(1 − Γd·ΓL)|² (linear) when the load's complex reflection is known.
     nyquist : CheckResult or None
         The check with the actual load.
+
+    dB appear only in the JSON's ``_db`` keys and in the reports.
     """
 
     verdict: str
@@ -93,16 +106,16 @@ class AmplifierResult:
     next_steps: tuple[str, ...]
     premise: str
     reference_impedance_ohm: float
-    gain_threshold_db: float
-    peak_gain_db: float
+    gain_threshold: float
+    peak_gain: float
     peak_frequency_hz: float
     bands: tuple[GainBand, ...]
     bandwidth: GainBand
-    worst_required_return_loss_db: float
+    smallest_allowed_reflection: float
     worst_frequency_hz: float
     port_source: str | None
-    port_return_loss_db: float | None
-    port_margin_db: float | None
+    port_reflection_bound: float | None
+    port_margin: float | None
     port_margin_frequency_hz: float | None
     edges: tuple[EdgeBound, ...]
     nyquist: CheckResult | None
@@ -111,20 +124,20 @@ class AmplifierResult:
     inputs: tuple[InputRecord, ...]
     frequency_hz: np.ndarray = field(repr=False)
     gamma_device: np.ndarray = field(repr=False)
-    gain_db: np.ndarray = field(repr=False)
-    required_return_loss_db: np.ndarray = field(repr=False)
+    gain: np.ndarray = field(repr=False)
+    allowed_reflection: np.ndarray = field(repr=False)
     port_reflection: np.ndarray | None = field(repr=False, default=None)
-    gain_bounds_db: tuple[np.ndarray, np.ndarray] | None = field(repr=False, default=None)
-    gain_with_load_db: np.ndarray | None = field(repr=False, default=None)
+    gain_bounds: tuple[np.ndarray, np.ndarray] | None = field(repr=False, default=None)
+    gain_with_load: np.ndarray | None = field(repr=False, default=None)
     bound: SmallGainBound | None = None
 
     @property
-    def ripple_at_peak_db(self) -> tuple[float, float] | None:
-        """Lower and upper power-gain bounds (dB) at the gain peak; upper +inf if unbounded."""
-        if self.gain_bounds_db is None:
+    def ripple_at_peak(self) -> tuple[float, float] | None:
+        """Lower and upper power-gain bounds (linear) at the gain peak; upper +inf if unbounded."""
+        if self.gain_bounds is None:
             return None
-        peak = int(np.argmax(self.gain_db))
-        return float(self.gain_bounds_db[0][peak]), float(self.gain_bounds_db[1][peak])
+        peak = int(np.argmax(self.gain))
+        return float(self.gain_bounds[0][peak]), float(self.gain_bounds[1][peak])
 
     @property
     def guaranteed(self) -> bool | None:
@@ -133,8 +146,17 @@ class AmplifierResult:
             return None
         return self.bound.guaranteed
 
+    def plot(self, ax: Any = None) -> Any:
+        """Gain and the return loss stability needs against frequency (with the port's).
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.amplifier_plot import plot_amplifier
+
+        return plot_amplifier(self, ax)
+
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
-        """The ``oneport.amplifier/1`` JSON object (docs/json-amplifier.md)."""
+        """The ``oneport.amplifier/3`` JSON object (docs/json-amplifier.md)."""
         z0 = self.reference_impedance_ohm
         data: dict[str, Any] = {
             "schema": AMPLIFIER_SCHEMA,
@@ -146,9 +168,9 @@ class AmplifierResult:
             "small_signal": True,
             "gain": {
                 "reference_impedance_ohm": z0,
-                "peak_gain_db": self.peak_gain_db,
+                "peak_gain_db": _power_db(self.peak_gain),
                 "peak_frequency_hz": self.peak_frequency_hz,
-                "threshold_db": self.gain_threshold_db,
+                "threshold_db": _power_db(self.gain_threshold),
                 "bands_above_threshold": [band.to_dict(z0) for band in self.bands],
                 "bandwidth_3db": {
                     **self.bandwidth.to_dict(z0),
@@ -157,7 +179,7 @@ class AmplifierResult:
             },
             "stability_requirement": {
                 "reference_impedance_ohm": z0,
-                "worst_required_return_loss_db": self.worst_required_return_loss_db,
+                "worst_required_return_loss_db": _return_loss_db(self.smallest_allowed_reflection),
                 "worst_frequency_hz": self.worst_frequency_hz,
             },
             "port": self._port_dict(),
@@ -175,23 +197,26 @@ class AmplifierResult:
     def _port_dict(self) -> dict[str, Any] | None:
         if self.port_source is None:
             return None
-        assert self.port_reflection is not None and self.gain_bounds_db is not None
-        lower, upper = self.gain_bounds_db
-        at_peak = self.ripple_at_peak_db
+        assert self.port_reflection is not None and self.gain_bounds is not None
+        lower, upper = self.gain_bounds
+        at_peak = self.ripple_at_peak
         assert at_peak is not None
         return {
             "reference_impedance_ohm": self.reference_impedance_ohm,
             "source": self.port_source,
-            "return_loss_db": self.port_return_loss_db,
+            "return_loss_db": _return_loss_db(self.port_reflection_bound),
             "small_gain_guaranteed": self.guaranteed,
-            "margin_db": self.port_margin_db,
+            "margin_db": _magnitude_db(self.port_margin),
             "margin_frequency_hz": self.port_margin_frequency_hz,
             "ripple_at_peak": {
                 "frequency_hz": self.peak_frequency_hz,
-                "gain_lower_db": at_peak[0],
-                "gain_upper_db": _finite_or_none(at_peak[1]),
+                "gain_lower_db": _power_db(at_peak[0]),
+                "gain_upper_db": _finite_or_none(_power_db(at_peak[1])),
             },
-            "worst_ripple_db": _finite_or_none(float(np.max(upper - lower))),
+            # Each bound in dB first: a gain that underflows to 0 in both gives 0 dB, not 0/0.
+            "worst_ripple_db": _finite_or_none(
+                float(np.max(_power_db_array(upper) - _power_db_array(lower)))
+            ),
             "small_gain_verdict": None if self.bound is None else self.bound.verdict,
             "at_stake_ranges_hz": (
                 [] if self.bound is None else [list(r) for r in self.bound.at_stake_ranges_hz]
@@ -200,7 +225,7 @@ class AmplifierResult:
                 {
                     "side": edge.side,
                     "founded": edge.founded,
-                    "margin_db": edge.margin_db,
+                    "margin_db": _magnitude_db(edge.margin),
                     "note": edge.note,
                 }
                 for edge in self.edges
@@ -212,14 +237,19 @@ class AmplifierResult:
             "reference_impedance_ohm": self.reference_impedance_ohm,
             "frequency_hz": self.frequency_hz.tolist(),
             "gamma_device": [{"re": v.real, "im": v.imag} for v in self.gamma_device.tolist()],
-            "gain_db": self.gain_db.tolist(),
-            "required_return_loss_db": self.required_return_loss_db.tolist(),
+            "gain_db": _power_db_array(self.gain).tolist(),
+            "required_return_loss_db": (0.0 - 20.0 * np.log10(self.allowed_reflection)).tolist(),
         }
-        if self.gain_bounds_db is not None:
-            arrays["gain_lower_db"] = self.gain_bounds_db[0].tolist()
-            arrays["gain_upper_db"] = [_finite_or_none(v) for v in self.gain_bounds_db[1].tolist()]
-        if self.gain_with_load_db is not None:
-            arrays["gain_with_load_db"] = [_finite_or_none(v) for v in self.gain_with_load_db]
+        if self.gain_bounds is not None:
+            arrays["gain_lower_db"] = _power_db_array(self.gain_bounds[0]).tolist()
+            arrays["gain_upper_db"] = [
+                _finite_or_none(v) for v in _power_db_array(self.gain_bounds[1]).tolist()
+            ]
+        if self.gain_with_load is not None:
+            # +inf where the loaded gain has a pole: null in JSON (docs/json-amplifier.md).
+            arrays["gain_with_load_db"] = [
+                _finite_or_none(v) for v in _power_db_array(self.gain_with_load).tolist()
+            ]
         return arrays
 
 
@@ -262,16 +292,20 @@ def analyse_amplifier(
     --------
     A pure −75 Ω in 50 Ω gains ((75 + 50)/(75 − 50))² = 25, 13.98 dB:
 
+    >>> import math
     >>> f = np.linspace(0.0, 1e9, 11)
     >>> result = analyse_amplifier(f, np.full(11, 5.0 + 0j), 50.0, port_return_loss_db=20.0)
-    >>> round(result.peak_gain_db, 2), result.verdict
-    (13.98, 'guaranteed')
+    >>> round(result.peak_gain, 6), round(10 * math.log10(result.peak_gain), 2), result.verdict
+    (25.0, 13.98, 'guaranteed')
     """
     frequency_hz, gamma_device, port = _validated(
         frequency_hz, gamma_device, port_return_loss_db, gamma_port
     )
     z0 = float(reference_impedance_ohm)
-    gain_db = 20.0 * np.log10(np.maximum(np.abs(gamma_device), 1e-300))
+    magnitude = np.maximum(np.abs(gamma_device), 1e-300)
+    gain = magnitude**2
+    gain_db = 20.0 * np.log10(magnitude)  # the bands' edges are interpolated in dB
+    allowed = np.minimum(1.0 / magnitude, 1.0)
     required = np.maximum(gain_db, 0.0)
     peak = int(np.argmax(gain_db))
     worst = int(np.argmax(required))
@@ -286,16 +320,16 @@ def analyse_amplifier(
     bound = None
     if port is not None:
         bound = small_gain_bound(frequency_hz, gamma_device, port)
-        margin, margin_frequency = bound.margin_db, bound.margin_frequency_hz
+        margin, margin_frequency = bound.margin, bound.margin_frequency_hz
         edges = bound.edges
     with_load = None
     if gamma_port is not None:
-        # Where Γd·Γport = 1 the loaded gain has a pole: unbounded (+inf dB; null in JSON).
+        # Where Γd·Γport = 1 the loaded gain has a pole: unbounded (+inf; null in JSON).
         with np.errstate(divide="ignore", invalid="ignore"):
             effective = np.abs(gamma_device) / np.abs(1.0 - gamma_device * gamma_port)
         effective = np.where(np.isnan(effective), np.inf, effective)
-        with_load = 20.0 * np.log10(np.maximum(effective, 1e-300))
-    partial = _Partial(frequency_hz, gain_db, required, z0, bound, source, nyquist)
+        with_load = np.maximum(effective, 1e-300) ** 2
+    partial = _Partial(frequency_hz, gain_db, allowed, z0, bound, source, nyquist)
     verdict, basis, reasons, steps = _decide(partial)
     return AmplifierResult(
         verdict=verdict,
@@ -304,16 +338,16 @@ def analyse_amplifier(
         next_steps=tuple(steps),
         premise=bound_premise(z0, frequency_hz) if nyquist is None else nyquist.premise,
         reference_impedance_ohm=z0,
-        gain_threshold_db=float(gain_threshold_db),
-        peak_gain_db=float(gain_db[peak]),
+        gain_threshold=float(10.0 ** (gain_threshold_db / 10.0)),
+        peak_gain=float(gain[peak]),
         peak_frequency_hz=float(frequency_hz[peak]),
         bands=tuple(_bands(frequency_hz, gain_db, float(gain_threshold_db))),
         bandwidth=_bandwidth(frequency_hz, gain_db, peak),
-        worst_required_return_loss_db=float(required[worst]),
+        smallest_allowed_reflection=float(allowed[worst]),
         worst_frequency_hz=float(frequency_hz[worst]),
         port_source=source,
-        port_return_loss_db=_port_return_loss(port_return_loss_db, port),
-        port_margin_db=margin,
+        port_reflection_bound=None if port is None else float(np.max(port)),
+        port_margin=margin,
         port_margin_frequency_hz=margin_frequency,
         edges=edges,
         nyquist=nyquist,
@@ -322,11 +356,11 @@ def analyse_amplifier(
         inputs=inputs,
         frequency_hz=frequency_hz,
         gamma_device=gamma_device,
-        gain_db=gain_db,
-        required_return_loss_db=required,
+        gain=gain,
+        allowed_reflection=allowed,
         port_reflection=port,
-        gain_bounds_db=bounds,
-        gain_with_load_db=with_load,
+        gain_bounds=bounds,
+        gain_with_load=with_load,
         bound=bound,
     )
 
@@ -364,31 +398,44 @@ def _validated(
 
 
 def _gain_bounds(gamma_device: np.ndarray, port: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Power-gain bounds in dB: |Γd|/(1 ± |Γd·ΓL|), squared; +inf where |Γd·ΓL| ≥ 1."""
+    """Power-gain bounds (linear): (|Γd|/(1 ± |Γd·ΓL|))²; +inf where |Γd·ΓL| ≥ 1."""
     magnitude = np.abs(gamma_device)
     loop = magnitude * port
-    lower = 20.0 * np.log10(np.maximum(magnitude / (1.0 + loop), 1e-300))
+    lower = np.maximum(magnitude / (1.0 + loop), 1e-300) ** 2
     with np.errstate(divide="ignore"):
         upper = np.where(
-            loop < 1.0, 20.0 * np.log10(np.maximum(magnitude, 1e-300) / np.abs(1.0 - loop)), np.inf
+            loop < 1.0, (np.maximum(magnitude, 1e-300) / np.abs(1.0 - loop)) ** 2, np.inf
         )
     return lower, upper
 
 
-def _port_return_loss(stated: float | None, port: np.ndarray | None) -> float | None:
-    """The stated return loss, or the worst (smallest) one of the port file, dB."""
-    if stated is not None:
-        return float(stated)
-    if port is None:
+def _power_db(ratio: float) -> float:
+    """A power ratio in dB, for the ``_db`` keys (+inf stays +inf)."""
+    return float(10.0 * np.log10(max(ratio, 1e-300))) if np.isfinite(ratio) else float(ratio)
+
+
+def _power_db_array(ratio: np.ndarray) -> np.ndarray:
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.asarray(10.0 * np.log10(np.maximum(ratio, 1e-300)))
+
+
+def _magnitude_db(factor: float | None) -> float | None:
+    """A magnitude or margin factor in dB (20·log10), for the ``_db`` keys."""
+    return None if factor is None else float(20.0 * np.log10(max(factor, 1e-300)))
+
+
+def _return_loss_db(reflection: float | None) -> float | None:
+    """A reflection bound as a return loss, dB (0.0, never −0.0, for |Γ| = 1)."""
+    if reflection is None:
         return None
-    return float(-20.0 * np.log10(np.maximum(np.max(port), 1e-300)))
+    return float(0.0 - 20.0 * np.log10(max(reflection, 1e-300)))
 
 
 @dataclass(frozen=True)
 class _Partial:
     frequency_hz: np.ndarray
     gain_db: np.ndarray
-    required_db: np.ndarray
+    allowed_reflection: np.ndarray
     z0: float
     bound: SmallGainBound | None
     source: str | None
@@ -416,7 +463,7 @@ def _decide(partial: _Partial) -> tuple[str, str, list[str], list[str]]:
         if partial.source == "any-passive-port"
         else "the stated port match"
     )
-    reasons, steps = bound_words(partial.bound, partial.required_db, f, partial.z0, what)
+    reasons, steps = bound_words(partial.bound, partial.allowed_reflection, f, partial.z0, what)
     return partial.bound.verdict, "small-gain", reasons, steps
 
 
@@ -429,8 +476,8 @@ def _decide_with_load(
     bound = partial.bound
     if bound is not None and bound.guaranteed:
         reasons.append(
-            f"The small-gain bound also holds with this port ({bound.margin_db:.1f} dB beyond"
-            " the data's scatter)."
+            f"The small-gain bound also holds with this port ({to_decibels(bound.margin):.1f} dB"
+            " beyond the data's scatter)."
         )
     else:
         reasons.append(
@@ -475,7 +522,7 @@ def _band(
     return GainBand(
         start_hz=float(start),
         stop_hz=float(stop),
-        peak_gain_db=float(gain_db[peak]),
+        peak_gain=float(10.0 ** (gain_db[peak] / 10.0)),
         peak_frequency_hz=float(frequency_hz[peak]),
         starts_at_sweep_edge=first == 0,
         stops_at_sweep_edge=last == frequency_hz.size - 1,

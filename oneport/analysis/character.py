@@ -28,7 +28,7 @@ from ..cautions import CAUTIONS
 from ..errors import InputError
 from ..findings import Finding
 from ..reading.touchstone import OnePort
-from ..units import format_frequency
+from ..units import format_count, format_frequency, format_plain
 from .nyquist import UNSAFE_PHASE_STEP_RAD, estimate_noise, find_bands
 from .pole_zero import NaturalFrequency, TrustRules, assess_roots, in_reach
 from .rational import FitSet, fit_with_variants
@@ -42,9 +42,9 @@ EDGE_WINDOW_RATIO = 1.1
 PHASE_TOLERANCE_RAD = np.deg2rad(30.0)
 
 _TERMINATIONS = {
-    "open": "open-circuited: poles of Zd, zeros of Yd (roots of gamma_device = 1)",
-    "short": "short-circuited: zeros of Zd, poles of Yd (roots of gamma_device = -1)",
-    "reference": "terminated in the reference impedance: poles of gamma_device",
+    "open": "open-circuited: poles of Zd, zeros of Yd (roots of Γd = 1)",
+    "short": "short-circuited: zeros of Zd, poles of Yd (roots of Γd = -1)",
+    "reference": "terminated in the reference impedance: poles of Γd",
 }
 _KIND_ADVICE = {
     "open-circuit-stable": (
@@ -344,8 +344,8 @@ def _summary(kind: str, terminations: tuple[TerminationModes, ...], z0: float) -
     reference = terminations[2]
     if reference.stable is False:
         sentences.append(
-            f"The fitted device is unstable terminated in {z0:g} ohm (right-half-plane pole(s)"
-            " of gamma_device). A device cannot be measured without oscillating in the"
+            f"The fitted device is unstable terminated in {z0:g} ohm (poles of Γd in the right"
+            " half plane). A device cannot be measured without oscillating in the"
             " impedance that makes it unstable: if these data are a measurement in"
             f" {z0:g} ohm they are suspect; if they were renormalised to {z0:g} ohm, analyse"
             " them in the impedance they were measured in. The reflection-form Nyquist count's"
@@ -381,8 +381,9 @@ def _findings(fits: FitSet) -> list[Finding]:
     return [
         Finding(
             "poor-fit",
-            f"The rational fit of gamma_device misses the data by {fits.rms_error:.3g} RMS,"
-            f" above their noise ({fits.noise_estimate:.3g}): the natural frequencies are"
+            f"The rational fit of Γd misses the data by {format_plain(fits.rms_error)} RMS,"
+            f" above their noise ({format_plain(fits.noise_estimate)}): the natural frequencies"
+            " are"
             " uncertain.",
             {"fit_rms_error": fits.rms_error, "noise_estimate": fits.noise_estimate},
         )
@@ -417,8 +418,8 @@ def _forms(
     return (
         FormCount(
             "reflection",
-            "1 - gamma_device * gamma_load",
-            f"the device is stable terminated in {z0:g} ohm (no poles of gamma_device in the"
+            "1 - Γd·ΓL",
+            f"the device is stable terminated in {z0:g} ohm (no poles of Γd in the"
             " right half plane)",
             reflection.encirclements,
             reference.rhp_count,
@@ -478,7 +479,11 @@ def winding_count(frequency_hz: np.ndarray, values: np.ndarray) -> tuple[int | N
     frequency_hz, values = frequency_hz[finite], values[finite]
     notes = []
     if not finite.all():
-        notes.append(f"{int((~finite).sum())} sample(s) with an infinite value were left out.")
+        left = int((~finite).sum())
+        notes.append(
+            f"{format_count(left, 'sample')} with an infinite value"
+            f" {'was' if left == 1 else 'were'} left out."
+        )
     if values.size < 3:
         notes.append("Fewer than three usable samples: nothing to count.")
         return None, notes
@@ -486,7 +491,7 @@ def winding_count(frequency_hz: np.ndarray, values: np.ndarray) -> tuple[int | N
     step = float(np.max(np.abs(np.diff(phase)))) if phase.size > 1 else 0.0
     if step > UNSAFE_PHASE_STEP_RAD:
         notes.append(
-            f"The phase moves by {np.degrees(step):.0f} degrees between neighbouring samples:"
+            f"The phase moves by {np.degrees(step):.0f}° between neighbouring samples:"
             " too coarse a grid to count."
         )
         return None, notes
@@ -527,8 +532,8 @@ def _edge_law(
         return (
             None,
             0.0,
-            f"{where[0].upper() + where[1:]} the data follow no clean power law (exponent"
-            f" {exponent:.2f}, phase {np.degrees(phase[edge]):.0f} degrees at"
+            f"{where[0].upper() + where[1:]} the data follow no clean power law (they go as"
+            f" f^{exponent:.2f}, phase {np.degrees(phase[edge]):.0f}° at"
             f" {format_frequency(frequency_hz[edge])}): the contour cannot be closed; extend"
             " the sweep.",
         )
@@ -562,6 +567,14 @@ _FAILURES = {
 }
 
 
+def _roots(count: int | None) -> str:
+    if count is None:
+        return "an unknown number of right-half-plane natural frequencies"
+    return format_count(
+        count, "right-half-plane natural frequency", "right-half-plane natural frequencies"
+    )
+
+
 def _agreement(forms: tuple[FormCount, ...]) -> list[str]:
     counted = [f for f in forms if f.encirclements is not None]
     if len(counted) < 2:
@@ -574,8 +587,8 @@ def _agreement(forms: tuple[FormCount, ...]) -> list[str]:
         if form.premise_poles:
             sentences.append(
                 f"The {form.form} form ({form.function}) counts N = {form.encirclements}, but"
-                f" its premise fails: {_FAILURES[form.form]} ({form.premise_poles}"
-                " right-half-plane natural frequency(ies) there), so the roots number"
+                f" its premise fails: {_FAILURES[form.form]} ({_roots(form.premise_poles)}"
+                " there), so the roots number"
                 f" N + P = {form.implied_rhp_roots}."
             )
         elif form.premise_poles is None:
@@ -585,9 +598,11 @@ def _agreement(forms: tuple[FormCount, ...]) -> list[str]:
             )
     implied = {f.implied_rhp_roots for f in counted}
     if None not in implied and len(implied) == 1:
+        roots = implied.pop() or 0
         sentences.append(
-            f"Corrected for the failing premise(s), every form gives {implied.pop()} natural"
-            " frequency(ies) in the right half plane."
+            "Corrected for the premises that fail, every form gives"
+            f" {format_count(roots, 'natural frequency', 'natural frequencies')} in the"
+            " right half plane."
         )
     else:
         sentences.append(

@@ -21,9 +21,10 @@ from typing import Any
 import numpy as np
 
 from ..cautions import CAUTIONS
+from ..display import Displayed
 from ..findings import Finding
 from ..reading.records import InputRecord
-from ..units import format_frequency
+from ..units import format_count, format_frequency, format_plain, format_rate
 from .rational import DEFAULT_MAX_ORDER, FitSet, RationalModel, fit_with_variants, validated_samples
 
 POLES_SCHEMA = "oneport.poles/2"
@@ -105,8 +106,8 @@ class NaturalFrequency:
         }
 
 
-@dataclass(frozen=True)
-class PoleZeroResult:
+@dataclass(frozen=True, repr=False)
+class PoleZeroResult(Displayed):
     """What a rational fit of F = 1 − Γd·ΓL says about the closed circuit's natural frequencies.
 
     Attributes
@@ -164,6 +165,15 @@ class PoleZeroResult:
     def frequency_range_hz(self) -> tuple[float, float]:
         """The fitted band, Hz."""
         return float(self.frequency_hz[0]), float(self.frequency_hz[-1])
+
+    def plot(self, ax: Any = None) -> Any:
+        """The natural frequencies and the fit's poles, frequency against growth rate.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.poles_plot import plot_poles
+
+        return plot_poles(self, ax)
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
         """The ``oneport.poles/1`` JSON object (docs/json-poles.md)."""
@@ -328,8 +338,8 @@ def _mode(
         )
     if noisy:
         reasons.append(
-            f"It is closer to the jw axis (|sigma| = {abs(root.real):.3g} /s) than the data's"
-            f" noise can move it (about {spread:.3g} /s): its side is uncertain."
+            f"It is closer to the jω axis (|σ| = {format_rate(abs(root.real))}) than the data's"
+            f" noise can move it (about {format_rate(spread)}): its side is uncertain."
         )
     trusted = order_ok and band_ok and not near and not extrapolated and not noisy
     return NaturalFrequency(
@@ -452,21 +462,23 @@ def _decide(modes: tuple[NaturalFrequency, ...], fits: FitSet) -> tuple[str, lis
     trusted = [m for m in rhp if m.trusted]
     if not fits.adequate:
         return "inconclusive", [
-            f"The rational fit misses the data by {fits.rms_error:.3g} RMS, well above their"
-            f" noise ({fits.noise_estimate:.3g}): the model is too poor to locate the natural"
+            f"The rational fit misses the data by {format_plain(fits.rms_error)} RMS, well above"
+            f" their noise ({format_plain(fits.noise_estimate)}): the model is too poor to"
+            " locate the natural"
             " frequencies. A finer or cleaner sweep, or a narrower band, may help."
         ]
     if trusted:
         listed = "; ".join(_describe(m) for m in trusted)
         count = sum(m.multiplicity for m in trusted)
         return "unstable", [
-            f"{count} natural frequency(ies) in the right half plane, confirmed across model"
+            f"{format_count(count, 'natural frequency', 'natural frequencies')} in the right half"
+            " plane, confirmed across model"
             f" order and band: {listed}."
         ]
     if rhp:
         listed = "; ".join(_describe(m) for m in rhp)
         return "inconclusive", [
-            f"The fit has right-half-plane zero(s) it cannot confirm: {listed}. See each"
+            f"The fit has right-half-plane zeros it cannot confirm: {listed}. See each"
             " mode's reasons; a finer, cleaner or wider sweep would decide."
         ]
     return "stable", [
@@ -477,8 +489,8 @@ def _decide(modes: tuple[NaturalFrequency, ...], fits: FitSet) -> tuple[str, lis
 
 def _describe(mode: NaturalFrequency) -> str:
     if mode.real:
-        return f"a real root at sigma = {mode.sigma_per_s:.3g} /s (latch-up)"
-    return f"{format_frequency(mode.frequency_hz)} growing at sigma = {mode.sigma_per_s:.3g} /s"
+        return f"a real root at σ = {format_rate(mode.sigma_per_s)} (latch-up)"
+    return f"{format_frequency(mode.frequency_hz)} growing at σ = {format_rate(mode.sigma_per_s)}"
 
 
 def _findings(
@@ -492,9 +504,9 @@ def _findings(
         findings.append(
             Finding(
                 "extrapolated-rhp-zero",
-                f"{len(far)} right-half-plane zero(s) of the model lie far outside the fitted"
-                " band; the data cannot confirm or exclude them, and they do not enter the"
-                " verdict.",
+                f"{format_count(len(far), 'right-half-plane zero')} of the model"
+                f" {'lies' if len(far) == 1 else 'lie'} far outside the fitted band; the data"
+                " cannot confirm or exclude them, and they do not enter the verdict.",
                 {"natural_frequencies": [m.to_dict() for m in far]},
             )
         )
@@ -503,7 +515,7 @@ def _findings(
         findings.append(
             Finding(
                 "rhp-pole-of-characteristic",
-                "The fitted F has right-half-plane pole(s): a side is unstable terminated in"
+                "The fitted F has poles in the right half plane: a side is unstable terminated in"
                 " the reference impedance, so the Nyquist count's premise fails (N = zeros -"
                 " poles in the right half plane). The zeros found here do not rely on it.",
                 {"poles": [p.to_dict() for p in unstable_poles]},
@@ -513,8 +525,8 @@ def _findings(
         findings.append(
             Finding(
                 "poor-fit",
-                f"RMS fit error {fits.rms_error:.3g} against estimated noise"
-                f" {fits.noise_estimate:.3g}.",
+                f"RMS fit error {format_plain(fits.rms_error)} against estimated noise"
+                f" {format_plain(fits.noise_estimate)}.",
                 {"fit_rms_error": fits.rms_error, "noise_estimate": fits.noise_estimate},
             )
         )
@@ -614,7 +626,8 @@ def _count_and_fit(fit: PoleZeroResult, check: Any, disagreement: tuple[Finding,
         if modes:
             return [
                 first + ".",
-                f"The fit finds {trusted} trusted right-half-plane natural frequency(ies)"
+                f"The fit finds {trusted} trusted right-half-plane"
+                f" {'natural frequency' if trusted == 1 else 'natural frequencies'}"
                 f" ({listed}): treat the circuit as unstable until a wider or finer sweep lets"
                 " the count decide. The fit cannot show stability beyond its band either.",
             ]
@@ -625,7 +638,8 @@ def _count_and_fit(fit: PoleZeroResult, check: Any, disagreement: tuple[Finding,
         ]
     first = f"The Nyquist count gives Z = {count} ({check.verdict})."
     if not disagreement:
-        agree = f"The fit agrees: {trusted} trusted right-half-plane natural frequency(ies)" + (
+        noun = "natural frequency" if trusted == 1 else "natural frequencies"
+        agree = f"The fit agrees: {trusted} trusted right-half-plane {noun}" + (
             f" ({listed})." if listed else "."
         )
         return [first, agree]
@@ -644,7 +658,8 @@ def _likely_reasons(result: PoleZeroResult, encirclements: int) -> list[str]:
     unstable_poles = sum(p.multiplicity for p in result.characteristic_poles if p.rhp and p.trusted)
     if unstable_poles and encirclements + unstable_poles == result.trusted_rhp_count:
         reasons.append(
-            f"the fit shows {unstable_poles} right-half-plane pole(s) of F (a side unstable in"
+            f"the fit shows {format_count(unstable_poles, 'right-half-plane pole')} of F (a side"
+            " unstable in"
             " Z0), and the count N = zeros - poles then agrees (premise of the count fails)."
         )
     width = f[-1] - f[0]
@@ -661,12 +676,14 @@ def _likely_reasons(result: PoleZeroResult, encirclements: int) -> list[str]:
     unconfirmed = [m for m in result.natural_frequencies if m.rhp and not m.trusted]
     if unconfirmed:
         reasons.append(
-            f"{len(unconfirmed)} right-half-plane candidate(s) failed the trust rules (order or"
+            f"{format_count(len(unconfirmed), 'right-half-plane candidate')} failed the trust"
+            " rules (order or"
             " band sensitivity, cancellation, noise): see each mode's reasons."
         )
     finest_q = float(np.min(f[1:] / (2.0 * np.diff(f))))
     reasons.append(
-        f"a resonance sharper than the grid resolves (loaded Q above about {finest_q:.3g}) would"
+        f"a resonance sharper than the grid resolves (loaded Q above about"
+        f" {format_plain(finest_q, 2)}) would"
         " escape both (unresolved resonance); measure with a finer step."
     )
     if result.noise_estimate > 0.0 and float(np.min(np.abs(result.characteristic))) < (
@@ -674,7 +691,7 @@ def _likely_reasons(result: PoleZeroResult, encirclements: int) -> list[str]:
     ):
         reasons.append(
             "|F| comes within the data's noise of zero, so noise can move a root across the"
-            " jw axis or flip a crossing (noise)."
+            " jω axis or flip a crossing (noise)."
         )
     return reasons
 

@@ -80,6 +80,21 @@ class RationalModel:
             slope = (self.slope + terms.sum(axis=-1)) / self.angular_scale
         return np.where(np.isnan(slope), np.inf, slope)
 
+    def _pencil_zeros(self) -> np.ndarray:
+        """The pencil's eigenvalues by the QZ method (scipy), for the rare case with neither a
+        slope nor a constant left (two roots at infinity)."""
+        from scipy.linalg import eigvals
+
+        n = self.order
+        matrix = np.zeros((n + 1, n + 1), dtype=complex)
+        matrix[0, 1:] = self.residues
+        matrix[1:, 0] = 1.0
+        matrix[1:, 1:] = np.diag(self.poles)
+        weight = np.eye(n + 1, dtype=complex)
+        weight[0, 0] = 0.0
+        roots: np.ndarray = eigvals(matrix, weight)
+        return roots
+
     def pole_frequencies(self) -> np.ndarray:
         """Poles in rad/s."""
         return self.poles * self.angular_scale
@@ -91,16 +106,23 @@ class RationalModel:
         and E = diag(−slope, 1, …, 1), whose determinant is Π(p − x)·(f(x) − level).
         """
         n = self.order
-        matrix = np.zeros((n + 1, n + 1), dtype=complex)
-        matrix[0, 0] = self.constant - level
-        matrix[0, 1:] = self.residues
-        matrix[1:, 0] = 1.0
-        matrix[1:, 1:] = np.diag(self.poles)
-        weight = np.eye(n + 1, dtype=complex)
-        weight[0, 0] = -self.slope
-        from scipy.linalg import eigvals
-
-        roots = eigvals(matrix, weight)
+        offset = complex(self.constant - level)
+        if self.slope != 0.0:
+            # E is invertible: the pencil's eigenvalues are those of E⁻¹M (numpy's eigvals; no
+            # scipy import for a fit).
+            matrix = np.zeros((n + 1, n + 1), dtype=complex)
+            matrix[0, 0] = offset / -self.slope
+            matrix[0, 1:] = self.residues / -self.slope
+            matrix[1:, 0] = 1.0
+            matrix[1:, 1:] = np.diag(self.poles)
+            roots: np.ndarray = np.linalg.eigvals(matrix)
+        elif offset != 0.0:
+            # No slope: one root is at infinity, the others are the zeros of
+            # offset + Σ r/(x − p), the eigenvalues of diag(p) − 1·rᵀ/offset.
+            rank_one = np.outer(np.ones(n), self.residues) / offset
+            roots = np.linalg.eigvals(np.diag(self.poles) - rank_one)
+        else:
+            roots = self._pencil_zeros()
         roots = roots[np.isfinite(roots)]
         # Eigenvalues this far out stand for roots at infinity (a vanishing direct term).
         return roots[np.abs(roots) < 1e8] * self.angular_scale
@@ -377,9 +399,14 @@ def _realisation(poles: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         else:
             blocks.append(np.array([[pole.real, pole.imag], [-pole.imag, pole.real]]))
             inputs.append([2.0, 0.0])
-    from scipy.linalg import block_diag
-
-    return block_diag(*blocks), np.concatenate(inputs)
+    size = sum(block.shape[0] for block in blocks)
+    state = np.zeros((size, size))
+    start = 0
+    for block in blocks:
+        stop = start + block.shape[0]
+        state[start:stop, start:stop] = block
+        start = stop
+    return state, np.concatenate(inputs)
 
 
 def _relocate(x: np.ndarray, y: np.ndarray, poles: np.ndarray, proper: bool) -> np.ndarray | None:

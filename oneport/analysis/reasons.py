@@ -17,7 +17,7 @@ import numpy as np
 from ..cautions import CAUTIONS
 from ..findings import Finding
 from ..reading.records import InputRecord
-from ..units import format_frequency
+from ..units import format_frequency, format_plain, format_rate, format_resistance
 from . import diagnostics, nyquist
 from .judgement import (
     DOUBT_ACTIVE_LOAD,
@@ -33,7 +33,7 @@ from .judgement import (
 )
 from .nyquist import EdgeClosure
 from .result import CheckResult, Uncertainty
-from .startup import startup_estimates
+from .startup import Mode, continued_root, modes_agreeing_with_count, startup_estimates
 
 
 @dataclass(frozen=True)
@@ -62,6 +62,8 @@ class PairContext:
         Warnings from reading and preparing the sides.
     grid_chosen : bool
         True when the tool chose the grid (two netlists).
+    dc_resistances_ohm : (float or None, float or None)
+        The DC resistances stated for the device and the load, Ω (None where not stated).
     """
 
     inputs: tuple[InputRecord, InputRecord]
@@ -75,6 +77,7 @@ class PairContext:
     natural_frequencies: np.ndarray | None = None
     findings: tuple[Finding, ...] = ()
     grid_chosen: bool = False
+    dc_resistances_ohm: tuple[float | None, float | None] = (None, None)
 
 
 def describe(
@@ -133,7 +136,7 @@ def describe(
     if step > nyquist.UNSAFE_PHASE_STEP_RAD:
         index = int(np.argmax(np.abs(nyquist.phase_steps(loop_gain))))
         reasons.append(
-            f"The phase of 1 - L jumps by {np.degrees(step):.0f} degrees between"
+            f"The phase of 1 - L jumps by {np.degrees(step):.0f}° between"
             f" {format_frequency(frequency_hz[index])} and"
             f" {format_frequency(frequency_hz[index + 1])}: too coarse a grid to unwrap safely."
         )
@@ -186,6 +189,7 @@ def describe(
             resolution = diagnostics.grid_resolution(grid, record.source, np.array(gain_bands))
             if resolution is not None:
                 grids.append(resolution)
+    modes = _established_modes(verdict, count, frequency_hz, loop_gain, z0, exact, oscillation)
     return CheckResult(
         verdict=verdict,
         reasons=tuple(reasons),
@@ -214,7 +218,59 @@ def describe(
         gamma_load=gamma_load,
         loop_gain=loop_gain,
         natural_frequencies=() if exact is None else tuple(complex(s) for s in exact),
+        modes=modes,
+        dc_resistances_ohm=context.dc_resistances_ohm,
+        dc_facts_source=context.dc_facts if low.basis == "dc-resistances" else None,
     )
+
+
+def _established_modes(
+    verdict: str,
+    count: int | None,
+    frequency_hz: np.ndarray,
+    loop_gain: np.ndarray,
+    z0: float,
+    exact: np.ndarray | None,
+    oscillation_hz: tuple[float, ...],
+) -> tuple[Mode, ...] | None:
+    """The modes the count establishes, with frequency and growth rate (METHODS §4).
+
+    Only under an unstable verdict, and only when they number the count exactly: the joined
+    circuit's exact natural frequencies when both sides are lumped netlists; else Newton's
+    iteration on F continued off the jω axis near each clockwise crossing that carries the
+    count; else (a real root, or a pair the crossings miss) the trusted right-half-plane zeros
+    of a rational fit of F within reach of the band. None when no source accounts for the
+    count; one-step estimates are never listed as modes.
+    """
+    if verdict != "unstable" or not count or count < 0:
+        return None
+    if exact is not None and exact.size:
+        return modes_agreeing_with_count(exact, count, "exact")
+    characteristic = 1.0 - loop_gain
+    roots = [continued_root(frequency_hz, characteristic, f) for f in oscillation_hz]
+    if roots and all(root is not None for root in roots):
+        distinct: list[complex] = []
+        for root in roots:
+            assert root is not None
+            if all(abs(root - other) > 0.03 * abs(root) for other in distinct):
+                distinct.append(root)
+        modes = modes_agreeing_with_count(distinct, count, "continuation")
+        if modes is not None:
+            return modes
+    from .pole_zero import identify_natural_frequencies
+
+    try:
+        fitted = identify_natural_frequencies(
+            frequency_hz, characteristic, reference_impedance_ohm=z0
+        )
+    except ValueError:
+        return None
+    trusted = [
+        complex(m.sigma_per_s, 2.0 * np.pi * m.frequency_hz)
+        for m in fitted.natural_frequencies
+        if m.rhp and m.trusted and not m.extrapolated
+    ]
+    return modes_agreeing_with_count(trusted, count, "pole-zero-fit")
 
 
 def _edges(
@@ -229,8 +285,9 @@ def _edges(
     if not low.founded:
         reasons.append(
             f"At the low edge ({format_frequency(frequency_hz[0])}) |L| ="
-            f" {abs(low.loop_gain_at_edge):.3g} is not below 1 and L is still moving (about"
-            f" {low.motion:.2g} per octave), so the loop cannot be closed towards DC from these"
+            f" {format_plain(abs(low.loop_gain_at_edge))} is not below 1 and L is still moving"
+            f" (|ΔL| about {format_plain(low.motion, 2)} per octave), so the loop cannot be closed"
+            " towards DC from these"
             " data."
         )
         if low.extend_to_hz is not None:
@@ -247,8 +304,9 @@ def _edges(
     if not high.founded:
         reasons.append(
             f"At the top edge ({format_frequency(frequency_hz[-1])}) |L| ="
-            f" {abs(high.loop_gain_at_edge):.3g} is not below 1 by more than the data's"
-            f" scatter and the stated |gamma| errors (margin {high.margin:.2g}): above the sweep"
+            f" {format_plain(abs(high.loop_gain_at_edge))} is not below 1 by more than the data's"
+            f" scatter and the stated |Γ| errors (|L| would need to stay below"
+            f" {format_plain(1.0 - high.margin, 2)} there): above the sweep"
             " the device's parasitics and the load's resonances are unknown, and a band-limited"
             " or truncated file looks settled at its last points, so the loop cannot be closed"
             " towards infinite frequency from these data."
@@ -259,7 +317,7 @@ def _edges(
                 f"Both netlists were evaluated up to {format_frequency(frequency_hz[-1])} and"
                 " |L| is still not below 1 there: the models keep their gain at every"
                 " frequency. Add the parasitics that take it away, as a real device's do, or"
-                " give losses as rser= rather than q= so the loop's limit can be computed."
+                " give losses as esr= rather than q= so the loop's limit can be computed."
             )
         elif high.extend_to_hz is not None:
             target = format_frequency(high.extend_to_hz)
@@ -279,7 +337,8 @@ def _count_words(
 ) -> None:
     """The count in words, with its reading (premise failed, stable, unstable); ``doubted``
     when a doubt leaves it unproven (the doubts' own sentences follow)."""
-    including = f" (including P = {poles} pole(s) of F from a netlist side)" if poles else ""
+    poles_words = "pole" if poles == 1 else "poles"
+    including = f" (including P = {poles} {poles_words} of F from a netlist side)" if poles else ""
     if count < 0:
         reasons.append(
             f"The loop encircles +1 counterclockwise {_times(-count)} (N = {count}). With a"
@@ -306,7 +365,7 @@ def _count_words(
         steps.append(
             "Do not apply full bias into this load. A real root (latch-up) is set by the loop at"
             " DC and low frequency: keep the bias network's DC resistance below the device's"
-            " negative resistance |R_d| (or add a low-frequency path that does), then check"
+            " negative resistance |Rd| (or add a low-frequency path that does), then check"
             " again."
         )
     if count >= 2:
@@ -334,8 +393,9 @@ def _doubt_words(
             for a, b in uncertainty.at_stake_ranges_hz
         )
         reasons.append(
-            f"With |gamma| errors of {uncertainty.device:g} (device) and {uncertainty.load:g}"
-            f" (load) the loop gain may move by up to {uncertainty.largest_loop_gain_change:.3g},"
+            f"With |Γ| errors of {format_plain(uncertainty.device)} (device) and"
+            f" {format_plain(uncertainty.load)} (load) the loop gain may move by up to |ΔL| ="
+            f" {format_plain(uncertainty.largest_loop_gain_change)},"
             f" enough to reach +1 at {listed}: the count could change there."
         )
         steps.append(
@@ -349,14 +409,14 @@ def _doubt_words(
             what = (
                 f"a {feature.kind} resonance (Foster's reactance theorem)"
                 if feature.kind != "jump"
-                else "an isolated jump of gamma_load far larger than its neighbours' steps"
+                else "an isolated jump of ΓL far larger than its neighbours' steps"
             )
             span = f"{format_frequency(feature.start_hz)} and {format_frequency(feature.stop_hz)}"
             finer = format_frequency(_finer_step(feature.step_hz))
             if facts.load_samples is None and facts.load_is_netlist:
                 reasons.append(
                     f"Evaluated at the device's samples, the load netlist shows {what} between"
-                    f" {span}, where the device has |gamma_d| >= 1: the device's grid is too"
+                    f" {span}, where the device has |Γd| ≥ 1: the device's grid is too"
                     " coarse there to follow the load, and an unseen excursion could encircle"
                     " +1."
                 )
@@ -367,7 +427,7 @@ def _doubt_words(
                 continue
             reasons.append(
                 f"The load's samples show {what} between {span}, where the device has"
-                " |gamma_d| >= 1: something sharp lies between those samples, and an unseen"
+                " |Γd| ≥ 1: something sharp lies between those samples, and an unseen"
                 " excursion there could encircle +1."
             )
             steps.append(
@@ -377,9 +437,9 @@ def _doubt_words(
     if doubts & DOUBT_PHASE_STEP and not doubts & DOUBT_UNWRAPPING:
         column = int(judgement.large_step_column)
         reasons.append(
-            f"The phase of 1 - L moves by {np.degrees(float(judgement.large_step_rad)):.0f}"
-            f" degrees between {format_frequency(frequency_hz[column])} and"
-            f" {format_frequency(frequency_hz[column + 1])}, where |L| >= 1: the loop could"
+            f"The phase of 1 - L moves by {np.degrees(float(judgement.large_step_rad)):.0f}°"
+            f" between {format_frequency(frequency_hz[column])} and"
+            f" {format_frequency(frequency_hz[column + 1])}, where |L| ≥ 1: the loop could"
             " pass either side of +1 between those samples, so the count is unproven."
         )
         steps.append(
@@ -390,7 +450,7 @@ def _doubt_words(
         )
     if doubts & DOUBT_ACTIVE_LOAD:
         reasons.append(
-            "The load is not passive (|gamma_load| > 1 in the band): whether it has poles of its"
+            "The load is not passive (|ΓL| > 1 in the band): whether it has poles of its"
             " own in the right half plane cannot be told from its reflection, so the count"
             " cannot decide."
         )
@@ -428,7 +488,7 @@ def _resolution_sentence(
         )
     if not gain_bands:
         return (
-            "The device has no gain (|gamma_d| < 1) anywhere in the analysed band, so no load"
+            "The device has no gain (|Γd| < 1) anywhere in the analysed band, so no load"
             " resonance between samples can change the count (with a passive load |L| < 1)."
         )
     resolution = diagnostics.grid_resolution(
@@ -439,14 +499,14 @@ def _resolution_sentence(
     listed = ", ".join(f"{format_frequency(a)}-{format_frequency(b)}" for a, b in gain_bands)
     finest = _finest_resolved(context.load_grid, gain_bands)
     rising = (
-        f", rising to about {_plain(finest[0])} near {format_frequency(finest[1])}"
+        f", and up to Q = {_plain(finest[0])} near {format_frequency(finest[1])}"
         if finest[0] > 1.5 * resolution.finest_resolvable_q
         else ""
     )
     return (
-        f"Where the device has gain ({listed}) the load's grid resolves a loaded Q of up to"
-        f" about {_plain(resolution.finest_resolvable_q)} at its coarsest point there (a step of"
-        f" {format_frequency(resolution.largest_step_hz)} near"
+        f"Where the device has gain ({listed}) the load's grid resolves loaded resonances up"
+        f" to Q = {_plain(resolution.finest_resolvable_q)} at its coarsest point there (a step"
+        f" of {format_frequency(resolution.largest_step_hz)} near"
         f" {format_frequency(resolution.at_frequency_hz)}){rising}: a sharper resonance"
         " between its samples would be invisible to any test on these data."
     )
@@ -454,7 +514,7 @@ def _resolution_sentence(
 
 def _plain(value: float) -> str:
     """Two significant figures, without an exponent for ordinary sizes (0.28, 62, 270)."""
-    return f"{float(f'{value:.2g}'):g}"
+    return format_plain(value, 2)
 
 
 def _finest_resolved(grid: np.ndarray, bands: list[tuple[float, float]]) -> tuple[float, float]:
@@ -489,8 +549,8 @@ def _exact_sentence(exact: np.ndarray, count: int | None, doubts: int) -> str:
 
 def _root_words(root: complex) -> str:
     if abs(root.imag) <= 1e-9 * abs(root):
-        return f"a real root at sigma = {root.real:.3g} /s"
-    return f"{format_frequency(root.imag / (2 * np.pi))} growing at sigma = {root.real:.3g} /s"
+        return f"a real root growing at σ = {format_rate(root.real)}"
+    return f"{format_frequency(root.imag / (2 * np.pi))} growing at σ = {format_rate(root.real)}"
 
 
 def _premise(
@@ -503,7 +563,8 @@ def _premise(
     band = f"{format_frequency(frequency_hz[0])} to {format_frequency(frequency_hz[-1])}"
     text = (
         "The count equals the number of right-half-plane natural frequencies only if the device"
-        f" is stable terminated in its measurement impedance ({z0:g} ohm), as a device measured"
+        f" is stable terminated in its measurement impedance ({format_resistance(z0)}), as a"
+        " device measured"
         f" on a VNA without oscillating is, and the load is passive. The verdict covers {band}"
         " and assumes the loop gain does not cross the positive real axis beyond +1 outside it."
     )
@@ -577,7 +638,7 @@ def _passivity_findings(
     return [
         Finding(
             "load-not-passive",
-            f"The load has |gamma| = {magnitude[worst]:.3g} at"
+            f"The load has |ΓL| = {format_plain(magnitude[worst])} at"
             f" {format_frequency(frequency_hz[worst])}: it returns more power than it receives."
             " The count assumes a passive load (no poles of its own in the right half plane);"
             " check that device and load are not swapped, or describe an active load as a"
@@ -597,17 +658,17 @@ def _diagnostic_findings(
     for resonance, stake in zip(hidden, at_stake, strict=True):
         what = (
             f"a {resonance.kind} resonance lies between {format_frequency(resonance.start_hz)}"
-            f" and {format_frequency(resonance.stop_hz)} (its reactance falls through infinity:"
+            f" and {format_frequency(resonance.stop_hz)} (its reactance falls through ∞:"
             " Foster's theorem)"
             if resonance.kind != "jump"
-            else f"gamma jumps between {format_frequency(resonance.start_hz)} and"
+            else f"Γ jumps between {format_frequency(resonance.start_hz)} and"
             f" {format_frequency(resonance.stop_hz)} far more than between its neighbouring"
             " samples (a sharp resonance between them)"
         )
         where = (
             "; the device has gain there, so the count is at stake"
             if stake
-            else "; the device has no gain there (|gamma_d| < 1), so it cannot change the count"
+            else "; the device has no gain there (|Γd| < 1), so it cannot change the count"
         )
         findings.append(
             Finding(
@@ -642,7 +703,7 @@ def _describe_modes(
     """What the count says of the modes; the joined circuit's roots, when known, say the rest."""
     sentences = []
     if count % 2:
-        why = " (F(0) and F(infinity) have opposite signs)" if not poles else ""
+        why = " (F(0) and F(∞) have opposite signs)" if not poles else ""
         sentences.append(
             f"The count is odd: at least one natural frequency is real{why}, a non-oscillatory"
             " latch-up, often through the bias network."
@@ -651,7 +712,8 @@ def _describe_modes(
         listed = ", ".join(format_frequency(f) for f in oscillation)
         sentences.append(
             f"Oscillation expected near {listed} (where the loop gain crosses the real axis"
-            f" beyond +1 in {z0:g} ohm; the actual frequency shifts as the amplitude grows)."
+            f" beyond +1 in {format_resistance(z0)}; the actual frequency shifts as the amplitude"
+            " grows)."
         )
     elif count >= 2 and exact is None:
         rate = np.abs(np.diff(nyquist.unwrapped_phase(loop_gain)) / np.diff(frequency_hz))
@@ -682,7 +744,7 @@ def _findings(
         findings.append(
             Finding(
                 "coarse-phase-step",
-                f"The phase of 1 - L moves by up to {np.degrees(step):.0f} degrees between"
+                f"The phase of 1 - L moves by up to {np.degrees(step):.0f}° between"
                 " neighbouring points where |L| < 1; there no encirclement can hide, but a finer"
                 " sweep would make the picture clearer.",
                 {"largest_phase_step_deg": float(np.degrees(step))},
@@ -692,9 +754,10 @@ def _findings(
         findings.append(
             Finding(
                 "margin-within-noise",
-                f"The loop passes within {margins.modulus_margin:.3g} of +1 at"
+                f"The loop passes within |1 - L| = {format_plain(margins.modulus_margin)} of +1 at"
                 f" {format_frequency(margins.modulus_margin_frequency_hz)}, inside three times"
-                f" the data's estimated scatter ({noise:.2g}): noise could change the count.",
+                f" the data's estimated scatter of L ({format_plain(noise, 2)}): noise could change"
+                " the count.",
                 {
                     "min_distance_to_critical_point": margins.modulus_margin,
                     "frequency_hz": margins.modulus_margin_frequency_hz,
@@ -717,7 +780,8 @@ def _findings(
         findings.append(
             Finding(
                 "device-points-outside-load-band",
-                f"{below + above} device point(s) lie outside the load's band and were left out"
+                f"{below + above} device {'point lies' if below + above == 1 else 'points lie'}"
+                " outside the load's band and were left out"
                 f" ({below} below, {above} above); nothing is extrapolated.",
                 {"below": below, "above": above},
             )
@@ -727,8 +791,8 @@ def _findings(
             Finding(
                 "load-finer-than-device",
                 f"The load has {context.load_points_in_band} points in the analysed band, the"
-                f" device {frequency_hz.size}: the analysis runs on the device's grid, so detail"
-                " in the load between device points is not seen by the count (the load's own"
+                f" device {frequency_hz.size} points: the analysis runs on the device's grid, so"
+                " detail in the load between device points is not seen by the count (the load's own"
                 " grid is still searched for hidden resonances).",
                 {"load_points": context.load_points_in_band, "device_points": frequency_hz.size},
             )
@@ -737,8 +801,9 @@ def _findings(
         findings.append(
             Finding(
                 "device-renormalised",
-                f"The device file is referred to {context.device_renormalised_from_ohm:g} ohm"
-                f" but was stated to be measured in {z0:g} ohm; it was brought back to its"
+                f"The device file is referred to"
+                f" {format_resistance(context.device_renormalised_from_ohm)} but was stated to be"
+                f" measured in {format_resistance(z0)}; it was brought back to its"
                 " measurement impedance for the count.",
                 {"file_reference_impedance_ohm": context.device_renormalised_from_ohm},
             )

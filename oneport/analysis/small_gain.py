@@ -24,12 +24,13 @@ from typing import Any
 import numpy as np
 
 from ..cautions import CAUTIONS
+from ..display import Displayed
 from ..errors import InputError
 from ..findings import Finding
 from ..reading.alignment import MINIMUM_OVERLAP_POINTS
 from ..reading.records import InputRecord
 from ..reading.touchstone import OnePort
-from ..units import format_frequency
+from ..units import format_frequency, to_decibels
 from . import nyquist
 from .result import CHECK_SCHEMA, _band
 
@@ -39,11 +40,12 @@ BOUND_VERDICTS = ("guaranteed", "not-guaranteed", "inconclusive")
 
 @dataclass(frozen=True)
 class EdgeBound:
-    """Whether the small-gain bound is carried beyond one sweep edge, and by how much (dB)."""
+    """Whether the small-gain bound is carried beyond one sweep edge, and by how much: the
+    factor ``margin`` (> 1: it holds there beyond scatter and error; linear)."""
 
     side: str
     founded: bool
-    margin_db: float | None
+    margin: float | None
     note: str
 
 
@@ -57,10 +59,10 @@ class SmallGainBound:
         One of :data:`BOUND_VERDICTS`.
     worst_loop_gain : float
         max over the band of |Γd|·ρ (the class's worst loop gain), at ``worst_frequency_hz``.
-    margin_db : float
-        min over the band of −20·log10((|Γd| + δd + 3σ)·ρ): how far the bound holds beyond the
-        data's scatter σ and the stated device error δd (negative: it does not), at
-        ``margin_frequency_hz``.
+    margin : float
+        min over the band of 1/((|Γd| + δd + 3σ)·ρ): the factor by which the bound holds beyond
+        the data's scatter σ and the stated device error δd (below 1: it does not), at
+        ``margin_frequency_hz``; linear (its dB only in reports and JSON).
     failing_bands : tuple of Band
         Where |Γd|·ρ ≥ 1.
     at_stake_ranges_hz : tuple of (float, float)
@@ -72,7 +74,7 @@ class SmallGainBound:
     verdict: str
     worst_loop_gain: float
     worst_frequency_hz: float
-    margin_db: float
+    margin: float
     margin_frequency_hz: float
     failing_bands: tuple[nyquist.Band, ...]
     at_stake_ranges_hz: tuple[tuple[float, float], ...]
@@ -85,19 +87,21 @@ class SmallGainBound:
         return self.verdict == "guaranteed"
 
 
-def required_return_loss_db(gamma_device: np.ndarray) -> np.ndarray:
-    """Return loss a load needs for the small-gain bound: 20·log10 |Γd|, at least 0 dB.
+def allowed_reflection(gamma_device: np.ndarray) -> np.ndarray:
+    """The largest |ΓL| a load may have for the small-gain bound: 1/|Γd|, at most 1 (its
+    return loss, 20·log10 |Γd| or 0 dB, is what the reports call the return loss needed).
 
     Examples
     --------
-    A pure −100 Ω in 50 Ω has |Γd| = (100 + 50)/(100 − 50) = 3, so the load needs 9.54 dB:
+    A pure −100 Ω in 50 Ω has |Γd| = (100 + 50)/(100 − 50) = 3, so the load needs |ΓL| < 1/3,
+    9.54 dB of return loss:
 
-    >>> round(float(required_return_loss_db(np.array([(-100 - 50) / (-100 + 50)]))[0]), 2)
-    9.54
+    >>> rho = allowed_reflection(np.array([(-100 - 50) / (-100 + 50)]))[0]
+    >>> round(float(rho), 4), round(float(-20 * np.log10(rho)), 2)
+    (0.3333, 9.54)
     """
-    # |Γd| = 0 needs no return loss at all (0 dB, as any |Γd| ≤ 1).
-    magnitude = np.maximum(np.abs(gamma_device), np.finfo(float).tiny)
-    return np.maximum(20.0 * np.log10(magnitude), 0.0)
+    # |Γd| = 0 allows any passive load (1), without a division warning.
+    return np.minimum(1.0 / np.maximum(np.abs(gamma_device), 1e-300), 1.0)
 
 
 def small_gain_bound(
@@ -117,7 +121,7 @@ def small_gain_bound(
 
     >>> f = np.linspace(1e9, 2e9, 11)
     >>> bound = small_gain_bound(f, np.full(11, 5.0 + 0j), 10 ** (-14.5 / 20))
-    >>> bound.verdict, round(bound.margin_db, 2)
+    >>> bound.verdict, round(float(20 * np.log10(bound.margin)), 2)
     ('guaranteed', 0.52)
     """
     frequency_hz = np.asarray(frequency_hz, dtype=float)
@@ -128,8 +132,7 @@ def small_gain_bound(
     scatter = float(nyquist.estimate_noise(gamma_device, nyquist.EDGE_NOISE_ORDERS))
     worst_loop = magnitude * np.asarray(reflection_bound, dtype=float)
     guarded = (magnitude + device_uncertainty + nyquist.NOISE_MARGIN * scatter) * rho
-    with np.errstate(divide="ignore"):
-        margin = -20.0 * np.log10(np.maximum(guarded, 1e-300))
+    margin = 1.0 / np.maximum(guarded, 1e-300)
     worst = int(np.argmax(worst_loop))
     tightest = int(np.argmin(margin))
     failing = nyquist.find_bands(frequency_hz, worst_loop.astype(complex))
@@ -137,7 +140,7 @@ def small_gain_bound(
     edges = (_edge(frequency_hz, margin, "low"), _edge(frequency_hz, margin, "high"))
     if worst_loop[worst] >= 1.0:
         verdict = "not-guaranteed"
-    elif margin[tightest] <= 0.0:
+    elif margin[tightest] <= 1.0:
         verdict = "inconclusive"
     else:
         verdict = "guaranteed"
@@ -145,7 +148,7 @@ def small_gain_bound(
         verdict=verdict,
         worst_loop_gain=float(worst_loop[worst]),
         worst_frequency_hz=float(frequency_hz[worst]),
-        margin_db=float(margin[tightest]),
+        margin=float(margin[tightest]),
         margin_frequency_hz=float(frequency_hz[tightest]),
         failing_bands=tuple(failing),
         at_stake_ranges_hz=_ranges(frequency_hz, stake),
@@ -156,12 +159,13 @@ def small_gain_bound(
 
 def _edge(frequency_hz: np.ndarray, margin: np.ndarray, side: str) -> EdgeBound:
     index = 0 if side == "low" else frequency_hz.size - 1
-    value = float(margin[index])
+    factor = float(margin[index])
+    value = to_decibels(factor)
     where = format_frequency(frequency_hz[index])
     if side == "low" and frequency_hz[0] == 0.0:
-        return EdgeBound(side, value > 0, value, "The sweep includes 0 Hz.")
+        return EdgeBound(side, factor > 1.0, factor, "The sweep includes 0 Hz.")
     beyond = "below" if side == "low" else "above"
-    if value > 0:
+    if factor > 1.0:
         note = (
             f"At the {side} edge ({where}) the bound holds by {value:.2f} dB beyond the data's"
             f" scatter and the stated errors; it is assumed to hold {beyond} the sweep too."
@@ -172,7 +176,7 @@ def _edge(frequency_hz: np.ndarray, margin: np.ndarray, side: str) -> EdgeBound:
             f" scatter and the stated errors ({value:+.2f} dB), so it cannot be carried {beyond}"
             " the sweep."
         )
-    return EdgeBound(side, value > 0, value, note)
+    return EdgeBound(side, factor > 1.0, factor, note)
 
 
 def _ranges(frequency_hz: np.ndarray, mask: np.ndarray) -> tuple[tuple[float, float], ...]:
@@ -185,21 +189,24 @@ def _ranges(frequency_hz: np.ndarray, mask: np.ndarray) -> tuple[tuple[float, fl
 
 def bound_words(
     bound: SmallGainBound,
-    required_db: np.ndarray,
+    allowed: np.ndarray,
     frequency_hz: np.ndarray,
     z0: float,
     what: str,
 ) -> tuple[list[str], list[str]]:
     """Reasons and next steps for a bound, the same words in every command; ``what`` names the
-    class ("every passive load with at least 14.5 dB return loss", "the stated port match")."""
+    class ("every passive load with at least 14.5 dB return loss", "the stated port match");
+    ``allowed`` is :func:`allowed_reflection` of the device."""
+    required_db = np.maximum(-20.0 * np.log10(allowed), 0.0)
     worst = int(np.argmax(required_db))
     need = f"{required_db[worst]:.2f} dB return loss at {format_frequency(frequency_hz[worst])}"
     if bound.verdict == "not-guaranteed":
         return (
             [
                 f"NOT GUARANTEED: the small-gain bound fails for {what}: at"
-                f" {format_frequency(bound.worst_frequency_hz)} |gamma_d|*rho ="
-                f" {bound.worst_loop_gain:.3g}, so some such load could make the device oscillate"
+                f" {format_frequency(bound.worst_frequency_hz)} |Γd|·ρ ="
+                f" {bound.worst_loop_gain:.3g} (ρ: the largest |ΓL| the class allows), so some"
+                " such load could make the device oscillate"
                 f" (not necessarily the one you build). It needs at least {need} (in {z0:g} ohm).",
             ],
             [
@@ -215,8 +222,8 @@ def bound_words(
         return (
             [
                 f"The small-gain bound holds for {what} on the data, but not by more than their"
-                f" scatter and the stated |gamma| errors at {listed} (margin"
-                f" {bound.margin_db:+.2f} dB): the guarantee cannot be given.",
+                f" scatter and the stated |Γ| errors at {listed} (margin"
+                f" {to_decibels(bound.margin):+.2f} dB): the guarantee cannot be given.",
                 *[edge.note for edge in bound.edges if not edge.founded],
             ],
             [
@@ -227,9 +234,10 @@ def bound_words(
     return (
         [
             f"GUARANTEED: {what} keeps the loop gain below 1 at every frequency, by"
-            f" {bound.margin_db:.2f} dB beyond the data's scatter and the stated errors (worst"
-            f" |gamma_d|*rho = {bound.worst_loop_gain:.3g} at"
-            f" {format_frequency(bound.worst_frequency_hz)}): small-signal stable into all of"
+            f" {to_decibels(bound.margin):.2f} dB beyond the data's scatter and the stated errors"
+            f" (worst |Γd|·ρ = {bound.worst_loop_gain:.3g} at"
+            f" {format_frequency(bound.worst_frequency_hz)}, ρ being the largest |ΓL| the class"
+            " allows): small-signal stable into all of"
             " them. The guarantee rests on the device being stable in its measurement impedance"
             " and on the bound holding beyond both sweep edges, as it does at them.",
         ],
@@ -250,16 +258,22 @@ def bound_premise(z0: float, frequency_hz: np.ndarray) -> str:
     )
 
 
-@dataclass(frozen=True)
-class BoundResult:
-    """The answer for a class of loads (every passive load with return loss ≥ the stated one)."""
+@dataclass(frozen=True, repr=False)
+class BoundResult(Displayed):
+    """The answer for a class of loads (every passive load with return loss ≥ the stated one).
+
+    ``reflection_bound`` is the class's largest |ΓL| (ρ = 10^(−RL/20)); ``allowed_reflection``
+    the largest |ΓL| the bound allows per frequency (:func:`allowed_reflection`), smallest
+    (``smallest_allowed_reflection``) at ``worst_frequency_hz``. All linear; return losses in
+    dB only in the JSON's ``_db`` keys and the reports.
+    """
 
     verdict: str
     reasons: tuple[str, ...]
     next_steps: tuple[str, ...]
     premise: str
-    load_return_loss_db: float
-    worst_required_return_loss_db: float
+    reflection_bound: float
+    smallest_allowed_reflection: float
     worst_frequency_hz: float
     failing_bands: tuple[nyquist.Band, ...]
     warnings: tuple[Finding, ...]
@@ -268,7 +282,7 @@ class BoundResult:
     reference_impedance_ohm: float
     frequency_hz: np.ndarray = field(repr=False)
     gamma_device: np.ndarray = field(repr=False)
-    required_return_loss_db: np.ndarray = field(repr=False)
+    allowed_reflection: np.ndarray = field(repr=False)
     bound: SmallGainBound | None = None
 
     @property
@@ -280,6 +294,15 @@ class BoundResult:
     def frequency_range_hz(self) -> tuple[float, float]:
         """The analysed band, Hz."""
         return float(self.frequency_hz[0]), float(self.frequency_hz[-1])
+
+    def plot(self, ax: Any = None) -> Any:
+        """The return loss a load needs against frequency, beside the stated one.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.check_plots import plot_bound
+
+        return plot_bound(self, ax)
 
     def to_dict(self, include_arrays: bool = False) -> dict[str, Any]:
         """The ``oneport.check`` object in its ``return-loss-bound`` mode."""
@@ -300,12 +323,12 @@ class BoundResult:
             "bands": [_band(b, z0) for b in self.failing_bands],
             "load_class": {
                 "reference_impedance_ohm": z0,
-                "return_loss_db": self.load_return_loss_db,
-                "reflection_bound": 10 ** (-self.load_return_loss_db / 20),
+                "return_loss_db": _return_loss_db(self.reflection_bound),
+                "reflection_bound": self.reflection_bound,
             },
             "required_return_loss": {
                 "reference_impedance_ohm": z0,
-                "worst_db": self.worst_required_return_loss_db,
+                "worst_db": _return_loss_db(self.smallest_allowed_reflection),
                 "worst_frequency_hz": self.worst_frequency_hz,
             },
             "bound": None if self.bound is None else bound_json(self.bound, z0),
@@ -319,7 +342,9 @@ class BoundResult:
             data["arrays"] = {
                 "reference_impedance_ohm": z0,
                 "frequency_hz": self.frequency_hz.tolist(),
-                "required_return_loss_db": self.required_return_loss_db.tolist(),
+                "required_return_loss_db": (
+                    0.0 - 20.0 * np.log10(self.allowed_reflection)
+                ).tolist(),
             }
         return data
 
@@ -331,15 +356,25 @@ def bound_json(bound: SmallGainBound, z0: float) -> dict[str, Any]:
         "verdict": bound.verdict,
         "worst_loop_gain": bound.worst_loop_gain,
         "worst_frequency_hz": bound.worst_frequency_hz,
-        "margin_db": bound.margin_db,
+        "margin_db": to_decibels(bound.margin),
         "margin_frequency_hz": bound.margin_frequency_hz,
         "device_scatter": bound.scatter,
         "at_stake_ranges_hz": [list(r) for r in bound.at_stake_ranges_hz],
         "edges": [
-            {"side": e.side, "founded": e.founded, "margin_db": e.margin_db, "note": e.note}
+            {
+                "side": e.side,
+                "founded": e.founded,
+                "margin_db": None if e.margin is None else to_decibels(e.margin),
+                "note": e.note,
+            }
             for e in bound.edges
         ],
     }
+
+
+def _return_loss_db(reflection: float) -> float:
+    """A reflection bound as a return loss in dB, for the ``_db`` keys (0.0, never −0.0)."""
+    return float(0.0 - 20.0 * np.log10(max(reflection, 1e-300)))
 
 
 def check_return_loss(
@@ -361,23 +396,23 @@ def check_return_loss(
     rho = 10 ** (-return_loss_db / 20)
     frequency_hz, gamma = device.frequency_hz, device.gamma
     z0 = device.reference_impedance_ohm
-    required = required_return_loss_db(gamma)
+    allowed = allowed_reflection(gamma)
     bound = small_gain_bound(frequency_hz, gamma, rho, device_uncertainty)
     reasons, steps = bound_words(
         bound,
-        required,
+        allowed,
         frequency_hz,
         z0,
         f"every passive load with at least {return_loss_db:g} dB return loss",
     )
-    worst = int(np.argmax(required))
+    worst = int(np.argmin(allowed))
     return BoundResult(
         verdict=bound.verdict,
         reasons=tuple(reasons),
         next_steps=tuple(steps),
         premise=bound_premise(z0, frequency_hz),
-        load_return_loss_db=float(return_loss_db),
-        worst_required_return_loss_db=float(required[worst]),
+        reflection_bound=float(rho),
+        smallest_allowed_reflection=float(allowed[worst]),
         worst_frequency_hz=float(frequency_hz[worst]),
         failing_bands=bound.failing_bands,
         warnings=(),
@@ -386,6 +421,6 @@ def check_return_loss(
         reference_impedance_ohm=z0,
         frequency_hz=frequency_hz,
         gamma_device=gamma,
-        required_return_loss_db=required,
+        allowed_reflection=allowed,
         bound=bound,
     )

@@ -26,10 +26,15 @@ import numpy as np
 
 from ..cautions import CAUTIONS
 from ..circuit.blocks import interpolate_block
-from ..errors import InputError
+from ..display import Displayed
+from ..errors import InputError, printable
 from ..reading.touchstone import Multiport
+from ..units import format_frequency
 
-TERMINATIONS_SCHEMA = "oneport.terminations/1"
+TERMINATIONS_SCHEMA = "oneport.terminations/2"
+#: The verdict words: at the chosen frequency, does some passive termination make the
+#: observed port's resistance negative?
+TERMINATIONS_VERDICTS = ("negative-resistance-possible", "no-negative-resistance")
 #: |S_tt|² − |Δ|² below this makes the circle a straight line (handled by sampling).
 _DEGENERATE = 1e-12
 
@@ -106,8 +111,8 @@ class BestTermination:
         }
 
 
-@dataclass(frozen=True)
-class TerminationsResult:
+@dataclass(frozen=True, repr=False)
+class TerminationsResult(Displayed):
     """Terminations of port ``terminated_port`` that make port ``observed_port`` negative.
 
     Attributes
@@ -149,17 +154,40 @@ class TerminationsResult:
     warnings: tuple[dict[str, str], ...] = ()
     cautions: tuple[str, ...] = field(default=CAUTIONS)
 
+    @property
+    def verdict(self) -> str:
+        """``"negative-resistance-possible"`` when some passive termination of the terminated
+        port makes the observed port's resistance negative at the chosen frequency (or
+        unbounded), else ``"no-negative-resistance"``."""
+        if self.best.unbounded or self.negative_fraction > 0:
+            return TERMINATIONS_VERDICTS[0]
+        return TERMINATIONS_VERDICTS[1]
+
+    def plot(self, ax: Any = None) -> Any:
+        """A Smith chart of the ΓT plane, the negative-resistance terminations shaded.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.smith import termination_figure
+
+        return termination_figure(self, ax)
+
     def to_dict(self) -> dict[str, Any]:
-        """The JSON object (schema ``oneport.terminations/1``)."""
+        """The JSON object (schema ``oneport.terminations/2``)."""
         return {
             "schema": TERMINATIONS_SCHEMA,
-            "inputs": {
-                "path": self.source,
-                "sha256": self.sha256,
-                "ports": 2,
-                "points": int(self.grid_hz.size),
-                "frequency_range_hz": [float(self.grid_hz[0]), float(self.grid_hz[-1])],
-            },
+            "verdict": self.verdict,
+            "inputs": [
+                {
+                    "role": "two-port",
+                    "path": self.source,
+                    "sha256": self.sha256,
+                    "ports": 2,
+                    "points": int(self.grid_hz.size),
+                    "frequency_range_hz": [float(self.grid_hz[0]), float(self.grid_hz[-1])],
+                    "reference_impedance_ohm": self.reference_impedance_ohm,
+                }
+            ],
             "terminated_port": self.terminated_port,
             "observed_port": self.observed_port,
             "negative_resistance_bands": [
@@ -292,6 +320,13 @@ def analyse_terminations(
         raise InputError(f"--terminate {terminated_port}: give 1 or 2")
     terminated = terminated_port - 1
     reference = float(references[0])
+    low, high = float(data.frequency_hz[0]), float(data.frequency_hz[-1])
+    if not low <= frequency_hz <= high:
+        raise InputError(
+            f"{printable(data.source)}: {format_frequency(frequency_hz)} lies outside its data"
+            f" ({format_frequency(low)} to {format_frequency(high)}); give a frequency inside"
+            " them (nothing is extrapolated)"
+        )
     at = interpolate_block(data, np.array([frequency_hz]), data.source)[:, :, 0, :]
     center, radius, inside = stability_circle(at, terminated)
     fraction = negative_fraction(at, terminated, center, radius, inside)

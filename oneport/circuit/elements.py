@@ -211,13 +211,13 @@ class Resistor(Element):
 
 
 class Inductor(Element):
-    """``L`` with an optional series resistance ``rser`` or constant quality factor ``q``."""
+    """``L`` with an optional series resistance ``esr`` or constant quality factor ``q``."""
 
     letter: ClassVar[str] = "L"
     kind: ClassVar[str] = "inductor"
     rules: ClassVar[dict[str, Rule]] = {
         "inductance": Rule("any", largest=1e3, smallest=1e-18, unit="H"),
-        "rser": SERIES_RESISTANCE,
+        "esr": SERIES_RESISTANCE,
         "q": QUALITY_FACTOR,
     }
 
@@ -236,27 +236,27 @@ class Inductor(Element):
         return 1
 
     def impedance(self, context: StampContext) -> Any:
-        """s·L + rser, or s·L·(1 − j/Q) (a series resistance ωL/Q)."""
+        """s·L + esr, or s·L·(1 − j/Q) (a series resistance ωL/Q)."""
         values = context.values
         impedance = context.times_s(values["inductance"])
         if "q" in values:
             return impedance * (1.0 - 1j / values["q"])
-        if "rser" in values:
-            return impedance + values["rser"]
+        if "esr" in values:
+            return impedance + values["esr"]
         return impedance
 
     def parts(self, context: StampContext, wanted: str) -> tuple[str, Any, Any]:
-        """On the jω axis ``("z", rser or ωL/Q, ωL)``; lossless and wanted as an admittance,
+        """On the jω axis ``("z", esr or ωL/Q, ωL)``; lossless and wanted as an admittance,
         ``("y", 0, 1/(ωL))`` (the susceptance −1/(ωL), carried negated)."""
         values = context.values
         assert context.omega is not None
-        lossless = "q" not in values and "rser" not in values
+        lossless = "q" not in values and "esr" not in values
         if lossless and wanted == "y":
             return "y", 0.0, context.over_omega(values["inductance"])
         reactance = context.omega * values["inductance"]
         if "q" in values:
             return "z", reactance / values["q"], reactance
-        return "z", values.get("rser", 0.0), reactance
+        return "z", values.get("esr", 0.0), reactance
 
     def stamp(
         self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
@@ -266,13 +266,13 @@ class Inductor(Element):
 
 
 class Capacitor(Element):
-    """``C`` with an optional series resistance ``rser`` or constant quality factor ``q``."""
+    """``C`` with an optional series resistance ``esr`` or constant quality factor ``q``."""
 
     letter: ClassVar[str] = "C"
     kind: ClassVar[str] = "capacitor"
     rules: ClassVar[dict[str, Rule]] = {
         "capacitance": Rule("any", largest=1e3, smallest=1e-21, unit="F"),
-        "rser": SERIES_RESISTANCE,
+        "esr": SERIES_RESISTANCE,
         "q": QUALITY_FACTOR,
     }
 
@@ -289,46 +289,46 @@ class Capacitor(Element):
     @property
     def branches(self) -> int:
         # With a series resistance the branch form keeps the stamp linear in s.
-        return 1 if "rser" in self.values else 0
+        return 1 if "esr" in self.values else 0
 
     def admittance(self, context: StampContext) -> Any:
-        """s·C, s·C / (1 + s·C·rser), or s·C / (1 + j/Q) (a series resistance 1/(ωCQ))."""
+        """s·C, s·C / (1 + s·C·esr), or s·C / (1 + j/Q) (a series resistance 1/(ωCQ))."""
         values = context.values
         admittance = context.times_s(values["capacitance"])
         if "q" in values:
             return admittance / (1.0 + 1j / values["q"])
-        if "rser" in values:
-            return admittance / (1.0 + admittance * values["rser"])
+        if "esr" in values:
+            return admittance / (1.0 + admittance * values["esr"])
         return admittance
 
     def parts(self, context: StampContext, wanted: str) -> tuple[str, Any, Any]:
         """On the jω axis, lossless: ``("y", 0, −ωC)`` (the susceptance carried negated) or
-        ``("z", 0, −1/(ωC))``; with a loss, ``("z", rser or 1/(ωCQ), −1/(ωC))``."""
+        ``("z", 0, −1/(ωC))``; with a loss, ``("z", esr or 1/(ωCQ), −1/(ωC))``."""
         values = context.values
         assert context.omega is not None
         capacitance = values["capacitance"]
-        lossless = "q" not in values and "rser" not in values
+        lossless = "q" not in values and "esr" not in values
         if lossless and wanted == "y":
             return "y", 0.0, context.omega * -np.asarray(capacitance)
         reactance = context.over_omega(-np.asarray(capacitance))
         if "q" in values:
             return "z", context.over_omega(np.asarray(capacitance) * values["q"]), reactance
-        return "z", values.get("rser", 0.0), reactance
+        return "z", values.get("esr", 0.0), reactance
 
     def stamp(
         self, add: Adder, nodes: tuple[int | None, ...], branches: tuple[int, ...], context: Any
     ) -> None:
-        if "rser" not in context.values:
+        if "esr" not in context.values:
             _stamp_admittance(add, nodes[0], nodes[1], self.admittance(context))
             return
-        # s·C·(Va − Vb) − (1 + s·C·rser)·I = 0
+        # s·C·(Va − Vb) − (1 + s·C·esr)·I = 0
         branch = branches[0]
         sc = context.times_s(context.values["capacitance"])
         add(nodes[0], branch, 1.0)
         add(nodes[1], branch, -1.0)
         add(branch, nodes[0], sc)
         add(branch, nodes[1], -sc)
-        add(branch, branch, -(1.0 + sc * context.values["rser"]))
+        add(branch, branch, -(1.0 + sc * context.values["esr"]))
 
 
 class Transconductance(Element):

@@ -118,7 +118,7 @@ class Circuit:
         quality_factor: Value | None = None,
     ) -> Circuit:
         """Add an inductor (H) with an optional series resistance (Ω) or constant Q."""
-        values = _v(inductance=inductance, rser=series_resistance, q=quality_factor)
+        values = _v(inductance=inductance, esr=series_resistance, q=quality_factor)
         return self.add(Inductor(name=name, nodes=_nodes(node_a, node_b), values=values))
 
     def capacitor(
@@ -132,7 +132,7 @@ class Circuit:
         quality_factor: Value | None = None,
     ) -> Circuit:
         """Add a capacitor (F) with an optional series resistance (Ω) or constant Q."""
-        values = _v(capacitance=capacitance, rser=series_resistance, q=quality_factor)
+        values = _v(capacitance=capacitance, esr=series_resistance, q=quality_factor)
         return self.add(Capacitor(name=name, nodes=_nodes(node_a, node_b), values=values))
 
     def transconductance(

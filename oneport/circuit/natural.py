@@ -31,6 +31,12 @@ if TYPE_CHECKING:
 
 #: Generalised eigenvalues with |β| below this (relative to |α|) are infinite.
 INFINITE_EIGENVALUE_TOLERANCE = 1e-9
+#: A finite eigenvalue s is a natural frequency only where the equations are singular at s
+#: and not nearby: at s moved by half its size (two ways) the equilibrated matrix's smallest
+#: singular value must rise by this factor. An infinite eigenvalue that rounding has made
+#: finite (a loop of capacitors, a cut-set of inductors, element values decades apart) sits
+#: where the matrix is nearly singular for every large s, and fails the test.
+ISOLATED_ROOT_RISE = 1e4
 
 
 def natural_frequencies(
@@ -75,7 +81,7 @@ def require_lumped(circuit: Circuit) -> None:
     if refused:
         raise InputError(
             f"{circuit.source}: natural frequencies need a lumped circuit with polynomial"
-            f" equations; {', '.join(refused)} (lines, blocks, q= loss) have none: use rser="
+            f" equations; {', '.join(refused)} (lines, blocks, q= loss) have none: use esr="
             " for loss"
         )
 
@@ -121,7 +127,30 @@ def finite_eigenvalues(constant: np.ndarray, slope: np.ndarray, source: str) -> 
             " frequencies are undefined (a floating part or a loop of ideal sources)"
         )
     roots = scale * alpha[finite] / beta[finite]
+    roots = roots[[_isolated(constant, slope, root, scale) for root in roots]]
     return np.asarray(sorted(roots, key=lambda root: (round(root.imag, 6), root.real)))
+
+
+def _isolated(constant: np.ndarray, slope: np.ndarray, root: complex, scale: float) -> bool:
+    """Whether the pencil is singular at ``root`` and clearly less so half its size away."""
+    at_root = _singularity(constant + root * slope)
+    step = 0.5 * max(abs(root), 1e-6 * scale)
+    away = max(
+        _singularity(constant + (root + step * direction) * slope)
+        for direction in (1.0, 0.6 + 0.8j)
+    )
+    return bool(away >= ISOLATED_ROOT_RISE * max(at_root, np.finfo(float).tiny))
+
+
+def _singularity(matrix: np.ndarray) -> float:
+    """Smallest over largest singular value of ``matrix`` equilibrated by rows and columns."""
+    rows = np.abs(matrix).max(axis=1)
+    rows[rows == 0] = 1.0
+    matrix = matrix / rows[:, None]
+    columns = np.abs(matrix).max(axis=0)
+    columns[columns == 0] = 1.0
+    values = np.linalg.svd(matrix / columns[None, :], compute_uv=False)
+    return float(values[-1] / values[0]) if values[0] > 0 else 0.0
 
 
 def _frequency_scale(constant: np.ndarray, slope: np.ndarray) -> float:

@@ -4,11 +4,11 @@ Grammar (case is ignored except in file names)::
 
     * a comment (from * to the end of the line); a line starting with + continues the last
     R<name> NODE NODE VALUE
-    L<name> NODE NODE VALUE [rser=VALUE | q=VALUE]
-    C<name> NODE NODE VALUE [rser=VALUE | q=VALUE]
+    L<name> NODE NODE VALUE [esr=VALUE | q=VALUE]
+    C<name> NODE NODE VALUE [esr=VALUE | q=VALUE]
     G<name> OUT+ OUT- CONTROL+ CONTROL- GM
     T<name> P1+ P1- P2+ P2- z0=VALUE (len=VALUE [eeff=VALUE] | delay=VALUE) [loss=DB at=FREQ]
-    O<name> OUT IN+ IN- [a0=VALUE] [gbw=VALUE]
+    .opamp NAME OUT IN+ IN- [a0=VALUE] [gbw=VALUE]
     N<name> NODE... [REFERENCE] file=PATH
     .oneport NODE [REFERENCE]
     .twoport NODE NODE | .twoport NODE REFERENCE NODE REFERENCE
@@ -17,6 +17,11 @@ Grammar (case is ignored except in file names)::
 
 Every refusal is one line naming the file, the line, the token and what would be accepted.
 This room reads text; it never evaluates anything in it.
+
+Two spellings from other netlist dialects are refused rather than guessed at: an element line
+starting with ``O`` (in the common SPICE dialects a lossy transmission line; the op-amp is the
+keyword line ``.opamp``, so a pasted line can never be read as the wrong element), and the
+series-loss keyword ``rser=`` (ours is ``esr=``, the equivalent series resistance).
 """
 
 from __future__ import annotations
@@ -50,8 +55,8 @@ class _Syntax:
 
 _SYNTAX = {
     "R": _Syntax(2, ("resistance",), (), "R<name> NODE NODE VALUE"),
-    "L": _Syntax(2, ("inductance",), ("rser", "q"), "L<name> NODE NODE VALUE [rser=|q=]"),
-    "C": _Syntax(2, ("capacitance",), ("rser", "q"), "C<name> NODE NODE VALUE [rser=|q=]"),
+    "L": _Syntax(2, ("inductance",), ("esr", "q"), "L<name> NODE NODE VALUE [esr=|q=]"),
+    "C": _Syntax(2, ("capacitance",), ("esr", "q"), "C<name> NODE NODE VALUE [esr=|q=]"),
     "G": _Syntax(4, ("gm",), (), "G<name> OUT+ OUT- CONTROL+ CONTROL- GM"),
     "T": _Syntax(
         4,
@@ -59,9 +64,11 @@ _SYNTAX = {
         ("z0", "len", "eeff", "delay", "loss", "at"),
         "T<name> P1+ P1- P2+ P2- z0= (len= [eeff=] | delay=) [loss= at=]",
     ),
-    "O": _Syntax(3, (), ("a0", "gbw"), "O<name> OUT IN+ IN- [a0=] [gbw=]"),
+    "O": _Syntax(3, (), ("a0", "gbw"), ".opamp NAME OUT IN+ IN- [a0=] [gbw=]"),
 }
-_DIRECTIVES = (".oneport", ".twoport", ".set", ".end")
+_DIRECTIVES = (".oneport", ".twoport", ".set", ".opamp", ".end")
+#: Element letters read from netlist lines (the op-amp, internally "O", has its keyword line).
+_LINE_LETTERS = ("R", "L", "C", "G", "T", "N")
 _TOKEN = re.compile(r'"[^"]*"|[^\s=]+|=')
 
 
@@ -101,7 +108,7 @@ def parse_circuit(text: str, source: str = "netlist", folder: str | Path = ".") 
     ... * a tank with a negative resistance
     ... .set RN=-100
     ... Rn 1 0 RN
-    ... L1 1 0 10n rser=0.5
+    ... L1 1 0 10n esr=0.5
     ... C1 1 0 2.2p
     ... .oneport 1
     ... ''')
@@ -112,7 +119,9 @@ def parse_circuit(text: str, source: str = "netlist", folder: str | Path = ".") 
     last_line = max(1, len(text.splitlines()))
     for number, tokens in _logical_lines(text, source):
         head = tokens[0]
-        if head.startswith("."):
+        if head.lower() == ".opamp":
+            circuit.add(_opamp(circuit, tokens[1:], number))
+        elif head.startswith("."):
             if _directive(circuit, head.lower(), tokens[1:], number):
                 last_line = number
                 break
@@ -172,7 +181,7 @@ def _tokens(content: str, source: str, number: int) -> list[str]:
                 raise FileFormatError(
                     source,
                     f"'=' after {before}: '=' needs a keyword name before it and a value after"
-                    " it (e.g. rser=0.2)",
+                    " it (e.g. esr=0.2)",
                     number,
                 )
             tokens[-1] = f"{tokens[-1]}={raw[index + 1]}"
@@ -253,8 +262,16 @@ def _element(circuit: Circuit, tokens: list[str], number: int, folder: Path) -> 
     source = circuit.source
     name = tokens[0]
     letter = name[0].upper()
-    if letter not in ELEMENT_TYPES:
-        accepted = " ".join(ELEMENT_TYPES)
+    if letter == "O":
+        raise FileFormatError(
+            source,
+            f"{name!r}: an O line is a lossy transmission line in the common SPICE dialects,"
+            " which oneport does not read; write a line as T ... z0= (len=|delay=) [loss= at=]"
+            " and an op-amp as .opamp NAME OUT IN+ IN- [a0=] [gbw=]",
+            number,
+        )
+    if letter not in _LINE_LETTERS:
+        accepted = " ".join(_LINE_LETTERS)
         raise FileFormatError(
             source,
             f"{name!r}: unknown element letter {name[0]!r}; accepted: {accepted} (and"
@@ -267,6 +284,28 @@ def _element(circuit: Circuit, tokens: list[str], number: int, folder: Path) -> 
     keywords = [token for token in tokens[1:] if "=" in token]
     if letter == "N":
         return _block(circuit, name, positional, keywords, number, folder)
+    return _built(circuit, letter, name, tokens[1:], number)
+
+
+def _opamp(circuit: Circuit, arguments: list[str], number: int) -> Element:
+    """``.opamp NAME OUT IN+ IN- [a0=] [gbw=]``: the op-amp, in a keyword line of its own."""
+    if not arguments or "=" in arguments[0]:
+        raise FileFormatError(
+            circuit.source,
+            ".opamp needs a name, then OUT IN+ IN- (e.g. .opamp U1 out p n gbw=1g)",
+            number,
+        )
+    return _built(circuit, "O", arguments[0], arguments[1:], number)
+
+
+def _built(circuit: Circuit, letter: str, name: str, rest: list[str], number: int) -> Element:
+    """An element of ``letter``'s syntax from its name and the tokens after it."""
+    source = circuit.source
+    tokens = [name, *rest]
+    if "=" in name:
+        raise FileFormatError(source, f"{name!r}: an element name cannot hold '='", number)
+    positional = [token for token in rest if "=" not in token]
+    keywords = [token for token in rest if "=" in token]
     syntax = _SYNTAX[letter]
     wanted = syntax.nodes + len(syntax.positional)
     if len(positional) != wanted or _keyword_before_positional(tokens):
@@ -303,6 +342,13 @@ def _keyword_values(
     for token in keywords:
         key, _, text = token.partition("=")
         key = key.lower()
+        if key == "rser" and "esr" in accepted:
+            raise FileFormatError(
+                source,
+                f"{name}: rser= is not read here; write the series resistance as esr= (the"
+                f" equivalent series resistance, e.g. esr={text or '0.4'})",
+                number,
+            )
         if key not in accepted:
             listed = ", ".join(f"{k}=" for k in accepted) or "none"
             raise FileFormatError(
@@ -320,8 +366,8 @@ def _check_combinations(
     def refuse(problem: str) -> None:
         raise FileFormatError(source, f"{name}: {problem}", number)
 
-    if letter in "LC" and "rser" in values and "q" in values:
-        refuse("give rser= (a series resistance) or q= (a constant quality factor), not both")
+    if letter in "LC" and "esr" in values and "q" in values:
+        refuse("give esr= (a series resistance) or q= (a constant quality factor), not both")
     if letter == "R" and values["resistance"] == 0.0:
         refuse("a resistance of 0; join the two nodes by giving them one name instead")
     if letter == "T":

@@ -25,6 +25,6 @@ COMMAND_MODULES = (
 )
 
 
-def load_commands() -> list[ModuleType]:
-    """The subcommand modules."""
-    return [import_module(f"{__name__}.{name}") for name in COMMAND_MODULES]
+def load_commands(names: tuple[str, ...] = COMMAND_MODULES) -> list[ModuleType]:
+    """The subcommand modules (all, or those ``names``)."""
+    return [import_module(f"{__name__}.{name}") for name in names]

@@ -58,15 +58,15 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Screen, print, optionally plot; return the exit code of the verdict."""
-    from ..products.amplifier import screen_amplifier
+    from ..products.amplifier import amplifier
     from ..rendering.amplifier_plot import save_amplifier_plot
     from ..rendering.amplifier_text import render, verdict_line
     from .outcome import exit_code
 
     targets = options.outputs({"--plot": arguments.plot}, [arguments.device, arguments.load])
-    result = screen_amplifier(
+    result = amplifier(
         arguments.device,
-        load=arguments.load,
+        arguments.load,
         port_return_loss_db=arguments.port_return_loss,
         gain_threshold_db=arguments.gain_threshold,
         measurement_impedance_ohm=arguments.measurement_impedance,

@@ -142,7 +142,6 @@ def add_check_inputs(command: argparse.ArgumentParser) -> None:
             planes,
             f"--{side}-delay",
             rule=options.delay,
-            default=0.0,
             metavar="TIME",
             help=f"add (negative: remove) a lossless line of this one-way delay on the {side}"
             " side, e.g. 12ps",
@@ -158,58 +157,29 @@ def add_check_inputs(command: argparse.ArgumentParser) -> None:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the check and print it; return the verdict's exit code."""
-    from ..products.check import check, check_load_class
-    from ..rendering.check_text import render, render_bound, verdict_line
+    from ..products.check import check
+    from ..rendering.check_text import render_result, summary_line
 
     targets = options.outputs(
         {"--plot": arguments.plot, "--report": arguments.report}, input_paths(arguments)
     )
-    result: Any
-    if arguments.load_return_loss is not None:
-        if arguments.plot or arguments.report or arguments.poles:
-            raise InputError(
-                "--poles, --plot and --report go with --load, not with --load-return-loss"
-            )
-        from ..reading.files import is_netlist_path
-
-        if not is_netlist_path(arguments.device):  # a netlist device is refused by the bound
-            options.grid(arguments, netlists=False, required=False, data=arguments.device)
-        uncertainty = arguments.gamma_uncertainty
-        result = check_load_class(
-            arguments.device,
-            arguments.load_return_loss,
-            measurement_impedance_ohm=arguments.measurement_impedance,
-            device_uncertainty=float(
-                uncertainty[0] if isinstance(uncertainty, tuple) else uncertainty or 0.0
-            ),
-            device_setup=device_setup(arguments),
-        )
-        text = render_bound(result)
-        line = text.splitlines()[0]
-    else:
-        result = check(
-            arguments.device,
-            arguments.load,
-            frequency_hz=pair_grid(arguments),
-            **check_inputs(arguments),
-        )
-        text = render(result)
-        line = verdict_line(result)
-        _pictures(result, targets)
-    data = result.to_dict(include_arrays=arguments.include_arrays)
-    if arguments.poles and arguments.load is not None:
-        second = _second_opinion(result)
-        data["poles"] = second.to_dict()
-        data["warnings"] += [
-            w.to_dict() for w in second.warnings if w.code == "pole-count-disagrees"
-        ]
-        text = _with_second_opinion(text, second)
+    if arguments.load_return_loss is not None and targets:
+        raise InputError("--plot and --report go with --load, not with --load-return-loss")
+    result = check(
+        arguments.device,
+        arguments.load,
+        load_return_loss_db=arguments.load_return_loss,
+        frequency_hz=pair_grid(arguments),
+        poles=arguments.poles,
+        **check_inputs(arguments),
+    )
+    _pictures(result, targets, arguments)
     if arguments.json:
-        write_json(data, out)
+        write_json(result.to_dict(include_arrays=arguments.include_arrays), out)
     elif arguments.quiet:
-        print(line, file=out)
+        print(summary_line(result), file=out)
     else:
-        out.write(text)
+        out.write(render_result(result))
     return exit_code(result.verdict)
 
 
@@ -225,71 +195,44 @@ def input_paths(arguments: argparse.Namespace) -> list[str | None]:
 
 
 def pair_grid(arguments: argparse.Namespace) -> Any:
-    """The grid options' grid: given only when both sides are netlists."""
+    """The grid options' grid: given only when both sides are netlists (refused, not ignored,
+    with a data file; with --load-return-loss the product says what goes with the bound)."""
     from ..reading.files import is_netlist_path
 
-    netlists = is_netlist_path(arguments.device) and is_netlist_path(arguments.load)
-    data = arguments.load if is_netlist_path(arguments.device) else arguments.device
+    device_netlist = is_netlist_path(arguments.device)
+    if arguments.load is None:
+        return options.grid(
+            arguments, netlists=device_netlist, required=False, data=arguments.device
+        )
+    netlists = device_netlist and is_netlist_path(arguments.load)
+    data = arguments.load if device_netlist else arguments.device
     return options.grid(arguments, netlists=netlists, required=False, data=data)
 
 
 def check_inputs(arguments: argparse.Namespace) -> dict[str, Any]:
     """The check's keyword arguments from its options (``stabilise`` passes the same)."""
-    from ..reading.preparation import PortSetup
-
     return {
         "measurement_impedance_ohm": arguments.measurement_impedance,
         "device_dc_resistance_ohm": arguments.device_dc_resistance,
         "load_dc_resistance_ohm": arguments.load_dc_resistance,
         "gamma_uncertainty": arguments.gamma_uncertainty,
-        "device_setup": device_setup(arguments),
-        "load_setup": PortSetup(fixture_path=arguments.load_fixture, delay_s=arguments.load_delay),
+        "terminate": arguments.terminate,
+        "terminate_impedance_ohm": arguments.terminate_impedance,
+        "terminated_port": arguments.terminated_port,
+        "differential_ports": arguments.differential_ports,
+        "device_fixture": arguments.device_fixture,
+        "device_delay_s": arguments.device_delay,
+        "load_fixture": arguments.load_fixture,
+        "load_delay_s": arguments.load_delay,
     }
 
 
-def _second_opinion(result: Any) -> Any:
-    """The pole–zero identification of F = 1 − L, cross-checked with the count."""
-    from ..analysis.pole_zero import identify_natural_frequencies, with_count_check
-
-    fitted = identify_natural_frequencies(
-        result.frequency_hz,
-        1.0 - result.loop_gain,
-        reference_impedance_ohm=result.reference_impedance_ohm,
-        inputs=result.inputs,
-    )
-    return with_count_check(fitted, result)
-
-
-def _with_second_opinion(text: str, second: Any) -> str:
-    """The check's report with the fit's section inserted before the premise."""
-    from ..rendering.poles_text import second_opinion_lines
-
-    section = "\n".join(second_opinion_lines(second)) + "\n\n"
-    marker = "Premise\n"
-    index = text.find(marker)
-    return text[:index] + section + text[index:] if index >= 0 else text + "\n" + section
-
-
-def _pictures(result: Any, targets: dict[str, Any]) -> None:
+def _pictures(result: Any, targets: dict[str, Any], arguments: argparse.Namespace) -> None:
     if "--plot" in targets:
         from ..rendering.check_plots import save_plots
 
         save_plots(result, targets["--plot"])
     if "--report" in targets:
-        from ..rendering.report import write_report
+        from ..rendering.report import run_record, write_report
 
-        write_report(result, targets["--report"])
-
-
-def device_setup(arguments: argparse.Namespace) -> Any:
-    """How the device file becomes a one-port (termination, differential pairs, plane)."""
-    from ..reading.preparation import PortSetup
-
-    return PortSetup(
-        terminate_path=arguments.terminate,
-        terminate_impedance_ohm=arguments.terminate_impedance,
-        terminated_port=arguments.terminated_port,
-        differential_pairs=arguments.differential_ports or (),
-        fixture_path=arguments.device_fixture,
-        delay_s=arguments.device_delay,
-    )
+        write_report(result, targets["--report"], run=run_record(getattr(arguments, "argv", None)))

@@ -7,6 +7,7 @@ from typing import Any, TextIO
 
 from . import options
 from .common import add_output_options, write_json
+from .outcome import ExitCode
 
 NAME = "export"
 
@@ -53,28 +54,21 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Write the file; return 0 (bad input raises and becomes exit code 2)."""
-    from ..products.export import export_circuit
-    from ..units import format_frequency
+    from ..products.export import export
+    from ..rendering.export_text import verdict_line
 
     targets = options.outputs({"--output": arguments.output}, [arguments.circuit])
     grid = options.grid(arguments, netlists=True, required=True)
-    assert grid is not None  # required: given, or refused
-    result = export_circuit(
+    result = export(
         arguments.circuit,
         targets["--output"],
         grid,
         reference_impedance_ohm=arguments.reference_impedance,
-        params=dict(arguments.param),
-        spacing=arguments.spacing or "linear",
+        params=arguments.param,
+        spacing=arguments.spacing,
     )
     if arguments.json:
         write_json(result.to_dict(), out)
     elif not arguments.quiet:
-        kind = "one-port" if result.ports == 1 else "two-port"
-        print(
-            f"wrote {result.output_path}: {kind}, {result.points} points,"
-            f" {format_frequency(result.start_hz)} to {format_frequency(result.stop_hz)}"
-            f" ({result.spacing}), reference {result.reference_impedance_ohm:g} ohm",
-            file=out,
-        )
-    return 0
+        print(verdict_line(result), file=out)
+    return int(ExitCode.HOLDS)

@@ -62,12 +62,12 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Run the analysis and print it; return the verdict's exit code."""
-    from ..products.oscillator import analyse_oscillator
+    from ..products.oscillator import oscillator
     from ..rendering.oscillator_text import render, verdict_line
     from .outcome import exit_code
 
     targets = options.outputs({"--plot": arguments.plot}, [arguments.device, arguments.load])
-    result = analyse_oscillator(
+    result = oscillator(
         arguments.device,
         arguments.load,
         form=arguments.form,

@@ -72,5 +72,5 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     elif arguments.quiet:
         print(verdict_line(result), file=out)
     else:
-        out.write(render(result, result.device_character))
+        out.write(render(result))
     return exit_code(result.verdict)

@@ -7,7 +7,6 @@ import argparse
 import sys
 from typing import Any, TextIO
 
-from ..errors import InputError
 from . import options
 from .common import add_output_options, write_json
 
@@ -155,27 +154,34 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     summarised before the failure is reported: Ctrl-C exits with 130, a refused input with 2
     (its one line), a bug with 1.
     """
-    from ..products.sweep.runner import run_sweep
-    from ..products.sweep.summary import summarise, summary_dict
-    from ..rendering.sweep_table import write_table
-    from ..rendering.sweep_text import render
+    from ..circuit import is_circuit_path
+    from ..products.sweep import sweep
+    from ..rendering.sweep_text import render, verdict_line
     from .outcome import exit_code
 
     targets = options.outputs(
         {"--output": arguments.output, "--plot": arguments.plot},
         [*arguments.devices, arguments.load],
     )
-    setup = _setup(arguments)
-    plan = _plan(arguments, setup)
-    _refuse_long_csv(targets.get("--output"), plan.variants)
-    progress, close = _progress(plan.variants)
+    both_netlists = is_circuit_path(arguments.devices[0]) and is_circuit_path(arguments.load)
+    data = arguments.load if is_circuit_path(arguments.devices[0]) else arguments.devices[0]
+    grid = options.grid(arguments, netlists=both_netlists, required=both_netlists, data=data)
+    progress, close = _progress(arguments)
     try:
-        result = run_sweep(
-            plan,
-            setup["source"],
-            setup["frequency_hz"],
-            setup["z0"],
-            dc_sign=setup["dc_sign"],
+        result = sweep(
+            arguments.devices,
+            arguments.load,
+            vary=arguments.vary,
+            log=arguments.log,
+            tolerance=arguments.tolerance,
+            samples=arguments.samples,
+            seed=arguments.seed,
+            distribution=arguments.distribution,
+            measurement_impedance_ohm=arguments.reference_impedance,
+            device_dc_resistance_ohm=arguments.device_dc_resistance,
+            load_dc_resistance_ohm=arguments.load_dc_resistance,
+            frequency_hz=grid,
+            output=targets.get("--output"),
             chunk_size=arguments.chunk_size,
             scheduler=arguments.scheduler,
             workers=arguments.workers,
@@ -184,104 +190,31 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         )
     finally:
         close()
-    summary = summarise(result)
-    table_path = None
-    if "--output" in targets and result.completed:
-        table_path = str(write_table(result.table, targets["--output"], result.plan.variants))
-    if "--plot" in targets and result.completed:
+    if "--plot" in targets and result.run.completed:
         from ..rendering.figures import save_figure
-        from ..rendering.sweep_plots import plot_sweep
 
-        save_figure(plot_sweep(result), targets["--plot"])
+        save_figure(result.plot(), targets["--plot"])
     if arguments.json:
-        data = summary_dict(result, summary, setup["inputs"], table_path)
-        data["warnings"] = [finding.to_dict() for finding in setup["warnings"]]
-        write_json(data, out)
+        write_json(result.to_dict(), out)
+    elif arguments.quiet:
+        print(verdict_line(result), file=out)
     else:
-        out.write(render(result, summary, table_path, arguments.quiet, setup["warnings"]))
+        out.write(render(result))
     if result.error is not None:
         raise result.error
-    return exit_code(summary.verdict, interrupted=result.interrupted)
+    return exit_code(result.verdict, interrupted=result.interrupted)
 
 
-def _setup(arguments: argparse.Namespace) -> dict[str, Any]:
-    """The sweep's source, built by the one preparation the single check uses."""
-    from ..circuit import is_circuit_path
-    from ..products.sweep.sources import prepare_sweep
-
-    both_netlists = is_circuit_path(arguments.devices[0]) and is_circuit_path(arguments.load)
-    data = arguments.load if is_circuit_path(arguments.devices[0]) else arguments.devices[0]
-    prepared = prepare_sweep(
-        arguments.devices,
-        arguments.load,
-        measurement_impedance_ohm=arguments.reference_impedance,
-        device_dc_resistance_ohm=arguments.device_dc_resistance,
-        load_dc_resistance_ohm=arguments.load_dc_resistance,
-        frequency_hz=options.grid(
-            arguments, netlists=both_netlists, required=both_netlists, data=data
-        ),
-    )
-    return {
-        "source": prepared.source,
-        "frequency_hz": prepared.source.frequency_hz,
-        "z0": prepared.source.reference_impedance_ohm,
-        "dc_sign": None,
-        "devices": prepared.devices,
-        "inputs": prepared.inputs,
-        "warnings": list(prepared.warnings),
-        "parameters": prepared.parameters,
-    }
-
-
-def _plan(arguments: argparse.Namespace, setup: dict[str, Any]) -> Any:
-    from ..products.sweep.plan import grid_plan, monte_carlo_plan
-    from ..products.sweep.sources import DEVICE_INDEX
-
-    known = {name.lower(): name for name in setup["parameters"]}
-    if arguments.vary and arguments.tolerance:
-        raise InputError("sweep: give --vary (a grid) or --tolerance (Monte Carlo), not both")
-    specifications = list(arguments.vary)
-    tolerances = list(arguments.tolerance)
-    for name in [s[0] for s in specifications] + [t[0] for t in tolerances]:
-        if name.lower() not in known:
-            listed = ", ".join(setup["parameters"]) or "none (no netlist parameters)"
-            raise InputError(f"sweep: no netlist parameter {name!r} (known: {listed})")
-    specifications = [(known[s[0].lower()], *s[1:]) for s in specifications]
-    tolerances = [(known[t[0].lower()], t[1]) for t in tolerances]
-    if setup["devices"] > 1:
-        specifications.insert(0, (DEVICE_INDEX, 0.0, setup["devices"] - 1.0, setup["devices"]))
-        if tolerances:
-            raise InputError("sweep: Monte Carlo over a list of device files is not supported")
-    if tolerances:
-        return monte_carlo_plan(
-            tolerances,
-            setup["parameters"],
-            arguments.samples,
-            arguments.seed,
-            arguments.distribution,
-        )
-    if not specifications:
-        raise InputError(
-            "sweep: nothing to vary: give --vary, --tolerance, or several device files"
-        )
-    return grid_plan(specifications, [known.get(n.lower(), n) for n in arguments.log])
-
-
-def _refuse_long_csv(target: Any, variants: int) -> None:
-    """A CSV table of more rows than the CSV limit is refused before the run, not after."""
-    from ..rendering.sweep_table import CSV_ROW_LIMIT
-
-    if target is not None and target.suffix.lower() == ".csv" and variants > CSV_ROW_LIMIT:
-        raise InputError(
-            f"--output {target}: {variants:,} variants is too many rows for CSV (limit"
-            f" {CSV_ROW_LIMIT:,}); write a .parquet table"
-        )
-
-
-def _progress(total: int) -> tuple[Any, Any]:
+def _progress(arguments: argparse.Namespace) -> tuple[Any, Any]:
+    """A progress bar on a terminal, else nothing: ``(done, total)`` moves it."""
     if not sys.stderr.isatty():
         return None, lambda: None
     from tqdm import tqdm
 
-    bar = tqdm(total=total, unit="variant", file=sys.stderr)
-    return bar.update, bar.close
+    bar = tqdm(unit="variant", file=sys.stderr)
+
+    def advance(done: int, total: int) -> None:
+        bar.total = total
+        bar.update(done - bar.n)
+
+    return advance, bar.close

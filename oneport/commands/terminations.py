@@ -5,9 +5,9 @@ from __future__ import annotations
 import argparse
 from typing import Any, TextIO
 
-from ..errors import InputError
 from . import options
 from .common import add_output_options, write_json
+from .outcome import ExitCode
 
 NAME = "terminations"
 
@@ -81,12 +81,23 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Analyse, print, optionally plot; return 0 (bad input raises: exit code 2)."""
-    from ..analysis.terminations import analyse_terminations
+    from ..circuit import is_circuit_path
+    from ..products.terminations import terminations
     from ..rendering.terminations_text import render, verdict_line
 
     targets = options.outputs({"--plot": arguments.plot}, [arguments.device])
-    data = _two_port(arguments)
-    result = analyse_terminations(data, arguments.at, terminated_port=arguments.terminated_port)
+    netlist = is_circuit_path(arguments.device)
+    grid = options.grid(
+        arguments, netlists=netlist, required=netlist, data=arguments.device, when="a .cir device"
+    )
+    result = terminations(
+        arguments.device,
+        arguments.at,
+        terminated_port=arguments.terminated_port,
+        frequency_hz=grid,
+        params=arguments.param,
+        reference_impedance_ohm=arguments.reference_impedance,
+    )
     if "--plot" in targets:
         from ..rendering.smith import save_termination_chart
 
@@ -97,23 +108,4 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         print(verdict_line(result), file=out)
     else:
         out.write(render(result))
-    return 0
-
-
-def _two_port(arguments: argparse.Namespace) -> Any:
-    from ..circuit import is_circuit_path, multiport_from_circuit
-    from ..reading.touchstone import read_touchstone
-
-    netlist = is_circuit_path(arguments.device)
-    grid = options.grid(
-        arguments, netlists=netlist, required=netlist, data=arguments.device, when="a .cir device"
-    )
-    if not netlist:
-        if arguments.param or arguments.reference_impedance is not None:
-            raise InputError(
-                "--param and --reference-impedance apply to netlists (.cir) only; a Touchstone"
-                " file's data keep their own reference"
-            )
-        return read_touchstone(arguments.device)
-    reference = arguments.reference_impedance if arguments.reference_impedance else 50.0
-    return multiport_from_circuit(arguments.device, grid, reference, dict(arguments.param))
+    return int(ExitCode.HOLDS)

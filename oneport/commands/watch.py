@@ -3,13 +3,14 @@
 from __future__ import annotations
 
 import argparse
+import math
 import time
 from collections.abc import Callable
 from pathlib import Path
 from typing import Any, TextIO
 
-from ..errors import printable
 from . import options
+from .outcome import ExitCode
 
 NAME = "watch"
 
@@ -67,7 +68,7 @@ def watch_folder(
     folder: str | Path,
     load: str | Path,
     report_dir: str | Path | None,
-    interval_s: float,
+    interval_s: float | str,
     out: TextIO,
     *,
     clock: Callable[[], float] = time.monotonic,
@@ -80,72 +81,25 @@ def watch_folder(
     a file that cannot be checked prints ``oneport: <error>``, a file not complete yet prints
     ``<name>: waiting: <why>``, and the watch goes on.
     """
-    from ..products.watch import FolderWatcher, run_watch
+    from ..products.watch import watch
+    from ..rendering.watch_text import outcome_lines, start_line
 
-    _read_load(load)
-    watcher = FolderWatcher(folder, interval_s, ignore=(load,))
-    reports = _report_folder(report_dir)
-    print(
-        f"watching {printable(str(watcher.folder))} every {interval_s:g} s against"
-        f" {printable(str(load))} (Ctrl-C stops)",
-        file=out,
-        flush=True,
+    def started(watcher: Any) -> None:
+        print(start_line(watcher.folder, watcher.interval_s, load), file=out, flush=True)
+
+    def handle(outcome: Any) -> None:
+        for line in outcome_lines(outcome):
+            print(line, file=out, flush=True)
+
+    watch(
+        folder,
+        load,
+        polls=math.inf if max_polls is None else max_polls,
+        interval_s=interval_s,
+        report_dir=report_dir,
+        on_outcome=handle,
+        on_start=started,
+        clock=clock,
+        sleep=sleep,
     )
-
-    def handle(path: Path) -> None:
-        _check_and_print(path, load, watcher.version(path), reports, out)
-
-    run_watch(watcher, handle, clock=clock, sleep=sleep, max_polls=max_polls)
-    return 0
-
-
-def _read_load(load: str | Path) -> None:
-    """Read the load once, so a bad load stops the watch before it starts."""
-    from ..reading.files import is_netlist_path
-
-    if is_netlist_path(load):
-        from ..circuit import read_circuit
-
-        read_circuit(load)
-    else:
-        from ..reading.touchstone import read_one_port
-
-        read_one_port(load)
-
-
-def _report_folder(report_dir: str | Path | None) -> Path | None:
-    """The report folder, made if missing and checked before the watch starts."""
-    if report_dir is None:
-        return None
-    from ..rendering.files import check_folder
-
-    return check_folder(report_dir, "--report-dir")
-
-
-def _check_and_print(
-    path: Path, load: str | Path, version: Any, reports: Path | None, out: TextIO
-) -> None:
-    from ..errors import OneportError
-    from ..products.watch import check_file
-    from ..rendering.check_text import verdict_line
-
-    outcome = check_file(path, load, version)
-    name = printable(path.name)
-    if outcome.waiting is not None:
-        print(f"{name}: waiting: {outcome.waiting}", file=out, flush=True)
-        return
-    if outcome.error is not None:
-        print(f"oneport: {printable(outcome.error)}", file=out, flush=True)
-        return
-    if outcome.result is None:
-        return  # it changed while it was read: it is handed out again once it is still
-    print(f"{name}: {verdict_line(outcome.result)}", file=out, flush=True)
-    if reports is not None:
-        from ..rendering.files import check_targets
-        from ..rendering.report import write_report
-
-        try:
-            target = check_targets({"--report-dir": reports / f"{path.name}.html"}, [path, load])
-            write_report(outcome.result, target["--report-dir"])
-        except OneportError as error:
-            print(f"oneport: {printable(str(error))}", file=out, flush=True)
+    return int(ExitCode.HOLDS)

@@ -140,11 +140,11 @@ def prepare_pair(
         The grid when both sides are netlists; default: chosen by :func:`netlist_grid`.
     """
     device_errors, load_errors = _uncertainties(gamma_uncertainty)
-    if measurement_impedance_ohm is not None and not measurement_impedance_ohm > 0:
-        raise InputError(
-            f"measurement impedance {measurement_impedance_ohm!r} ohm: a positive number of ohms"
-            " is needed"
-        )
+    from .options import positive_resistance
+
+    measurement_impedance_ohm = positive_resistance(
+        measurement_impedance_ohm, "--measurement-impedance"
+    )
     device_circuit, load_circuit = as_circuit(device), as_circuit(load)
     for circuit, setup, role in (
         (device_circuit, device_setup, "device"),
@@ -266,6 +266,7 @@ def prepare_pair(
         natural_frequencies=natural,
         findings=device_side.findings + load_side.findings,
         grid_chosen=grid_chosen,
+        dc_resistances_ohm=dc_facts,
     )
     return PreparedPair(
         frequency_hz=frequency,
@@ -399,7 +400,12 @@ def as_circuit(source: Any) -> Any:
 
 
 def _data_side(source: Any, setup: PortSetup | None, role: str) -> Side:
-    if isinstance(source, str | Path) and setup is not None and setup != PortSetup():
+    if setup is not None and setup != PortSetup(terminated_port=setup.terminated_port):
+        if not isinstance(source, str | Path):
+            raise InputError(
+                f"the {role}'s termination, fixture and delay options apply to a Touchstone file"
+                f" given by its path; apply them to the {role} before handing it in"
+            )
         source = prepare(source, setup, role)
     # What the reader could not confirm (no option line, ignored port-impedance comments)
     # travels on the port's record and joins the side's findings.

@@ -17,8 +17,8 @@ from ..analysis.pole_zero import (
     identify_natural_frequencies,
     with_count_check,
 )
-from ..reading.preparation import PortSetup
 from .check import judge_prepared
+from .options import model_order, optional, pair_arguments, port_setup
 from .pair import prepare_pair
 
 
@@ -26,27 +26,60 @@ def poles(
     device: Any,
     load: Any,
     *,
-    measurement_impedance_ohm: float | None = None,
+    measurement_impedance_ohm: float | str | None = None,
     max_order: int | None = None,
     character: bool = False,
-    device_setup: PortSetup | None = None,
-    load_setup: PortSetup | None = None,
     frequency_hz: Any = None,
+    terminate: Any = None,
+    terminate_impedance_ohm: float | str | None = None,
+    terminated_port: int = 2,
+    differential_ports: Any = None,
+    device_fixture: Any = None,
+    device_delay_s: float | str | None = None,
+    load_fixture: Any = None,
+    load_delay_s: float | str | None = None,
 ) -> PoleZeroResult:
     """Fit F = 1 − Γd·ΓL of ``device`` into ``load`` and list the natural frequencies it implies.
 
-    The sides are taken as ``oneport.check`` takes them (paths, one-ports, scikit-rf Networks,
-    netlists). The result's ``verdict`` is the check's (the one judgement); the fit's own is
-    ``fit_verdict``, and the reasons say whether they agree and, where not, which to believe.
-    ``character`` adds the device's character (open-, short- and Z0-stability, the Γ/Z/Y forms).
+    Parameters
+    ----------
+    device, load : path, OnePort, skrf.Network or Circuit
+        As :func:`oneport.check` takes them.
+    measurement_impedance_ohm : float or str, optional
+        The impedance the device was measured in (Ω or ``"50ohm"``), as for the check.
+    max_order : int, optional
+        The highest model order (number of poles) tried; default 24.
+    character : bool
+        Add the device's character (open-, short- and Z0-stability, the Γ/Z/Y forms).
+    frequency_hz, terminate, terminate_impedance_ohm, terminated_port, differential_ports : optional
+    device_fixture, device_delay_s, load_fixture, load_delay_s : optional
+        As for :func:`oneport.check`.
+
+    Returns
+    -------
+    PoleZeroResult
+        Its ``verdict`` is the check's (the one judgement); the fit's own is ``fit_verdict``,
+        and the reasons say whether they agree and, where not, which to believe.
     """
+    max_order = optional(model_order, max_order, "--max-order")
     pair = prepare_pair(
         device,
         load,
-        measurement_impedance_ohm=measurement_impedance_ohm,
-        device_setup=device_setup,
-        load_setup=load_setup,
-        frequency_hz=frequency_hz,
+        device_setup=port_setup(
+            "device",
+            terminate=terminate,
+            terminate_impedance_ohm=terminate_impedance_ohm,
+            terminated_port=terminated_port,
+            differential_ports=differential_ports,
+            fixture=device_fixture,
+            delay_s=device_delay_s,
+        ),
+        **pair_arguments(
+            measurement_impedance_ohm=measurement_impedance_ohm,
+            frequency_hz=frequency_hz,
+            load_fixture=load_fixture,
+            load_delay_s=load_delay_s,
+        ),
     )
     check = judge_prepared(pair)
     fitted = identify_natural_frequencies(

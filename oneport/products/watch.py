@@ -14,19 +14,25 @@ What no watcher can tell: a 1.x file whose writer pauses, after a complete line,
 than two intervals looks finished. Writers should save under a hidden name (``.name.s1p``)
 or another suffix and rename when done, or the interval should exceed their longest pause.
 
-This room polls and checks; it never prints, writes reports or exits. The clock and the sleep
-are injectable so tests run without waiting, and :func:`run_watch` takes ``max_polls`` to stop.
+:func:`watch` (``oneport.watch``) is the product: it checks a folder once, or polls it a given
+number of times (the command: until Ctrl-C), hands each outcome to a callback as it comes, and
+returns a frozen :class:`WatchResult`. This room polls and checks; it never prints or exits; the
+HTML reports it is asked for are drawn by :mod:`oneport.rendering.report`. The clock and the
+sleep are injectable so tests run without waiting, and :func:`run_watch` takes ``max_polls`` to
+stop.
 """
 
 from __future__ import annotations
 
+import math
 import os
 import time
 from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
+from ..display import Displayed
 from ..errors import FileFormatError, InputError, OneportError, printable
 
 if TYPE_CHECKING:
@@ -63,13 +69,62 @@ class WatchOutcome:
     """What became of one still file: a result, an error, or why it is still awaited.
 
     Exactly one of ``result``, ``error`` and ``waiting`` is set, except for a file that changed
-    while it was read (all three None): it is handed out again once it is still.
+    while it was read (all three None): it is handed out again once it is still. ``report`` is
+    the HTML report written for a result, ``report_error`` why it could not be.
     """
 
     path: Path
     result: CheckResult | None
     error: str | None
     waiting: str | None = None
+    report: Path | None = None
+    report_error: str | None = None
+
+
+@dataclass(frozen=True, repr=False)
+class WatchResult(Displayed):
+    """What a watch saw: the folder, the load, and each file's outcome in the order they came.
+
+    ``outcomes`` is empty when they were handed to a callback instead (a long watch keeps
+    nothing); ``polls`` is 0 for a single look.
+    """
+
+    folder: Path
+    load: str
+    interval_s: float
+    polls: int
+    outcomes: tuple[WatchOutcome, ...]
+
+    def plot(self, ax: Any = None) -> Any:
+        """Each checked file's closest approach to +1, coloured by its verdict.
+
+        Returns the matplotlib figure (headless); ``ax`` draws into existing axes.
+        """
+        from ..rendering.watch_plot import plot_watch
+
+        return plot_watch(self, ax)
+
+    @property
+    def cautions(self) -> tuple[str, ...]:
+        """The safety cautions every check ends with."""
+        from ..cautions import CAUTIONS
+
+        return CAUTIONS
+
+    @property
+    def results(self) -> tuple[CheckResult, ...]:
+        """The checks made, in order."""
+        return tuple(o.result for o in self.outcomes if o.result is not None)
+
+    @property
+    def verdict(self) -> str:
+        """The worst verdict among the files checked: ``unstable`` before ``inconclusive`` before
+        ``stable``; ``inconclusive`` when nothing could be checked."""
+        verdicts = {result.verdict for result in self.results}
+        for word in ("unstable", "inconclusive"):
+            if word in verdicts:
+                return word
+        return "stable" if verdicts else "inconclusive"
 
 
 class FolderWatcher:
@@ -112,12 +167,9 @@ class FolderWatcher:
             raise InputError(
                 f"{printable(str(self.folder))}: no such folder; give the folder to watch"
             )
-        if not MINIMUM_INTERVAL_S <= interval_s <= MAXIMUM_INTERVAL_S:
-            raise InputError(
-                f"--interval: {interval_s:g} s is outside the accepted range; give a time from"
-                f" {MINIMUM_INTERVAL_S * 1e3:g} ms to {MAXIMUM_INTERVAL_S / 3600:g} h, e.g. 1s"
-            )
-        self.interval_s = float(interval_s)
+        from .options import interval
+
+        self.interval_s = interval(interval_s, "--interval")
         self._ignored = {os.path.realpath(path) for path in ignore}
         self._tracked: dict[Path, _Tracked] = {}
 
@@ -142,6 +194,10 @@ class FolderWatcher:
                 tracked.handed_out = version
                 ready.append(path)
         return ready
+
+    def present(self) -> list[Path]:
+        """The watched files in the folder now, in name order (a single look: no waiting)."""
+        return sorted(self._scan())
 
     def version(self, path: Path) -> FileVersion | None:
         """The version of ``path`` last seen (None for a file not tracked)."""
@@ -254,3 +310,131 @@ def run_watch(
             break
         sleep(max(MINIMUM_INTERVAL_S, watcher.interval_s - (clock() - started)))
     return polls
+
+
+def watch(
+    folder: str | Path,
+    load: str | Path,
+    *,
+    polls: int | float | None = None,
+    interval_s: float | str = DEFAULT_INTERVAL_S,
+    report_dir: str | Path | None = None,
+    on_outcome: Callable[[WatchOutcome], Any] | None = None,
+    on_start: Callable[[FolderWatcher], Any] | None = None,
+    clock: Callable[[], float] = time.monotonic,
+    sleep: Callable[[float], None] = time.sleep,
+) -> WatchResult:
+    """Check the Touchstone files of ``folder`` against ``load``, once or as they arrive.
+
+    Parameters
+    ----------
+    folder : str or Path
+        Where the device files are (``.s1p``, ``.ts``; hidden files and the load are skipped).
+    load : str or Path
+        The load: a Touchstone one-port or a netlist, read once first (a bad load fails at once).
+    polls : int, float('inf') or None
+        None (default): one look now; every complete file there is checked (one whose last line
+        has not ended, or a 2.x file short of its points, is *waiting*). A number: poll that
+        many times, ``interval_s`` apart, and check each file once it has stayed unchanged for
+        two intervals (``oneport watch``: ``inf``, until Ctrl-C).
+    interval_s : float or str
+        The polling interval, s or text (``"1s"``, ``"200ms"``), 50 ms to 1 h.
+    report_dir : str or Path, optional
+        Write an HTML report per checked file there, named ``<file>.html`` (made if missing).
+    on_outcome : callable, optional
+        Called with each :class:`WatchOutcome` as it comes; the result then keeps none (so a
+        long watch holds no memory).
+    on_start : callable, optional
+        Called with the :class:`FolderWatcher` once the folder, interval and load are accepted.
+    clock, sleep
+        Injectable for tests.
+
+    Returns
+    -------
+    WatchResult
+
+    Examples
+    --------
+    >>> import oneport
+    >>> seen = oneport.watch("touchstone_examples/stable", "touchstone_examples/stable/load.s1p")
+    >>> [(o.path.name, o.result.verdict) for o in seen.outcomes]
+    [('device.s1p', 'stable')]
+    """
+    from .options import interval
+
+    seconds = interval(interval_s, "--interval")
+    if polls is not None and (
+        isinstance(polls, bool) or not isinstance(polls, int | float) or not polls >= 1
+    ):
+        raise InputError(f"polls {polls!r}: give a number of polls, 1 or more, or None")
+    watcher = FolderWatcher(folder, seconds, ignore=(load,))
+    _read_load(load)
+    reports = _report_folder(report_dir)  # made and checked before the watch starts
+    if on_start is not None:
+        on_start(watcher)
+    kept: list[WatchOutcome] = []
+
+    def handle(path: Path, version: FileVersion | None) -> None:
+        outcome = _with_report(check_file(path, load, version), reports, load)
+        if on_outcome is not None:
+            on_outcome(outcome)
+        else:
+            kept.append(outcome)
+
+    made = 0
+    if polls is None:
+        for path in watcher.present():
+            handle(path, None)
+    else:
+        limit = None if math.isinf(polls) else int(polls)
+        made = run_watch(
+            watcher,
+            lambda path: handle(path, watcher.version(path)),
+            clock=clock,
+            sleep=sleep,
+            max_polls=limit,
+        )
+    return WatchResult(watcher.folder, str(load), seconds, made, tuple(kept))
+
+
+def _read_load(load: str | Path) -> None:
+    """Read the load once, so a bad load stops the watch before it starts."""
+    from ..reading.files import is_netlist_path
+
+    if is_netlist_path(load):
+        from ..circuit import read_circuit
+
+        read_circuit(load)
+    else:
+        from ..reading.touchstone import read_one_port
+
+        read_one_port(load)
+
+
+def _report_folder(report_dir: str | Path | None) -> Path | None:
+    """The report folder, made if missing and checked (never a system folder, writable)."""
+    if report_dir is None:
+        return None
+    from ..rendering.files import check_folder
+
+    return check_folder(report_dir, "--report-dir")
+
+
+def _with_report(outcome: WatchOutcome, reports: Path | None, load: str | Path) -> WatchOutcome:
+    """The outcome with its HTML report written, when reports are asked for: checked first
+    (never the checked file or the load, never a special file), written whole."""
+    if reports is None or outcome.result is None:
+        return outcome
+    from dataclasses import replace
+
+    from ..rendering.report import write_report
+    from .options import output_targets
+
+    try:
+        target = output_targets(
+            {"--report-dir": reports / f"{outcome.path.name}.html"}, [outcome.path, load]
+        )
+        written = write_report(outcome.result, target["--report-dir"])
+    except OneportError as error:
+        return replace(outcome, report_error=str(error))
+    return replace(outcome, report=written)

@@ -33,7 +33,7 @@ NEAR_LOOP_THRESHOLD = 0.1
 
 
 @dataclass(frozen=True)
-class TerminationResult:
+class TerminatedTwoPort:
     """A two-port with one port terminated: the one-port left at the other port.
 
     Attributes
@@ -144,7 +144,7 @@ def gamma_from_impedance(impedance_ohm: complex, reference_impedance_ohm: float)
 
 def terminate_two_port(
     s: np.ndarray, gamma_termination: np.ndarray, terminated_port: int = 2
-) -> TerminationResult:
+) -> TerminatedTwoPort:
     """The one-port left when one port of a two-port is terminated in ΓT.
 
     For ``terminated_port=2``: Γin = S11 + S12·S21·ΓT / (1 − S22·ΓT), referred to port 1's
@@ -187,7 +187,7 @@ def terminate_two_port(
     through = s[..., other, terminated, :] * s[..., terminated, other, :] * gamma_termination
     undefined = np.full(denominator.shape, np.nan, dtype=complex)
     quotient = np.divide(through, denominator, out=undefined, where=~singular)
-    return TerminationResult(
+    return TerminatedTwoPort(
         gamma_in=s[..., other, other, :] + quotient,
         denominator=denominator,
         near_loop=np.abs(denominator) < NEAR_LOOP_THRESHOLD,
@@ -198,7 +198,7 @@ def terminate_two_port(
 
 
 def termination_findings(
-    result: TerminationResult, frequency_hz: np.ndarray, source: str
+    result: TerminatedTwoPort, frequency_hz: np.ndarray, source: str
 ) -> tuple[Finding, ...]:
     """Findings for the near-loop and singular samples of a termination (frequency in Hz).
 
@@ -243,7 +243,7 @@ def termination_findings(
 
 
 def terminated_one_port(
-    result: TerminationResult,
+    result: TerminatedTwoPort,
     frequency_hz: np.ndarray,
     reference_impedance_ohm: float,
     source: str,

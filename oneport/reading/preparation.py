@@ -17,7 +17,6 @@ import numpy as np
 
 from ..errors import InputError
 from ..findings import Finding
-from . import planes
 from .alignment import interpolate, renormalise
 from .touchstone import Multiport, OnePort, one_port_from_network, read_one_port, read_touchstone
 
@@ -45,6 +44,8 @@ class PreparedPort:
 
 def prepare(path: str | Path, setup: PortSetup, role: str) -> PreparedPort:
     """Read ``path`` and apply ``setup``: termination or mixed mode, fixture, delay."""
+    from . import planes
+
     steps: list[str] = []
     findings: list[Finding] = []
     if setup.terminate_path is not None and setup.terminate_impedance_ohm is not None:
@@ -77,6 +78,8 @@ def prepare(path: str | Path, setup: PortSetup, role: str) -> PreparedPort:
 
 
 def _terminated(path: str | Path, setup: PortSetup, findings: list[Finding]) -> tuple[OnePort, str]:
+    from . import planes
+
     two_port = _two_port(path)
     frequency_hz = two_port.frequency_hz
     if setup.terminate_impedance_ohm is not None:
@@ -111,6 +114,8 @@ def _terminated(path: str | Path, setup: PortSetup, findings: list[Finding]) -> 
 
 
 def _differential(path: str | Path, pairs: tuple[tuple[int, int], ...]) -> OnePort:
+    from . import planes
+
     multiport = read_touchstone(path)
     gamma = planes.mixed_mode_differential(
         multiport.s, list(pairs), multiport.reference_impedance_ohm
@@ -128,6 +133,8 @@ def _differential(path: str | Path, pairs: tuple[tuple[int, int], ...]) -> OnePo
 
 
 def _deembedded(port: OnePort, fixture_path: str, findings: list[Finding]) -> OnePort:
+    from . import planes
+
     fixture = _two_port(fixture_path)
     findings.extend(fixture.warnings)
     inside = _inside(port.frequency_hz, fixture.frequency_hz, fixture_path)

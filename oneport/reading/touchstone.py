@@ -237,6 +237,29 @@ def one_port_from_network(network: Any, description: str = "network") -> OnePort
     )
 
 
+def multiport_from_network(network: Any, description: str = "network") -> Multiport:
+    """Take an N-port from a scikit-rf ``Network`` already in memory (API use), its reference
+    impedance real, positive and constant over frequency on every port."""
+    s = np.asarray(network.s)
+    if s.ndim != 3 or s.shape[1] != s.shape[2]:
+        raise FileFormatError(description, "is not a network of square S-matrices")
+    z0 = np.asarray(network.z0)
+    references = np.array(
+        [_constant_real_reference(description, z0[:, k]) for k in range(s.shape[1])]
+    )
+    frequency_hz = np.asarray(network.f, dtype=float)
+    matrix = np.moveaxis(s.astype(complex), 0, -1)
+    for row in range(matrix.shape[0]):
+        for column in range(matrix.shape[1]):
+            _check_arrays(description, frequency_hz, matrix[row, column])
+    return Multiport(
+        frequency_hz=frequency_hz,
+        s=matrix,
+        reference_impedance_ohm=references,
+        source=str(getattr(network, "name", None) or description),
+    )
+
+
 # --- the whole file ------------------------------------------------------------------------------
 
 

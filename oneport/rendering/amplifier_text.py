@@ -6,9 +6,10 @@ and computes nothing.
 
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING
 
-from ..units import format_frequency
+from ..units import format_frequency, format_plain, format_resistance, to_decibels
 from .check_text import closing_sections, wrap
 
 if TYPE_CHECKING:
@@ -32,13 +33,13 @@ def verdict_line(result: AmplifierResult) -> str:
     }[result.basis]
     port = ""
     if result.port_source == "return-loss":
-        port = f"; port {result.port_return_loss_db:.1f} dB return loss"
+        port = f"; port return loss {_return_loss(result.port_reflection_bound):.1f} dB"
     elif result.port_source == "load":
-        port = f"; port file, worst return loss {result.port_return_loss_db:.1f} dB"
+        port = f"; port file, worst return loss {_return_loss(result.port_reflection_bound):.1f} dB"
     return (
-        f"{_HEADLINE[result.verdict]} ({basis}): peak gain {result.peak_gain_db:.2f} dB at"
+        f"{_HEADLINE[result.verdict]} ({basis}): peak gain {_power(result.peak_gain):.2f} dB at"
         f" {format_frequency(result.peak_frequency_hz)}{port};"
-        f" Z0 = {result.reference_impedance_ohm:g} ohm"
+        f" Z0 = {format_resistance(result.reference_impedance_ohm)}"
     )
 
 
@@ -50,7 +51,7 @@ def render(result: AmplifierResult) -> str:
     if result.nyquist is not None:
         nyquist = result.nyquist
         count = "?" if nyquist.encirclements is None else str(nyquist.encirclements)
-        parts += ["", "Nyquist check with the load", f"  {nyquist.verdict}, N = {count}"]
+        parts += ["", "Nyquist check with the port file", f"  {nyquist.verdict}, N = {count}"]
     parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
     return "\n".join(parts) + "\n"
 
@@ -59,16 +60,18 @@ def _gain(result: AmplifierResult) -> list[str]:
     z0 = result.reference_impedance_ohm
     bandwidth = result.bandwidth
     rows = [
-        f"Gain |gamma_device|^2 (Z0 = {z0:g} ohm)",
-        f"  peak {result.peak_gain_db:.2f} dB at {format_frequency(result.peak_frequency_hz)}",
+        f"Gain |Γd|² (Z0 = {format_resistance(z0)})",
+        f"  peak {_power(result.peak_gain):.2f} dB at {format_frequency(result.peak_frequency_hz)}",
         f"  -3 dB band {_span(bandwidth)}, bandwidth"
         f" {format_frequency(bandwidth.stop_hz - bandwidth.start_hz)}",
     ]
+    threshold = _power(result.gain_threshold)
     if not result.bands:
-        rows.append(f"  no band reaches {result.gain_threshold_db:g} dB")
+        rows.append(f"  no band reaches {format_plain(threshold)} dB")
     for band in result.bands:
         rows.append(
-            f"  >= {result.gain_threshold_db:g} dB: {_span(band)}, peak {band.peak_gain_db:.2f} dB"
+            f"  ≥ {format_plain(threshold)} dB: {_span(band)}, peak"
+            f" {_power(band.peak_gain):.2f} dB"
             f" at {format_frequency(band.peak_frequency_hz)}"
         )
     return rows
@@ -76,28 +79,38 @@ def _gain(result: AmplifierResult) -> list[str]:
 
 def _requirement(result: AmplifierResult) -> list[str]:
     rows = [
-        "Port match for guaranteed stability (small-gain bound |gamma_device * gamma_port| < 1)",
-        f"  return loss needed: {result.worst_required_return_loss_db:.2f} dB at"
+        "Port match for guaranteed stability (small-gain bound |Γd·Γport| < 1 at every frequency)",
+        f"  return loss needed: {_return_loss(result.smallest_allowed_reflection):.2f} dB at"
         f" {format_frequency(result.worst_frequency_hz)} (the gain in dB at each frequency)",
     ]
-    if result.port_margin_db is not None and result.port_margin_frequency_hz is not None:
+    if result.port_margin is not None and result.port_margin_frequency_hz is not None:
         source = {
             "return-loss": "stated",
             "load": "from the port file",
             "any-passive-port": "any passive port",
         }[result.port_source or ""]
         rows.append(
-            f"  port return loss {result.port_return_loss_db:.2f} dB ({source}): margin"
-            f" {result.port_margin_db:+.2f} dB at"
+            f"  port return loss {_return_loss(result.port_reflection_bound):.2f} dB ({source}):"
+            f" margin {to_decibels(result.port_margin):+.2f} dB at"
             f" {format_frequency(result.port_margin_frequency_hz)}"
         )
         rows += [wrap(edge.note, "  ") for edge in result.edges]
-    ripple = result.ripple_at_peak_db
+    ripple = result.ripple_at_peak
     if ripple is not None:
         lower, upper = ripple
-        top = "unbounded" if upper == float("inf") else f"{upper:.2f} dB"
-        rows.append(f"  gain at the peak with this match: {lower:.2f} dB to {top}")
+        top = "unbounded" if upper == float("inf") else f"{_power(upper):.2f} dB"
+        rows.append(f"  gain at the peak with this match: {_power(lower):.2f} dB to {top}")
     return rows
+
+
+def _power(ratio: float) -> float:
+    """A power gain in dB (a gain that underflows to 0 reads as -3000 dB, never -inf)."""
+    return 10.0 * math.log10(max(ratio, 1e-300))
+
+
+def _return_loss(reflection: float | None) -> float:
+    """A reflection bound as a return loss, dB."""
+    return 0.0 - to_decibels(reflection or 0.0)
 
 
 def _span(band: GainBand) -> str:

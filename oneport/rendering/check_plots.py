@@ -5,14 +5,16 @@ Rendering only: every function draws what a :class:`~oneport.analysis.result.Che
 GHz, |L| in dB and phases in degrees here and nowhere inside the package.
 
 matplotlib is imported inside the functions, never when ``oneport`` is imported. Figures are
-built as :class:`matplotlib.figure.Figure` objects without ``pyplot``, so they need no display;
-the Agg backend is selected unless the caller already imported ``pyplot`` (an interactive
-session keeps its own backend).
+built as :class:`matplotlib.figure.Figure` objects without ``pyplot``, so they need no display
+and no backend is ever selected (an interactive session keeps its own).
 
 Artists that tests and callers may look for carry a ``gid``: ``"critical-point"`` (the +1
 marker), ``"frequency-arrow"``, ``"crossing-label"``, ``"unit-circle"``, ``"loop-gain-band"``
 (shaded |L| ≥ 1 bands), ``"oscillation-frequency"``, ``"smith-boundary"`` (|Γ| = 1),
-``"load-trace"`` and ``"device-trace"``.
+``"load-trace"``, ``"device-trace"``, ``"smith-frequency-mark"`` and ``"smith-frequency-label"``
+(round frequencies along both Smith traces), ``"compressed-ring"``, ``"compressed-ring-label"``
+and ``"compressed-tick"`` (the true |L| scale of a compressed Nyquist plot), and ``"legend"``
+(placed outside the data area, so it never covers a trace).
 """
 
 from __future__ import annotations
@@ -24,7 +26,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ..errors import InputError
-from ..units import format_frequency
+from ..units import format_frequency, format_plain, format_resistance
 from .figures import figure_bytes, image_target, new_figure
 from .files import write_atomically
 
@@ -33,6 +35,7 @@ if TYPE_CHECKING:
     from matplotlib.figure import Figure
 
     from ..analysis.result import CheckResult
+    from ..analysis.small_gain import BoundResult
 
 # A neutral palette of our own: ink for the loop, muted warm and cool tones for the rest.
 _INK = "#26323d"
@@ -46,6 +49,20 @@ _GIGAHERTZ = 1e9
 _ARROWS = 6
 _SMITH_RESISTANCES = (0.2, 0.5, 1.0, 2.0, 5.0)
 _SMITH_REACTANCES = (0.2, 0.5, 1.0, 2.0, 5.0)
+# Fixed margins (fractions of the figure): room for the legends outside the data areas, and
+# several times quicker to draw than matplotlib's constrained layout.
+_NYQUIST_MARGINS = {"left": 0.14, "right": 0.97, "top": 0.9, "bottom": 0.2}
+_SMITH_MARGINS = {"left": 0.02, "right": 0.98, "top": 0.9, "bottom": 0.12}
+_LOOP_GAIN_MARGINS = {"left": 0.1, "right": 0.7, "top": 0.9, "bottom": 0.09, "hspace": 0.15}
+_BOUND_MARGINS = {"left": 0.11, "right": 0.97, "top": 0.91, "bottom": 0.3}
+_QUICK_LOOK_MARGINS = {
+    "left": 0.06,
+    "right": 0.79,
+    "top": 0.9,
+    "bottom": 0.19,
+    "wspace": 0.22,
+    "hspace": 0.15,
+}
 
 
 def radius_compressed(values: np.ndarray) -> np.ndarray:
@@ -99,7 +116,7 @@ def plot_nyquist(
     matplotlib.figure.Figure
         The figure drawn into (``ax.figure`` when ``ax`` was given).
     """
-    figure, ax = _target(ax, (6.4, 6.0))
+    figure, ax = _target(ax, (6.4, 6.9), _NYQUIST_MARGINS)
     mapping = _radius_mapping(compress_radius)
     points = mapping(result.loop_gain)
     mirror = np.conj(points)
@@ -124,10 +141,14 @@ def plot_nyquist(
         label="critical point +1",
     )
     ax.set_aspect("equal", adjustable="datalim")
-    radius_word = "log-compressed radius" if compress_radius else "linear"
-    ax.set_xlabel(f"Re L ({radius_word})")
-    ax.set_ylabel(f"Im L ({radius_word})")
-    ax.legend(loc="best", fontsize="small", framealpha=0.85)
+    if compress_radius:
+        _compressed_scale(ax, result.loop_gain)
+        ax.set_xlabel("Re L (radius compressed; ticks and dotted rings at true values)")
+        ax.set_ylabel("Im L (radius compressed)")
+    else:
+        ax.set_xlabel("Re L")
+        ax.set_ylabel("Im L")
+    _legend_below(ax, columns=2)
     ax.set_title(f"Nyquist plot of L = Γd·ΓL\n{_headline(result)}", fontsize="medium")
     return figure
 
@@ -176,7 +197,7 @@ def plot_loop_gain(
     magnitude_ax.set_ylabel("|L| (dB)")
     phase_ax.set_ylabel("arg L (deg)")
     phase_ax.set_xlabel("frequency (GHz)")
-    magnitude_ax.legend(loc="best", fontsize="small", framealpha=0.85)
+    _legend_beside(magnitude_ax)
     magnitude_ax.set_title(f"Loop gain L = Γd·ΓL\n{_headline(result)}", fontsize="medium")
     return magnitude_ax.figure  # type: ignore[return-value]
 
@@ -200,7 +221,7 @@ def plot_smith(result: CheckResult, ax: Axes | None = None, max_radius: float = 
     -------
     matplotlib.figure.Figure
     """
-    figure, ax = _target(ax, (6.4, 6.4))
+    figure, ax = _target(ax, (6.4, 7.0), _SMITH_MARGINS)
     with np.errstate(divide="ignore", invalid="ignore"):
         device_inverse = 1.0 / result.gamma_device
     view = _smith_view_radius(result.gamma_load, device_inverse, max(1.0, max_radius))
@@ -217,10 +238,11 @@ def plot_smith(result: CheckResult, ax: Axes | None = None, max_radius: float = 
         line.set_clip_path(view_clip)
         _smith_end_markers(ax, finite, color, view_clip)
     _smith_closest_approach(ax, result, device_inverse, view_clip)
+    _smith_frequency_marks(ax, result, device_inverse, view)
     ax.text(
         0.0,
         0.0,
-        "○ lowest frequency, □ highest",
+        "○ lowest frequency, □ highest; dots: the frequencies written beside them",
         transform=ax.transAxes,
         fontsize="x-small",
         color=_MUTED,
@@ -229,10 +251,11 @@ def plot_smith(result: CheckResult, ax: Axes | None = None, max_radius: float = 
     ax.set_ylim(-1.05 * view, 1.05 * view)
     ax.set_aspect("equal")
     ax.set_axis_off()
-    ax.legend(loc="upper left", fontsize="small", framealpha=0.85)
+    _legend_below(ax, columns=3)
+    count = "N = ?" if result.encirclements is None else f"N = {result.encirclements}"
     ax.set_title(
-        f"Smith chart, Z0 = {result.reference_impedance_ohm:g} ohm: the loop closes where"
-        f" ΓL = 1/Γd\n{_headline(result)}",
+        f"Smith chart in Z0 = {format_resistance(result.reference_impedance_ohm)}: the loop"
+        f" closes where ΓL = 1/Γd\n{result.verdict} ({count})",
         fontsize="medium",
     )
     return figure
@@ -265,8 +288,8 @@ def save_plots(result: CheckResult, path: str | Path) -> Path:
 
 def quick_look_figure(result: CheckResult) -> Figure:
     """One figure: the (radius-compressed) Nyquist plot beside the loop-gain panels."""
-    figure = new_figure((13.0, 6.2))
-    grid = figure.add_gridspec(2, 2, width_ratios=(1.0, 1.15))
+    figure = new_figure((13.0, 6.6), _QUICK_LOOK_MARGINS)
+    grid = figure.add_gridspec(2, 2, width_ratios=(1.0, 1.15), **_QUICK_LOOK_MARGINS)
     plot_nyquist(result, figure.add_subplot(grid[:, 0]), compress_radius=True)
     magnitude_ax = figure.add_subplot(grid[0, 1])
     phase_ax = figure.add_subplot(grid[1, 1], sharex=magnitude_ax)
@@ -277,16 +300,18 @@ def quick_look_figure(result: CheckResult) -> Figure:
 # --- figure plumbing -----------------------------------------------------------------------
 
 
-def _target(ax: Axes | None, size: tuple[float, float]) -> tuple[Figure, Axes]:
+def _target(
+    ax: Axes | None, size: tuple[float, float], margins: dict[str, float]
+) -> tuple[Figure, Axes]:
     if ax is None:
-        figure = new_figure(size)
+        figure = new_figure(size, margins)
         return figure, figure.add_subplot()
     return ax.figure, ax  # type: ignore[return-value]
 
 
 def _stacked_axes(ax: Axes | Sequence[Axes] | None) -> tuple[Axes, Axes]:
     if ax is None:
-        figure = new_figure((7.6, 6.0))
+        figure = new_figure((8.8, 6.0), _LOOP_GAIN_MARGINS)
         magnitude_ax = figure.add_subplot(2, 1, 1)
         return magnitude_ax, figure.add_subplot(2, 1, 2, sharex=magnitude_ax)
     if isinstance(ax, Sequence):
@@ -301,7 +326,27 @@ def _stacked_axes(ax: Axes | Sequence[Axes] | None) -> tuple[Axes, Axes]:
 
 def _headline(result: CheckResult) -> str:
     count = "N = ?" if result.encirclements is None else f"N = {result.encirclements}"
-    return f"{result.verdict} ({count}), Z0 = {result.reference_impedance_ohm:g} ohm"
+    return f"{result.verdict} ({count}), Z0 = {format_resistance(result.reference_impedance_ohm)}"
+
+
+def _legend_below(ax: Axes, columns: int) -> None:
+    """The legend under the axes, outside the data area, so it never covers a trace."""
+    legend = ax.legend(
+        loc="upper center",
+        bbox_to_anchor=(0.5, -0.1),
+        ncols=columns,
+        fontsize="small",
+        frameon=False,
+    )
+    legend.set_gid("legend")
+
+
+def _legend_beside(ax: Axes) -> None:
+    """The legend right of the axes, outside the data area."""
+    legend = ax.legend(
+        loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize="small", frameon=False
+    )
+    legend.set_gid("legend")
 
 
 def _radius_mapping(compressed: bool) -> Any:
@@ -354,6 +399,47 @@ def _unit_circle(ax: Axes) -> None:
         np.cos(angle), np.sin(angle), color=_MUTED, linewidth=0.9, linestyle=":", label="|L| = 1"
     )
     circle.set_gid("unit-circle")
+
+
+#: True |L| of the rings and ticks on a compressed Nyquist plot (1-2-5 steps).
+_RING_VALUES = (0.5, 1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0, 200.0, 500.0, 1000.0)
+
+
+def _compressed_scale(ax: Axes, loop_gain: np.ndarray) -> None:
+    """Label a compressed plot honestly: dotted rings at true |L| = 0.5, 2, 5, … (gid
+    ``"compressed-ring"``; |L| = 1 is the unit circle), and the axes' ticks placed where true
+    Re L and Im L take the values 0, ±0.5, ±1, ±2, ±5, … on the axes, labelled with them (gid
+    ``"compressed-tick"``). A tick labelled −2 then sits where L = −2 is, not at Re L = −2 of
+    the compressed plane."""
+    finite = np.abs(loop_gain[np.isfinite(loop_gain)])
+    largest = float(finite.max()) if finite.size else 1.0
+    values = []
+    for value in _RING_VALUES:
+        values.append(value)
+        if value >= max(2.0, largest):
+            break
+    angle = np.linspace(0.0, 2.0 * np.pi, 361)
+    for value in values:
+        if value == 1.0:  # the unit circle, drawn already
+            continue
+        radius = float(np.abs(radius_compressed(np.array([value]))[0]))
+        (ring,) = ax.plot(
+            radius * np.cos(angle),
+            radius * np.sin(angle),
+            color=_GRID,
+            linewidth=0.7,
+            linestyle=":",
+            zorder=0,
+        )
+        ring.set_gid("compressed-ring")
+    signed = sorted({-v for v in values} | {0.0} | set(values))
+    positions = [float(np.sign(v) * np.abs(radius_compressed(np.array([v]))[0])) for v in signed]
+    labels = [format_plain(v).replace("-", "\N{MINUS SIGN}") for v in signed]
+    for axis in (ax.xaxis, ax.yaxis):
+        axis.set_ticks(positions, labels=labels)
+        for label in axis.get_ticklabels():
+            label.set_gid("compressed-tick")
+        axis.set_tick_params(labelsize="small")
 
 
 def _edge_labels(ax: Axes, result: CheckResult, points: np.ndarray) -> None:
@@ -514,3 +600,77 @@ def _smith_closest_approach(
     )
     joint.set_gid("closest-approach")
     joint.set_clip_path(clip)
+
+
+def _smith_frequency_marks(
+    ax: Axes, result: CheckResult, device_inverse: np.ndarray, view: float
+) -> None:
+    """Dots at a few round frequencies along both traces, each labelled with its frequency
+    (gid ``"smith-frequency-mark"`` on the dots, ``"smith-frequency-label"`` on the text)."""
+    from matplotlib.ticker import MaxNLocator
+
+    frequency = result.frequency_hz
+    low, high = float(frequency[0]), float(frequency[-1])
+    scale = _GIGAHERTZ if high >= _GIGAHERTZ else 1e6
+    ticks = MaxNLocator(nbins=7, steps=[1, 2, 2.5, 5, 10]).tick_values(low / scale, high / scale)
+    chosen = [t * scale for t in ticks if low < t * scale < high]
+    for values, color, offset in (
+        (result.gamma_load, _LOAD, (5, 4)),
+        (device_inverse, _DEVICE, (5, -10)),
+    ):
+        for marked in chosen:
+            point = complex(
+                np.interp(marked, frequency, values.real), np.interp(marked, frequency, values.imag)
+            )
+            if not (np.isfinite(point) and abs(point) <= view):
+                continue
+            (dot,) = ax.plot(
+                [point.real], [point.imag], marker="o", markersize=3.5, color=color, zorder=4
+            )
+            dot.set_gid("smith-frequency-mark")
+            label = ax.annotate(
+                format_frequency(marked),
+                xy=(point.real, point.imag),
+                xytext=offset,
+                textcoords="offset points",
+                fontsize="x-small",
+                color=color,
+                zorder=4,
+            )
+            label.set_gid("smith-frequency-label")
+
+
+def plot_bound(result: BoundResult, ax: Axes | None = None) -> Figure:
+    """The return loss a load needs for the small-gain bound, against frequency, beside the
+    stated one (``check --load-return-loss``); bands where the stated one is not enough shaded.
+
+    Drawn into ``ax`` when given, else on a new headless figure; returns the figure.
+    """
+    figure, ax = _target(ax, (7.6, 5.0), _BOUND_MARGINS)
+    frequency_ghz = result.frequency_hz / _GIGAHERTZ
+    stated = 0.0 - 20.0 * np.log10(result.reflection_bound)
+    ax.plot(
+        frequency_ghz,
+        0.0 - 20.0 * np.log10(result.allowed_reflection),
+        color=_DEVICE,
+        linewidth=1.3,
+        label="return loss needed (20·log10 |Γd|, at least 0 dB)",
+    )
+    ax.axhline(stated, color=_LOAD, linewidth=1.2, linestyle="--", label=f"stated: {stated:g} dB")
+    for index, band in enumerate(result.failing_bands):
+        ax.axvspan(
+            band.start_hz / _GIGAHERTZ,
+            band.stop_hz / _GIGAHERTZ,
+            color=_BAND,
+            alpha=0.35,
+            label="stated return loss not enough" if index == 0 else None,
+        )
+    ax.grid(True, color=_GRID, linewidth=0.6)
+    ax.set_xlabel("frequency (GHz)")
+    ax.set_ylabel(f"return loss (dB, Z0 = {format_resistance(result.reference_impedance_ohm)})")
+    _legend_below(ax, 2)
+    ax.set_title(
+        f"Small-gain bound for the load class: {result.verdict.replace('-', ' ')}",
+        fontsize="medium",
+    )
+    return figure

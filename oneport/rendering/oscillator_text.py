@@ -7,7 +7,6 @@ unit scaling.
 
 from __future__ import annotations
 
-import html
 import math
 from collections.abc import Sequence
 
@@ -65,33 +64,6 @@ def render(result: OscillatorResult) -> str:
         result.warnings, result.next_steps, None, result.cautions, result.limits
     )
     return "\n".join(parts) + "\n"
-
-
-def render_html(result: OscillatorResult) -> str:
-    """A small HTML summary for notebooks: verdict, reasons, key numbers, cautions."""
-    escape = html.escape
-    rows = "".join(
-        "<tr>" + "".join(f"<td>{escape(cell)}</td>" for cell in _point_cells(result, p)) + "</tr>"
-        for p in result.operating_points
-    )
-    head = "".join(f"<th>{escape(' '.join(h))}</th>" for h in _point_headers(result))
-    table = (
-        f"<table><tr>{head}</tr>{rows}</table>"
-        if rows
-        else "<p>No operating point in the data.</p>"
-    )
-    reasons = "".join(f"<li>{escape(reason)}</li>" for reason in result.reasons)
-    warnings = "".join(f"<li>{escape(w.message)}</li>" for w in result.warnings)
-    cautions = "".join(f"<li>{escape(caution)}</li>" for caution in result.cautions)
-    start = escape(_start_words(result.start_up))
-    return (
-        '<div class="oneport-oscillator">'
-        f"<p><strong>{escape(verdict_line(result))}</strong></p>"
-        f"<ul>{reasons}</ul>{table}"
-        f"<p>Start-up: {start}</p>"
-        + (f"<details><summary>Warnings</summary><ul>{warnings}</ul></details>" if warnings else "")
-        + f"<details><summary>Cautions</summary><ul>{cautions}</ul></details></div>"
-    )
 
 
 def _stable(result: OscillatorResult) -> list[OperatingPoint]:
@@ -175,7 +147,7 @@ def _loads(result: OscillatorResult) -> list[str]:
                 format_frequency(point.frequency_hz),
                 format_impedance(point.load_impedance_ohm),
                 format_reflection(point.gamma_load),
-                format_plain(point.pulling.external_q),
+                f"Q = {format_plain(point.pulling.external_q)}",
                 "none (Q not positive)" if lock is None else f"±{format_frequency(lock)}",
             ]
         )

@@ -2,28 +2,43 @@
 
 Rendering only: it lays out what a :class:`~oneport.analysis.result.CheckResult` holds (verdict
 first, inputs, tables, plots, premise, cautions last) and computes nothing. The file needs nothing
-else: the plots are embedded as base64 PNG ``data:`` URIs, the style sheet is inline, there is no
+else: the plots are embedded as base64 SVG ``data:`` URIs (drawn by
+:mod:`oneport.rendering.report_svg`, no matplotlib), the style sheet is inline, there is no
 script, no font and no external address, and a Content-Security-Policy in the page forbids loading
 anything but the embedded images should a browser ever be asked to. Every piece of text is passed
 through :func:`html.escape`, file names and paths from user files included.
+
+Under the title the report says when it was written, by which version, and the command line
+that wrote it (a :class:`RunRecord` the command passes in; the check's result and its JSON stay
+free of them, so two runs on the same files give the same JSON).
 """
 
 from __future__ import annotations
 
 import base64
 import html
-import math
 from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from ..units import format_frequency, to_decibels
-from .check_text import verdict_line
+from ..errors import printable
+from ..units import format_frequency, format_resistance
+from .check_text import (
+    bands_rows,
+    closure_rows,
+    crossings_rows,
+    dc_facts_words,
+    margins_notes,
+    margins_rows,
+    margins_title,
+    mode_notes,
+    mode_rows,
+    sampling_lines,
+    verdict_line,
+)
 
 if TYPE_CHECKING:
-    from matplotlib.figure import Figure
-
-    from ..analysis.nyquist import EdgeClosure
     from ..analysis.result import CheckResult
     from ..reading.records import InputRecord
 
@@ -32,14 +47,6 @@ _VERDICT_WORDS = {
     "stable": "Stable (small-signal): no natural frequency in the right half plane.",
     "unstable": "Unstable: the device will oscillate or latch up into this load.",
     "inconclusive": "Inconclusive: these data cannot decide.",
-}
-_CLOSURE_WORDS = {
-    "dc-sample": "the data include 0 Hz",
-    "loop-gain-below-unity": "|L| < 1 at the edge",
-    "settled": "L has settled, far from +1",
-    "dc-resistances": "from the DC facts",
-    "netlist-limit": "both netlists evaluated beyond every natural frequency",
-    "not-founded": "not founded: |L| not clearly below 1 at the edge (towards DC: still moving)",
 }
 _STYLE = """
 body { font-family: system-ui, sans-serif; color: #1f2a33; background: #fbfbf9;
@@ -64,10 +71,50 @@ figure img { max-width: 100%; border: 1px solid #d5d9dc; background: #ffffff; }
 figcaption { font-size: 0.9rem; color: #4d5962; }
 .cautions li { margin-bottom: 0.35rem; }
 .note { color: #4d5962; font-size: 0.9rem; }
+.run { color: #4d5962; font-size: 0.9rem; margin-top: 0; }
 """
 
 
-def write_report(result: CheckResult, path: str | Path, title: str | None = None) -> Path:
+@dataclass(frozen=True)
+class RunRecord:
+    """What the report says about the run that wrote it: passed in by the command, so the
+    product's result (and its JSON) stays free of dates and command lines.
+
+    Attributes
+    ----------
+    command_line : str
+        The command as typed (quoted for a shell).
+    written_at : str
+        Local date and time with its UTC offset, to the second (ISO 8601).
+    version : str
+        The tool's version.
+    """
+
+    command_line: str
+    written_at: str
+    version: str
+
+
+def run_record(argv: Sequence[str] | None = None) -> RunRecord:
+    """The run record of this process: ``oneport`` and ``argv`` (default ``sys.argv[1:]``),
+    now, and the package's version."""
+    import datetime
+    import shlex
+    import sys
+
+    from .. import __version__
+
+    words = list(sys.argv[1:] if argv is None else argv)
+    moment = datetime.datetime.now().astimezone().replace(microsecond=0)
+    return RunRecord(shlex.join(["oneport", *words]), moment.isoformat(sep=" "), __version__)
+
+
+def write_report(
+    result: CheckResult,
+    path: str | Path,
+    title: str | None = None,
+    run: RunRecord | None = None,
+) -> Path:
     """Write the HTML report of ``result`` to ``path`` (whole or not at all).
 
     Parameters
@@ -76,7 +123,10 @@ def write_report(result: CheckResult, path: str | Path, title: str | None = None
     path : str or Path
         The HTML file to write; its folder must exist.
     title : str, optional
-        The page title; default names the device and the load.
+        The page title; default names the device and the load by their paths.
+    run : RunRecord, optional
+        The command line, date and version to print under the title; default: this process's
+        (:func:`run_record`).
 
     Returns
     -------
@@ -91,24 +141,33 @@ def write_report(result: CheckResult, path: str | Path, title: str | None = None
     from .files import check_target, write_atomically
 
     target = check_target(path, "--report")
-    write_atomically(target, render_report(result, title).encode("utf-8"))
+    write_atomically(target, render_report(result, title, run).encode("utf-8"))
     return target
 
 
-def render_report(result: CheckResult, title: str | None = None) -> str:
+def render_report(
+    result: CheckResult, title: str | None = None, run: RunRecord | None = None
+) -> str:
     """The report as one HTML document (a string), images embedded."""
     heading = title if title is not None else _default_title(result)
+    record = run if run is not None else run_record()
     sections = [
         f"<h1>{_escape(heading)}</h1>",
+        _run_section(record),
         _verdict_section(result),
         _section("Inputs", _inputs_table(result)),
         _section(f"Bands where |L| ≥ 1 ({_ohm(result)})", _bands_table(result)),
         _section(
             f"Crossings of the real axis beyond +1 ({_ohm(result)})", _crossings_table(result)
         ),
-        _section(f"Margins ({_ohm(result)})", _margins_table(result)),
+        _section(margins_title(result), _margins_table(result)),
         _section("Closing the contour outside the sweep", _closure_table(result)),
-        _section("Warnings", _warnings_table(result)),
+        _section("Sampling and measurement", _list(sampling_lines(result))),
+    ]
+    if result.modes is not None or result.verdict == "unstable":
+        sections.append(_section("Modes the count establishes", _modes_table(result)))
+    sections += [
+        _section("Warnings", _warnings_list(result)),
         _section("What to do next", _list(result.next_steps, empty="Nothing further.")),
         _section("Plots", _figures(result)),
         _section("Premise", f"<p>{_escape(result.premise)}</p>"),
@@ -120,11 +179,19 @@ def render_report(result: CheckResult, title: str | None = None) -> str:
         f'<meta http-equiv="Content-Security-Policy" content="{_CONTENT_POLICY}">\n'
         '<meta name="viewport" content="width=device-width, initial-scale=1">\n'
         f"<title>{_escape(heading)}</title>\n<style>{_STYLE}</style>\n</head>\n"
-        f"<body>\n{body}\n{_footer()}\n</body>\n</html>\n"
+        f"<body>\n{body}\n{_footer(record)}\n</body>\n</html>\n"
     )
 
 
 # --- sections ----------------------------------------------------------------------------
+
+
+def _run_section(record: RunRecord) -> str:
+    return (
+        '<p class="run">'
+        f"Written {_escape(record.written_at)} by oneport {_escape(record.version)}<br>"
+        f"<code>{_escape(record.command_line)}</code></p>"
+    )
 
 
 def _verdict_section(result: CheckResult) -> str:
@@ -158,6 +225,9 @@ def _inputs_table(result: CheckResult) -> str:
         f" {result.frequency_hz.size} points, in {_escape(_ohm(result))} (the device's"
         " measurement impedance).</p>"
     )
+    facts = dc_facts_words(result)
+    if facts:
+        analysed += f"<p>{_escape(facts)}.</p>"
     return table + analysed
 
 
@@ -165,59 +235,40 @@ def _input_row(record: InputRecord) -> list[str]:
     low, high = record.frequency_range_hz
     measured = record.file_reference_impedance_ohm
     analysed = record.analysed_reference_impedance_ohm
-    impedance = f"{measured:g} ohm in the file"
+    impedance = f"{format_resistance(measured)} in the file"
     if measured != analysed:
-        impedance += f", renormalised to {analysed:g} ohm"
+        impedance += f", renormalised to {format_resistance(analysed)}"
+    if record.version == "netlist":
+        impedance = f"evaluated in {format_resistance(analysed)}"
     digest = f"<code>{_escape(record.sha256)}</code>" if record.sha256 else "(not from a file)"
+    data = (
+        "netlist"
+        if record.version == "netlist"
+        else f"{record.parameter} {record.number_format}, Touchstone {record.version}"
+    )
     return [
         record.role,
         record.source,
         digest,
-        f"{record.parameter} {record.number_format}, Touchstone {record.version}",
-        str(record.points),
+        data,
+        f"{record.points} points",
         f"{format_frequency(low)} to {format_frequency(high)}",
         impedance,
     ]
 
 
 def _bands_table(result: CheckResult) -> str:
-    if not result.bands:
+    headings, rows = bands_rows(result)
+    if not rows:
         return "<p>None: |L| &lt; 1 across the analysed band.</p>"
-    rows = []
-    for band in result.bands:
-        edges = [
-            word
-            for flag, word in (
-                (band.starts_at_sweep_edge, "starts at the sweep's low edge"),
-                (band.stops_at_sweep_edge, "stops at the sweep's high edge"),
-            )
-            if flag
-        ]
-        rows.append(
-            [
-                format_frequency(band.start_hz),
-                format_frequency(band.stop_hz),
-                _decibels(band.peak_loop_gain),
-                format_frequency(band.peak_frequency_hz),
-                "; ".join(edges),
-            ]
-        )
-    return _table(("from", "to", "peak |L|", "at", "note"), rows, numeric_columns=(2,))
+    return _table(headings, rows, numeric_columns=(2,))
 
 
 def _crossings_table(result: CheckResult) -> str:
-    if not result.crossings:
+    headings, rows = crossings_rows(result)
+    if not rows:
         return "<p>None.</p>"
-    rows = [
-        [
-            format_frequency(crossing.frequency_hz),
-            _decibels(abs(crossing.loop_gain)),
-            crossing.direction,
-            "within the data's scatter" if crossing.within_noise else "",
-        ]
-        for crossing in result.crossings
-    ]
-    table = _table(("at", "|L|", "direction", "note"), rows, numeric_columns=(1,))
+    table = _table(headings, rows, numeric_columns=(1,))
     return table + (
         '<p class="note">The verdict rests on the net count of encirclements, not on any single'
         " crossing; crossing frequencies move with Z0.</p>"
@@ -225,101 +276,70 @@ def _crossings_table(result: CheckResult) -> str:
 
 
 def _margins_table(result: CheckResult) -> str:
-    margins = result.margins
-    rows = [
-        [
-            "closest approach to +1, |1 − L|",
-            f"{margins.modulus_margin:.3g}",
-            format_frequency(margins.modulus_margin_frequency_hz),
-        ]
-    ]
-    if margins.gain_margin_db is not None and margins.gain_margin_frequency_hz is not None:
-        rows.append(
-            [
-                "gain margin",
-                f"{margins.gain_margin_db:.2f} dB",
-                format_frequency(margins.gain_margin_frequency_hz),
-            ]
-        )
-    else:
-        rows.append(["gain margin", "none", "L does not cross (0, 1) on the real axis"])
-    if margins.phase_margin_deg is not None and margins.phase_margin_frequency_hz is not None:
-        rows.append(
-            [
-                "phase margin",
-                f"{margins.phase_margin_deg:.1f} deg",
-                format_frequency(margins.phase_margin_frequency_hz),
-            ]
-        )
-    else:
-        rows.append(["phase margin", "none", "|L| does not pass 1"])
-    return _table(("margin", "value", "at"), rows, numeric_columns=(1,))
+    rows = [[label, value] for label, value in margins_rows(result)]
+    notes = "".join(f'<p class="note">{_escape(note)}</p>' for note in margins_notes(result))
+    return _table(("quantity", "value"), rows) + notes
 
 
 def _closure_table(result: CheckResult) -> str:
-    rows = [_closure_row(closure) for closure in result.closures]
-    table = _table(("towards", "basis", "sign of F there", "extend the sweep to"), rows)
-    step = math.degrees(result.largest_phase_step_rad)
-    sampling = (
-        f"<p>Largest phase step of 1 − L between samples: {step:.1f} deg; estimated scatter"
-        f" of L: {result.noise_estimate:.2g}; device points left out (outside the load's"
-        f" band): {result.points_dropped}.</p>"
-    )
-    return table + sampling
+    rows = [[label, value] for label, value in closure_rows(result)]
+    extend = [
+        [
+            "towards DC" if closure.side == "low" else "towards ∞",
+            f"extend the sweep to about {format_frequency(closure.extend_to_hz)}",
+        ]
+        for closure in result.closures
+        if not closure.founded and closure.extend_to_hz is not None
+    ]
+    return _table(("edge", "basis"), rows + extend)
 
 
-def _closure_row(closure: EdgeClosure) -> list[str]:
-    towards = "DC" if closure.side == "low" else "infinite frequency"
-    sign = {1: "F > 0", -1: "F < 0"}.get(closure.sign_at_limit, "unknown")
-    extend = "" if closure.extend_to_hz is None else format_frequency(closure.extend_to_hz)
-    return [towards, _CLOSURE_WORDS.get(closure.basis, closure.basis), sign, extend]
+def _modes_table(result: CheckResult) -> str:
+    headings, rows = mode_rows(result)
+    notes = "".join(f"<p>{_escape(note)}</p>" for note in mode_notes(result))
+    return (_table(headings, rows, numeric_columns=(1,)) if rows else "") + notes
 
 
-def _warnings_table(result: CheckResult) -> str:
-    if not result.warnings:
-        return "<p>None.</p>"
-    rows = [[f"<code>{_escape(w.code)}</code>", _escape(w.message)] for w in result.warnings]
-    return _table(("code", "message"), rows, raw_columns=(0, 1))
+def _warnings_list(result: CheckResult) -> str:
+    return _list([w.message for w in result.warnings], empty="None.")
 
 
 def _figures(result: CheckResult) -> str:
-    from . import check_plots as plots
+    from . import report_svg
 
     pictures = (
         (
-            plots.plot_nyquist(result, compress_radius=True),
-            "Nyquist plot of L = Γd·ΓL (radius log-compressed: r ↦ log10(1 + r)/log10(2), so"
-            " |L| = 1 and the critical point +1 stay in place). Clockwise encirclements of +1"
-            " count right-half-plane natural frequencies.",
+            report_svg.nyquist_svg(result),
+            "Nyquist plot of L = Γd·ΓL, its radius compressed (r ↦ log10(1 + r)/log10(2)); the"
+            " ticks and dotted rings give the true values, and |L| = 1 and the critical point +1"
+            " stay in place. Clockwise encirclements of +1 count right-half-plane natural"
+            " frequencies.",
         ),
         (
-            plots.plot_loop_gain(result),
+            report_svg.loop_gain_svg(result),
             "Loop gain against frequency; shaded: bands where |L| ≥ 1; dashed: predicted"
             " oscillation frequencies.",
         ),
         (
-            plots.plot_smith(result),
-            "Smith chart of the load ΓL and the device as 1/Γd: the loop closes where they"
-            " meet; the bold circle is |Γ| = 1.",
+            report_svg.smith_svg(result),
+            "Smith chart of the load ΓL and the device as 1/Γd, frequencies marked along both:"
+            " the loop closes where they meet; the bold circle is |Γ| = 1.",
         ),
     )
-    return "\n".join(_figure(figure, caption) for figure, caption in pictures)
+    return "\n".join(_figure(svg, caption) for svg, caption in pictures)
 
 
-def _figure(figure: Figure, caption: str) -> str:
-    from .figures import figure_bytes
-
-    encoded = base64.b64encode(figure_bytes(figure, "png")).decode("ascii")
+def _figure(svg: str, caption: str) -> str:
+    """An SVG picture as an image (a data: address, so it can run nothing and load nothing)."""
+    encoded = base64.b64encode(svg.encode("utf-8")).decode("ascii")
     return (
-        f'<figure><img alt="{_escape(caption)}" src="data:image/png;base64,{encoded}">'
+        f'<figure><img alt="{_escape(caption)}" src="data:image/svg+xml;base64,{encoded}">'
         f"<figcaption>{_escape(caption)}</figcaption></figure>"
     )
 
 
-def _footer() -> str:
-    from .. import __version__
-
-    return f'<p class="note">Written by oneport {_escape(__version__)}.</p>'
+def _footer(record: RunRecord) -> str:
+    return f'<p class="note">Written by oneport {_escape(record.version)}.</p>'
 
 
 # --- small builders ----------------------------------------------------------------------
@@ -360,13 +380,9 @@ def _escape(text: object) -> str:
 
 
 def _default_title(result: CheckResult) -> str:
-    names = {record.role: Path(record.source).name for record in result.inputs}
-    return f"oneport check: {names.get('device', 'device')} into {names.get('load', 'load')}"
+    paths = {record.role: printable(record.source) for record in result.inputs}
+    return f"oneport check: {paths.get('device', 'device')} into {paths.get('load', 'load')}"
 
 
 def _ohm(result: CheckResult) -> str:
-    return f"Z0 = {result.reference_impedance_ohm:g} ohm"
-
-
-def _decibels(magnitude: float) -> str:
-    return f"{to_decibels(magnitude):.2f} dB"
+    return f"Z0 = {format_resistance(result.reference_impedance_ohm)}"

@@ -1,21 +1,20 @@
-"""The Smith chart of a termination analysis: which Γ_T make the other port negative.
+"""The Smith chart of a termination analysis: which ΓT make the other port negative.
 
 Rendering only: it draws what a :class:`~oneport.analysis.terminations.TerminationsResult`
 holds (the stability circle, its negative side, the best termination) and computes no
 analysis. matplotlib is imported inside the functions; files are written through
 :func:`oneport.rendering.figures.save_figure` (``.png`` or ``.svg``, whole or not at all).
 
-Artists carry a ``gid`` for tests and callers: ``"passive-boundary"`` (|Γ_T| = 1),
+Artists carry a ``gid`` for tests and callers: ``"passive-boundary"`` (|ΓT| = 1),
 ``"stability-circle"``, ``"negative-region"`` and ``"best-termination"``.
 """
 
 from __future__ import annotations
 
-import sys
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from ..units import format_frequency
+from ..units import format_frequency, format_resistance
 
 if TYPE_CHECKING:
     from matplotlib.axes import Axes
@@ -31,16 +30,18 @@ _MUTED = "#8b949a"
 _VALUES = (0.2, 0.5, 1.0, 2.0, 5.0)
 
 
-def termination_figure(result: TerminationsResult) -> Figure:
-    """A Smith chart of the Γ_T plane with the negative-resistance terminations shaded."""
-    import matplotlib
+def termination_figure(result: TerminationsResult, ax: Axes | None = None) -> Figure:
+    """A Smith chart of the ΓT plane with the negative-resistance terminations shaded.
 
-    if "matplotlib.pyplot" not in sys.modules:
-        matplotlib.use("Agg")
-    from matplotlib.figure import Figure
+    Drawn into ``ax`` when given, else on a new headless figure; returns the figure.
+    """
+    if ax is None:
+        from .figures import new_figure
 
-    figure = Figure(figsize=(6.4, 6.8), layout="constrained")
-    ax = figure.add_subplot()
+        figure = new_figure((6.4, 6.8))
+        ax = figure.add_subplot()
+    else:
+        figure = ax.figure  # type: ignore[assignment]
     clip = _circle(1.0, fill=False, linewidth=0.0)
     ax.add_patch(clip)
     _shade_negative(ax, result, clip)
@@ -54,9 +55,9 @@ def termination_figure(result: TerminationsResult) -> Figure:
     ax.set_title(
         f"{Path(result.source).name}: port {result.terminated_port} terminations that make"
         f" port {result.observed_port}'s resistance negative\n"
-        f"at {format_frequency(result.frequency_hz)}, Γ_T referred to"
-        f" {result.reference_impedance_ohm:g} ohm (shaded: {result.negative_fraction:.0%} of"
-        " passive terminations)",
+        f"at {format_frequency(result.frequency_hz)}, ΓT in Z0 ="
+        f" {format_resistance(result.reference_impedance_ohm)} (shaded:"
+        f" {result.negative_fraction:.0%} of the passive terminations)",
         fontsize="small",
     )
     return figure
@@ -129,7 +130,10 @@ def _best_marker(ax: Axes, result: TerminationsResult) -> None:
     if best.unbounded:
         text = "Z at the other port is infinite here:\nthe negative resistance is unbounded"
     else:
-        text = f"most negative: R = {best.observed_resistance_ohm:.4g} ohm"
+        text = (
+            f"most negative: R = {format_resistance(best.observed_resistance_ohm or 0.0)}"
+            f" at port {result.observed_port}"
+        )
     (marker,) = ax.plot(
         [best.gamma.real], [best.gamma.imag], marker="x", color=_INK, markersize=9, zorder=4
     )

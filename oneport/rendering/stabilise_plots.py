@@ -16,8 +16,9 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from ..errors import InputError
-from ..products.stabilise.wording import format_element
-from .check_plots import radius_compressed
+from ..products.stabilise.wording import format_element, topology_words
+from ..units import format_resistance
+from .check_plots import _compressed_scale, radius_compressed
 from .figures import figure_bytes, image_target, new_figure
 from .files import write_atomically
 
@@ -87,9 +88,11 @@ def plot_stabilise(
         nyquist_ax.plot(points.real, -points.imag, color=colour, linewidth=0.6, linestyle="--")
     gain_ax.axhline(0.0, color=_CRITICAL, linewidth=0.8, linestyle="--", label="|L| = 1")
     gain_ax.set_xlabel("frequency (GHz)")
-    gain_ax.set_ylabel(f"|L| (dB), Z0 = {z0:g} ohm")
+    gain_ax.set_ylabel(f"|L| (dB), Z0 = {format_resistance(z0)}")
     gain_ax.grid(True, color=_GRID, linewidth=0.6)
-    gain_ax.legend(loc="best", fontsize="small")
+    gain_ax.legend(
+        loc="upper center", bbox_to_anchor=(0.5, -0.12), ncols=2, fontsize="small", frameon=False
+    ).set_gid("legend")
     gain_ax.set_title("Loop gain |L| = |Γd·ΓL| before and after", fontsize="medium")
     angle = np.linspace(0.0, 2.0 * np.pi, 361)
     nyquist_ax.plot(np.cos(angle), np.sin(angle), color=_GRID, linewidth=0.8, linestyle="--")
@@ -108,10 +111,13 @@ def plot_stabilise(
     nyquist_ax.axhline(0.0, color=_GRID, linewidth=0.8, zorder=0)
     nyquist_ax.axvline(0.0, color=_GRID, linewidth=0.8, zorder=0)
     nyquist_ax.set_aspect("equal", adjustable="datalim")
-    nyquist_ax.set_xlabel("Re L (log-compressed radius)")
-    nyquist_ax.set_ylabel("Im L (log-compressed radius)")
-    nyquist_ax.legend(loc="best", fontsize="small", framealpha=0.85)
-    nyquist_ax.set_title(f"Nyquist plot of L, Z0 = {z0:g} ohm", fontsize="medium")
+    _compressed_scale(nyquist_ax, np.concatenate([check.loop_gain for _, check, _, _ in traces]))
+    nyquist_ax.set_xlabel("Re L (radius compressed; ticks and dotted rings at true values)")
+    nyquist_ax.set_ylabel("Im L (radius compressed)")
+    nyquist_ax.legend(
+        loc="upper center", bbox_to_anchor=(0.5, -0.12), ncols=2, fontsize="small", frameon=False
+    ).set_gid("legend")
+    nyquist_ax.set_title(f"Nyquist plot of L, Z0 = {format_resistance(z0)}", fontsize="medium")
     figure: Figure = gain_ax.figure
     return figure
 
@@ -136,4 +142,4 @@ def _axes(ax: Axes | Sequence[Axes] | None) -> tuple[Any, Any]:
 
 def _label(suggestion: Any) -> str:
     values = " + ".join(format_element(k, v) for k, v in suggestion.elements.items())
-    return f"with {suggestion.topology} {values}"
+    return f"with {topology_words(suggestion.topology)} {values}"

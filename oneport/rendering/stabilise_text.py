@@ -17,8 +17,8 @@ from ..products.stabilise.result import (
     WantedMode,
 )
 from ..products.stabilise.scan import Range
-from ..products.stabilise.wording import LETTERS, format_element, format_value
-from ..units import format_frequency
+from ..products.stabilise.wording import LETTERS, format_element, format_value, topology_words
+from ..units import format_frequency, format_plain, format_rate, format_resistance, to_decibels
 from .check_text import closing_sections, wrap
 
 _HEADLINE = {
@@ -65,7 +65,8 @@ def render(result: StabiliseResult) -> str:
     if result.unsolved:
         parts += ["", "Networks with no value that reaches the goal"]
         for unsolved in result.unsolved:
-            parts.append(wrap(f"{unsolved.topology} {unsolved.position.describe()}:", "  "))
+            where = unsolved.position.describe()
+            parts.append(wrap(f"{topology_words(unsolved.topology)} {where}:", "  "))
             parts.append(wrap(unsolved.reason, "      "))
     parts += ["", *_before(result)]
     parts += closing_sections(result.warnings, result.next_steps, result.premise, result.cautions)
@@ -107,7 +108,7 @@ def _suggestion(rank: int, suggestion: Suggestion) -> list[str]:
         listed = ", ".join(format_frequency(f) for f in check.oscillation_frequencies_hz)
         after += f", oscillation near {listed}"
     rows.append(f"       after     {after}")
-    rows.append(f"       margins   {_margins(suggestion.margins_after)}")
+    rows.append(wrap(_margins(suggestion.margins_after, check.verdict), "       margins   ", 17))
     cost = suggestion.cost
     if isinstance(cost, GainCost):
         rows.append(wrap(_gain_cost(cost), "       cost      "))
@@ -129,7 +130,7 @@ def _suggestion(rank: int, suggestion: Suggestion) -> list[str]:
     for note in suggestion.notes:
         rows.append(wrap(note, "       note      "))
     if check.verdict != "stable" and check.reasons and not suggestion.goal_met_after:
-        rows.append(wrap(check.reasons[0], "       why       "))
+        rows.append(wrap(" ".join(check.reasons), "       why       ", 17))
     return rows
 
 
@@ -140,46 +141,84 @@ def _short(suggestion: Suggestion) -> str:
         if suggestion.corner_frequency_hz is not None
         else ""
     )
-    return f"{suggestion.topology} {values} {suggestion.position.describe()}{corner}"
+    where = suggestion.position.describe()
+    return f"{topology_words(suggestion.topology)} {values} {where}{corner}"
 
 
 def _range(key: str, found: Range) -> str:
-    low = "0 (open end)" if found.low is None else format_element(key, found.low)
-    high = "infinity (open end)" if found.high is None else format_element(key, found.high)
+    """The stable range in words: where the scan's own end holds, the range runs on to 0 or
+    without limit; beyond each stated end, what the values there give."""
+    if found.low is None and found.high is None:
+        text = "any value (the goal holds at both ends of the scan)"
+    elif found.low is None:
+        assert found.high is not None
+        text = (
+            f"any value up to {format_element(key, found.high)} (the goal holds down to the"
+            f" scan's lowest value, standing in for {format_element(key, 0.0)})"
+        )
+    elif found.high is None:
+        text = (
+            f"any value from {format_element(key, found.low)} up (the goal holds at the scan's"
+            " highest value, standing in for no limit)"
+        )
+    else:
+        text = f"{format_element(key, found.low)} to {format_element(key, found.high)}"
     beyond = [
-        f"{side} {_BEYOND[word]}"
-        for word, side in ((found.beyond_low, "below:"), (found.beyond_high, "above:"))
-        if word is not None
+        f"{side} {format_element(key, value)}: {_BEYOND[word]}"
+        for word, side, value in (
+            (found.beyond_low, "below", found.low),
+            (found.beyond_high, "above", found.high),
+        )
+        if word is not None and value is not None
     ]
-    return f"{low} to {high}" + (f" ({'; '.join(beyond)})" if beyond else "")
+    return text + (f"; {'; '.join(beyond)}" if beyond else "")
 
 
-def _margins(margins: MarginsAfter) -> str:
+def _margins(margins: MarginsAfter, verdict: str) -> str:
+    """The distance from +1 always; gain and phase margins only for a stable pair."""
     where = " away from the wanted mode" if margins.outside_wanted_mode else ""
-    text = f"|1 - L| = {margins.min_distance:.3g}"
+    text = f"|1 - L| = {format_plain(margins.min_distance)}"
     if margins.min_distance_frequency_hz is not None:
         text += f" at {format_frequency(margins.min_distance_frequency_hz)}"
-    gain = margins.gain_margin_db
+    if verdict != "stable":
+        return text + where + " (no gain or phase margin: the changed pair is not stable)"
+    gain = margins.gain_margin
     text += (
-        "; gain margin none (L does not cross (0, 1))"
+        "; gain margin none: L does not cross the real axis between 0 and +1"
         if gain is None or not math.isfinite(gain)
-        else f"; gain margin {gain:.1f} dB"
+        else f"; gain margin {to_decibels(gain):.1f} dB"
     )
-    if margins.phase_margin_deg is not None:
-        text += f"; phase margin {margins.phase_margin_deg:.0f} deg"
+    if margins.phase_margin_rad is not None:
+        text += f"; phase margin {math.degrees(margins.phase_margin_rad):.0f}°"
     return text + where
 
 
 def _gain_cost(cost: GainCost) -> str:
-    what = "reflection gain |gamma|^2" if cost.kind == "reflection-gain" else "loop gain |L|"
+    """Before and after with as many decimals as it takes for a loss to show in them."""
+    what = "reflection gain |Γ|²" if cost.kind == "reflection-gain" else "loop gain |L|"
     low, high = cost.band_hz
+    before = (to_decibels(cost.before[0]), to_decibels(cost.before[1]))
+    after = (to_decibels(cost.after[0]), to_decibels(cost.after[1]))
+    largest_loss_db = to_decibels(cost.largest_loss)
+    decimals = 1
+    while decimals < 3 and _span(before, decimals) == _span(after, decimals):
+        decimals += 1
+    band = f"{what} in {format_frequency(low)}-{format_frequency(high)}"
+    if round(largest_loss_db, decimals) <= 0:
+        return (
+            f"{band}: {_span(before, decimals)} dB before and after; no loss larger"
+            f" than {0.5 * 10.0**-decimals:g} dB"
+        )
     return (
-        f"{what} in {format_frequency(low)}-{format_frequency(high)}:"
-        f" {cost.before_db[0]:.1f} to {cost.before_db[1]:.1f} dB before,"
-        f" {cost.after_db[0]:.1f} to {cost.after_db[1]:.1f} dB after; at most"
-        f" {cost.largest_loss_db:.2f} dB lost"
+        f"{band}: {_span(before, decimals)} dB before,"
+        f" {_span(after, decimals)} dB after; at most"
+        f" {largest_loss_db:.{max(decimals, 2)}f} dB lost"
         f" (at {format_frequency(cost.largest_loss_frequency_hz)})"
     )
+
+
+def _span(values: tuple[float, float], decimals: int) -> str:
+    return f"{values[0]:.{decimals}f} to {values[1]:.{decimals}f}"
 
 
 def _wanted(mode: WantedMode) -> str:
@@ -188,12 +227,12 @@ def _wanted(mode: WantedMode) -> str:
     crossing = mode.crossing_frequency_hz or 0.0
     shift = (crossing - mode.keep_hz) / mode.keep_hz
     parts = [f"starts: crossing at {format_frequency(crossing)} ({shift:+.1%} from the wanted)"]
-    if mode.loop_gain_at_crossing_db is not None:
-        parts[0] += f" with |L| = {mode.loop_gain_at_crossing_db:.2f} dB"
-    if mode.growth_rate_per_s is not None and mode.natural_frequency_hz is not None:
+    if mode.loop_gain_at_crossing is not None:
+        parts[0] += f" with |L| = {to_decibels(mode.loop_gain_at_crossing):.2f} dB"
+    if mode.sigma_per_s is not None and mode.natural_frequency_hz is not None:
         parts.append(
             f"natural frequency {format_frequency(mode.natural_frequency_hz)}, growth rate"
-            f" {mode.growth_rate_per_s:.3g} 1/s (pole-zero fit)"
+            f" {format_rate(mode.sigma_per_s)} (pole-zero fit)"
         )
     else:
         parts.append("the pole-zero fit does not confirm its growth rate")
@@ -229,7 +268,7 @@ def _before(result: StabiliseResult) -> list[str]:
         listed = ", ".join(format_frequency(f) for f in original.oscillation_frequencies_hz)
         text += f", oscillation near {listed}"
     margins = original.margins
-    text += f"; |1 - L| = {margins.modulus_margin:.3g}"
+    text += f"; |1 - L| = {format_plain(margins.modulus_margin)}"
     return [f"Before (the pair as given, Z0 = {_z0(result)})", f"  {text}"]
 
 
@@ -244,9 +283,9 @@ def _margin(result: StabiliseResult) -> str:
     requirement = result.requirement
     parts = []
     if requirement.min_distance is not None:
-        parts.append(f"|1 - L| >= {requirement.min_distance:g}")
-    if requirement.gain_margin_db is not None:
-        parts.append(f"gain margin >= {requirement.gain_margin_db:g} dB")
+        parts.append(f"|1 - L| ≥ {requirement.min_distance:g}")
+    if requirement.gain_margin is not None:
+        parts.append(f"gain margin ≥ {to_decibels(requirement.gain_margin):g} dB")
     where = " away from the wanted mode" if requirement.keep_hz is not None else ""
     return " and ".join(parts) + where
 
@@ -256,7 +295,7 @@ def _tolerance_name(key: str) -> str:
 
 
 def _z0(result: StabiliseResult) -> str:
-    return f"{result.reference_impedance_ohm:g} ohm"
+    return format_resistance(result.reference_impedance_ohm)
 
 
 def quiet(result: StabiliseResult) -> str:

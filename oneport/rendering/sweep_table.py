@@ -14,11 +14,37 @@ from pathlib import Path
 import numpy as np
 
 from ..analysis.variants import VERDICT_CODES
-from ..errors import InputError
+from ..errors import InputError, printable
 from .files import write_through
 
 #: Rows above which CSV is refused (Parquet holds them in a fraction of the space).
 CSV_ROW_LIMIT = 200_000
+#: The table formats, by suffix.
+TABLE_SUFFIXES = (".parquet", ".csv")
+
+
+def check_table(path: str | Path, variants: int, option: str = "--output") -> None:
+    """A table target's format, before the run: ``.parquet``, or ``.csv`` for at most
+    :data:`CSV_ROW_LIMIT` planned variants (a longer CSV is refused now, not after the run).
+
+    Raises
+    ------
+    InputError
+        One line naming the option, the path and what is accepted.
+    """
+    target = Path(path)
+    suffix = target.suffix.lower()
+    if suffix not in TABLE_SUFFIXES:
+        raise InputError(
+            f"{option} {printable(str(target))}: cannot write the table as"
+            f" {printable(suffix) or 'a file without suffix'!r}; give a file name ending in"
+            " .parquet or .csv"
+        )
+    if suffix == ".csv" and variants > CSV_ROW_LIMIT:
+        raise InputError(
+            f"{option} {printable(str(target))}: {variants:,} variants is too many rows for CSV"
+            f" (limit {CSV_ROW_LIMIT:,}); write a .parquet table"
+        )
 
 
 def table_columns(

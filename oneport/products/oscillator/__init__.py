@@ -2,7 +2,7 @@
 
 From a device measured at several drive levels (Touchstone one-ports listed in a TOML
 manifest) or a quasi-static I–V description with lumped parasitics, and a load one-port,
-:func:`analyse_oscillator` finds every operating point Γd(A, f)·ΓL(f) = 1 inside the data, its
+:func:`oscillator` finds every operating point Γd(A, f)·ΓL(f) = 1 inside the data, its
 frequency, amplitude and power, Kurokawa's stability and decay rate, whether the circuit
 starts from noise (the small-signal Nyquist count, by the check's own judgement), and a verdict
 word (docs/oscillator.md).
@@ -14,7 +14,7 @@ and units, shared with the renderers). It may not print, plot or exit: the text 
 in :mod:`oneport.rendering`.
 """
 
-from .analysis import analyse_oscillator, choose_form
+from .analysis import choose_form, oscillator
 from .describing import (
     TunnelDiodeModel,
     describing_conductance,
@@ -45,9 +45,9 @@ __all__ = [
     "OscillatorResult",
     "Parasitics",
     "TunnelDiodeModel",
-    "analyse_oscillator",
     "choose_form",
     "describing_conductance",
+    "oscillator",
     "polynomial_current",
     "read_device_description",
     "table_current",

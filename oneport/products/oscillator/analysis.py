@@ -59,12 +59,12 @@ _LEVEL = {
 INJECTION_BELOW_RANGE_DB = (0.0, 100.0)
 
 
-def analyse_oscillator(
+def oscillator(
     device: str | Path | DeviceDescription,
     load: Any,
     *,
     form: str | None = None,
-    injection_below_db: float = 20.0,
+    injection_below_db: float | str = 20.0,
 ) -> OscillatorResult:
     """Where does this device settle into that load, and is the operating point stable?
 
@@ -76,17 +76,24 @@ def analyse_oscillator(
         The load's Touchstone one-port, renormalised to the device's measurement impedance and
         interpolated onto the device's grid; or a netlist (``.cir`` path or
         :class:`oneport.circuit.Circuit`), evaluated there.
-    form : {"admittance", "impedance"}, optional
+    form : {"auto", "admittance", "impedance"}, optional
         Kurokawa's form; default: the manifest's ``form``, else chosen to suit the device.
-    injection_below_db : float
-        How far the injected power lies below the oscillator's, dB (0 to 100), for the stated
-        injection-locking range.
+    injection_below_db : float or str
+        How far the injected power lies below the oscillator's, dB (0 to 100, ``"20dB"``), for
+        the stated injection-locking range.
 
     Returns
     -------
     OscillatorResult
     """
-    injection_ratio = injection_ratio_below(injection_below_db, "injection_below_db")
+    from ..options import injection_below
+
+    below = injection_below(
+        20.0 if injection_below_db is None else injection_below_db, "--injection-below"
+    )
+    injection_ratio = injection_ratio_below(below, "--injection-below")
+    if form not in (None, "auto", "admittance", "impedance"):
+        raise InputError(f"--form {form!r}: accepted: auto, admittance, impedance")
     description = (
         device
         if isinstance(device, DriveLevelDevice | IVDevice)

@@ -407,9 +407,9 @@ class OscillatorResult:
         return f"<OscillatorResult {summary_line(self)}>"
 
     def _repr_html_(self) -> str:
-        from ...rendering.oscillator_text import render_html
+        from ...rendering.notebook import html_summary
 
-        return render_html(self)
+        return html_summary(self)
 
     def _arrays(self) -> dict[str, Any]:
         def pairs(values: np.ndarray) -> list[dict[str, float]]:

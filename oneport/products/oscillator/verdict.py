@@ -285,8 +285,8 @@ def _point_findings(loop: Loop, point: OperatingPoint) -> list[Finding]:
             Finding(
                 "external-q-not-positive",
                 f"At {where} the load's external Q in the {loop.form} form is"
-                f" {format_plain(point.pulling.external_q)} (its reactive slope is flat or of the"
-                " other sign); no locking range is given.",
+                f" Q = {format_plain(point.pulling.external_q)} (its reactive slope is flat or of"
+                " the other sign); no locking range is given.",
                 context,
             )
         )
@@ -310,7 +310,8 @@ def _drive_findings(description: DriveLevelDevice, pair: AlignedPair) -> list[Fi
         result.append(
             Finding(
                 "lowest-level-compressed",
-                f"The device's reflection changes by up to {format_plain(change)} between the two"
+                f"The device's reflection changes by up to |ΔΓ| = {format_plain(change)} between"
+                " the two"
                 " lowest levels: the lowest may not be small-signal, and the start-up count"
                 " rests on it.",
                 {"largest_change": change},

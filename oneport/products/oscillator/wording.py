@@ -10,7 +10,18 @@ from __future__ import annotations
 
 import math
 
-from ...units import format_engineering
+from ...units import format_engineering, format_plain, format_rate
+
+__all__ = [
+    "QUANTITIES",
+    "format_amount",
+    "format_level",
+    "format_plain",
+    "format_rate",
+    "quantity_unit",
+    "quantity_words",
+    "watts_to_dbm",
+]
 
 #: The level and amplitude variables: name -> (what it is; its SI unit; words after a value).
 QUANTITIES = {
@@ -56,41 +67,3 @@ def format_amount(value: float, quantity: str) -> str:
     if quantity == "incident_power":
         return f"{format_plain(watts_to_dbm(value))} dBm"
     return format_engineering(value, quantity_unit(quantity))
-
-
-def format_rate(per_second: float) -> str:
-    """A growth or decay rate in 1/s without a computer's exponent: ``4.82e9 /s``.
-
-    Examples
-    --------
-    >>> format_rate(4.8199e9)
-    '4.82e9 /s'
-    >>> format_rate(-250.0)
-    '-250 /s'
-    """
-    return f"{format_plain(per_second)} /s"
-
-
-def format_plain(value: float, digits: int = 3) -> str:
-    """A number to ``digits`` significant figures, written ``330`` not ``3.3e+02``, and
-    ``4.82e9`` rather than ``4.82e+09`` when it must use an exponent.
-
-    Examples
-    --------
-    >>> format_plain(330.4), format_plain(2.14), format_plain(-1.2e10), format_plain(0.0123)
-    ('330', '2.14', '-1.2e10', '0.0123')
-    """
-    if not math.isfinite(value):
-        return "unbounded" if value > 0 else "-unbounded" if value < 0 else "undefined"
-    if value == 0:
-        return "0"
-    exponent = math.floor(math.log10(abs(value)))
-    if -3 <= exponent < 6:
-        decimals = max(digits - 1 - exponent, 0)
-        text = f"{value:.{decimals}f}"
-        return text.rstrip("0").rstrip(".") if "." in text else text
-    mantissa = value / 10.0**exponent
-    if round(abs(mantissa), digits - 1) >= 10:
-        mantissa, exponent = mantissa / 10, exponent + 1
-    text = f"{mantissa:.{digits - 1}f}".rstrip("0").rstrip(".")
-    return f"{text}e{exponent}"

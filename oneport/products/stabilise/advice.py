@@ -16,12 +16,15 @@ import numpy as np
 
 from ...cautions import CAUTIONS, STABILISER_CAUTIONS
 from ...errors import InputError
-from ...units import format_frequency, parse_quantity
+from ...units import format_frequency, parse_quantity, to_decibels
+from .. import options as read_options
+from ..options import pair_arguments, port_setup
 from . import adapter, goal, placements, search, verify
 from .families import FAMILIES
 from .goal import KEEP_WINDOW, Requirement
 from .result import GainCost, StabiliseResult, Suggestion, Unsolved, WantedMode
 from .scan import Scanner
+from .wording import lower_first, topology_words
 
 
 def stabilise(
@@ -39,13 +42,19 @@ def stabilise(
     distribution: str = "uniform",
     bias_current: Any = None,
     bias_voltage: Any = None,
-    measurement_impedance_ohm: float | None = None,
-    device_dc_resistance_ohm: float | None = None,
-    load_dc_resistance_ohm: float | None = None,
-    gamma_uncertainty: float | tuple[float, float] | None = None,
-    frequency_hz: np.ndarray | None = None,
-    device_setup: Any = None,
-    load_setup: Any = None,
+    measurement_impedance_ohm: float | str | None = None,
+    device_dc_resistance_ohm: float | str | None = None,
+    load_dc_resistance_ohm: float | str | None = None,
+    gamma_uncertainty: float | tuple[float, float] | str | None = None,
+    frequency_hz: Any = None,
+    terminate: Any = None,
+    terminate_impedance_ohm: float | str | None = None,
+    terminated_port: int = 2,
+    differential_ports: Any = None,
+    device_fixture: Any = None,
+    device_delay_s: float | str | None = None,
+    load_fixture: Any = None,
+    load_delay_s: float | str | None = None,
 ) -> StabiliseResult:
     """Which network at the device's port (or in a load netlist) makes the pair stable, and how
     much of it? Small-signal advice, every suggestion verified by the full check.
@@ -75,9 +84,11 @@ def stabilise(
         The Monte Carlo's size, seed and distribution (``uniform`` or ``normal``).
     bias_current, bias_voltage : float or str, optional
         The device's DC bias (A, V; ``"20mA"``) for the resistors' drop and dissipation.
-    measurement_impedance_ohm, device_dc_resistance_ohm, load_dc_resistance_ohm,
-    gamma_uncertainty, frequency_hz, device_setup, load_setup
-        As for :func:`oneport.check`.
+    measurement_impedance_ohm, device_dc_resistance_ohm, load_dc_resistance_ohm : optional
+    gamma_uncertainty, frequency_hz : optional
+    terminate, terminate_impedance_ohm, terminated_port, differential_ports : optional
+    device_fixture, device_delay_s, load_fixture, load_delay_s : optional
+        As for :func:`oneport.check` (numbers in SI units or text with a unit).
 
     Returns
     -------
@@ -105,8 +116,8 @@ def stabilise(
     if keep_hz is not None and band_hz is not None:
         raise InputError("--band and --keep: give one (a band's gain, or a mode to keep)")
     element_tolerance, parameter_tolerances = _tolerances(tolerance)
-    if tolerance is not None and samples < 1:
-        raise InputError(f"--samples {samples}: at least 1 is needed")
+    samples = read_options.samples(samples, "--samples")
+    seed = read_options.seed(seed, "--seed")
     if distribution not in ("uniform", "normal"):
         raise InputError(f"--distribution {distribution!r}: accepted: uniform, normal")
     names = tuple(FAMILIES) if families is None else tuple(families)
@@ -118,22 +129,30 @@ def stabilise(
     current = _quantity(bias_current, "current", "--bias-current")
     voltage = _quantity(bias_voltage, "voltage", "--bias-voltage")
 
-    pair = adapter.prepare_pair(
-        device,
-        load,
+    sides = pair_arguments(
         measurement_impedance_ohm=measurement_impedance_ohm,
         device_dc_resistance_ohm=device_dc_resistance_ohm,
         load_dc_resistance_ohm=load_dc_resistance_ohm,
         gamma_uncertainty=gamma_uncertainty,
         frequency_hz=frequency_hz,
-        device_setup=device_setup,
-        load_setup=load_setup,
+        load_fixture=load_fixture,
+        load_delay_s=load_delay_s,
     )
+    device_setup = port_setup(
+        "device",
+        terminate=terminate,
+        terminate_impedance_ohm=terminate_impedance_ohm,
+        terminated_port=terminated_port,
+        differential_ports=differential_ports,
+        fixture=device_fixture,
+        delay_s=device_delay_s,
+    )
+    pair = adapter.prepare_pair(device, load, device_setup=device_setup, **sides)
     chosen = [
         *placements.port_placements(pair, names),
         *(placements.node_placement(pair, name) for name in at_node),
     ]
-    original = adapter.check_pair(pair, pair.load_source, load_dc_resistance_ohm)
+    original = adapter.check_pair(pair, pair.load_source, sides["load_dc_resistance_ohm"])
     band_stated = band_hz is not None
     if band_hz is None and keep_hz is None:
         band_hz = _gain_band(pair)
@@ -148,7 +167,7 @@ def stabilise(
         met = goal.margin_met(
             requirement,
             np.array([margins.min_distance]),
-            np.array([np.inf if margins.gain_margin_db is None else margins.gain_margin_db]),
+            np.array([np.inf if margins.gain_margin is None else margins.gain_margin]),
         )
         if bool(met[0]):
             return replace(
@@ -160,9 +179,8 @@ def stabilise(
                 ),
             )
 
-    scanner = Scanner(
-        pair, requirement, device_dc_resistance_ohm, load_dc_resistance_ohm, original.latch_up
-    )
+    device_dc, load_dc = sides["device_dc_resistance_ohm"], sides["load_dc_resistance_ohm"]
+    scanner = Scanner(pair, requirement, device_dc, load_dc, original.latch_up)
     options = search.SearchOptions(
         resistance_span_ohm=_resistance_span(pair, 1e3),
         grid_resistance_span_ohm=_resistance_span(pair, 30.0),
@@ -174,8 +192,8 @@ def stabilise(
         distribution=distribution,
         bias_current_a=current,
         bias_voltage_v=voltage,
-        load_dc_resistance_ohm=load_dc_resistance_ohm,
-        device_dc_resistance_ohm=device_dc_resistance_ohm,
+        load_dc_resistance_ohm=load_dc,
+        device_dc_resistance_ohm=device_dc,
         load_parameters=dict(pair.load_circuit.parameters) if pair.load_circuit else {},
     )
     if parameter_tolerances and pair.load_circuit is None:
@@ -346,7 +364,7 @@ def _require_wanted_mode(original: Any, keep_hz: float) -> None:
 def _rank(suggestion: Suggestion) -> tuple[Any, ...]:
     cost = suggestion.cost
     if isinstance(cost, GainCost):
-        value = cost.largest_loss_db
+        value = cost.largest_loss
     elif isinstance(cost, WantedMode):
         crossing = cost.crossing_frequency_hz
         value = abs(crossing - cost.keep_hz) / cost.keep_hz if crossing else np.inf
@@ -362,9 +380,9 @@ def _rank(suggestion: Suggestion) -> tuple[Any, ...]:
 def _margin_words(requirement: Requirement) -> str:
     parts = []
     if requirement.min_distance is not None:
-        parts.append(f"|1 - L| >= {requirement.min_distance:g}")
-    if requirement.gain_margin_db is not None:
-        parts.append(f"gain margin >= {requirement.gain_margin_db:g} dB")
+        parts.append(f"|1 - L| ≥ {requirement.min_distance:g}")
+    if requirement.gain_margin is not None:
+        parts.append(f"gain margin ≥ {to_decibels(requirement.gain_margin):g} dB")
     return " and ".join(parts)
 
 
@@ -386,7 +404,7 @@ def _explain(
     reaching = [s for s in ranked if s.reaches_margin]
     goal_words, margin_words = _goal_words(requirement), _margin_words(requirement)
     first = original.reasons[0]
-    reasons = [f"As given the pair is {original.verdict}: {first[:1].lower()}{first[1:]}"]
+    reasons = [f"As given the pair is {original.verdict}: {lower_first(first)}"]
     next_steps: list[str] = []
     if verdict == "stabilised":
         best = reaching[0]
@@ -397,7 +415,8 @@ def _explain(
             " what they cost."
         )
         next_steps.append(
-            f"Fit the first suggestion ({best.topology}, {best.position.describe()}), then"
+            f"Fit the first suggestion ({topology_words(best.topology)},"
+            f" {best.position.describe()}), then"
             " measure the pair again and check it before raising the bias fully."
         )
         return reasons, next_steps
@@ -410,7 +429,8 @@ def _explain(
         reasons.append(
             f"{len(ranked)} {'network reaches' if len(ranked) == 1 else 'networks reach'} the"
             f" goal ({goal_words}) but {'not' if len(ranked) == 1 else 'none'} with"
-            f" {margin_words}: the best, {closest.topology} {closest.position.describe()},"
+            f" {margin_words}: the best, {topology_words(closest.topology)}"
+            f" {closest.position.describe()},"
             f" reaches |1 - L| = {closest.margins_after.min_distance:.3g}."
         )
     gain = np.abs(pair.gamma_device)

@@ -70,14 +70,14 @@ FAMILIES: dict[str, Family] = {
             "shunt",
             (RESISTANCE, CAPACITANCE),
             "a resistor in series with a capacitor, across the device's port: loss above the"
-            " corner 1/(2 pi R C), none at DC",
+            " corner 1/(2π·R·C), none at DC",
         ),
         Family(
             "series-rl",
             "series",
             (RESISTANCE, INDUCTANCE),
             "a resistor in parallel with an inductor, in series between the device and the"
-            " load: loss above the corner R/(2 pi L), none at DC",
+            " load: loss above the corner R/(2π·L), none at DC",
         ),
     )
 }

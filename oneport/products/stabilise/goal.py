@@ -19,7 +19,8 @@ from typing import Any
 import numpy as np
 
 from ...errors import InputError
-from ...units import parse_decibels, parse_quantity
+from ...units import parse_decibels, to_decibels
+from ..options import frequency, positive_frequency
 from . import adapter
 
 #: A wanted mode is "the same mode" when its crossing lies within this fraction of its
@@ -38,8 +39,9 @@ class Requirement:
     ----------
     min_distance : float or None
         Required minimum |1 − L| (a linear distance from +1).
-    gain_margin_db : float or None
-        Required gain margin, dB.
+    gain_margin : float or None
+        Required gain margin: the factor |L| may still grow by where L crosses (0, 1)
+        (linear; ``"6dB"`` is 2.0).
     keep_hz : float or None
         The wanted mode's frequency, Hz (None: the goal is "stable").
     band_hz : tuple of float or None
@@ -49,7 +51,7 @@ class Requirement:
     """
 
     min_distance: float | None
-    gain_margin_db: float | None
+    gain_margin: float | None
     keep_hz: float | None
     band_hz: tuple[float, float] | None
     band_stated: bool
@@ -66,14 +68,15 @@ class Requirement:
             "keep_frequency_hz": self.keep_hz,
             "keep_window": KEEP_WINDOW if self.keep else None,
             "min_distance_to_critical_point": self.min_distance,
-            "gain_margin_db": self.gain_margin_db,
+            "gain_margin_db": None if self.gain_margin is None else to_decibels(self.gain_margin),
             "band_hz": list(self.band_hz) if self.band_hz is not None else None,
             "band_stated": self.band_stated,
         }
 
 
 def parse_margins(margin: Any) -> tuple[float | None, float | None]:
-    """``0.2`` (minimum |1 − L|), ``"6dB"`` (gain margin), or several: (distance, dB).
+    """``0.2`` (minimum |1 − L|), ``"6dB"`` (gain margin), or several: (distance, gain margin
+    as a linear factor).
 
     Without any, the minimum |1 − L| is :data:`DEFAULT_MIN_DISTANCE`.
     """
@@ -87,7 +90,8 @@ def parse_margins(margin: Any) -> tuple[float | None, float | None]:
                 value = parse_decibels(text, option="--margin")
                 if not value > 0:
                     raise InputError(f"--margin {text!r}: a gain margin above 0 dB is needed")
-                decibels = value if decibels is None else max(decibels, value)
+                factor = 10.0 ** (value / 20.0)
+                decibels = factor if decibels is None else max(decibels, factor)
                 continue
             try:
                 value = float(text)
@@ -110,9 +114,9 @@ def parse_band(band: Any) -> tuple[float, float] | None:
         parts = band.split(":")
         if len(parts) != 2:
             raise InputError(f"--band {band!r}: give LOW:HIGH, e.g. 2GHz:3GHz")
-        low, high = (parse_quantity(p, "frequency", option="--band") for p in parts)
+        low, high = (frequency(p, "--band") for p in parts)
     else:
-        low, high = (float(v) for v in band)
+        low, high = (frequency(v, "--band") for v in band)
     if not (np.isfinite(low) and np.isfinite(high) and 0.0 <= low < high):
         raise InputError(f"--band {band!r}: the low end must lie below the high end, both >= 0 Hz")
     return float(low), float(high)
@@ -122,12 +126,7 @@ def parse_frequency(value: Any, option: str) -> float | None:
     """A frequency given as a number (Hz) or text with a unit (``2.1GHz``)."""
     if value is None:
         return None
-    frequency = (
-        parse_quantity(value, "frequency", option=option) if isinstance(value, str) else value
-    )
-    if not (np.isfinite(frequency) and frequency > 0):
-        raise InputError(f"{option} {value!r}: a frequency above 0 Hz is needed")
-    return float(frequency)
+    return positive_frequency(value, option)
 
 
 def goal_met(requirement: Requirement, variants: adapter.VariantAnalysis) -> np.ndarray:
@@ -175,7 +174,8 @@ def distance_outside(loop_gain: np.ndarray, region: np.ndarray) -> np.ndarray:
 def gain_margin_outside(
     frequency_hz: np.ndarray, loop_gain: np.ndarray, region: np.ndarray | None
 ) -> float:
-    """The check's gain margin (dB) of one loop gain, over the stretches outside ``region``.
+    """The check's gain margin (a linear factor) of one loop gain, over the stretches outside
+    ``region``.
 
     ``inf`` when L does not cross the positive real axis inside (0, 1) there.
     """
@@ -185,19 +185,19 @@ def gain_margin_outside(
     for start, stop in zip(edges[::2], edges[1::2], strict=True):
         if stop - start < 2:
             continue
-        found = adapter.margins(frequency_hz[start:stop], loop_gain[start:stop]).gain_margin_db
+        found = adapter.margins(frequency_hz[start:stop], loop_gain[start:stop]).gain_margin
         if found is not None:
             smallest = min(smallest, found)
     return float(smallest)
 
 
 def margin_met(
-    requirement: Requirement, distance: np.ndarray, gain_margin_db: np.ndarray
+    requirement: Requirement, distance: np.ndarray, gain_margin: np.ndarray
 ) -> np.ndarray:
     """Per variant: both asked-for margins reached."""
     met = np.ones(np.shape(distance), dtype=bool)
     if requirement.min_distance is not None:
         met &= distance >= requirement.min_distance
-    if requirement.gain_margin_db is not None:
-        met &= gain_margin_db >= requirement.gain_margin_db
+    if requirement.gain_margin is not None:
+        met &= gain_margin >= requirement.gain_margin
     return met

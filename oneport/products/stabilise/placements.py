@@ -193,11 +193,11 @@ class Placement:
         return PreparedPort(changed, steps)
 
     def describe(self, values: dict[str, float]) -> str:
-        """``series-resistor 12 ohm``, ``shunt-rc 47 ohm, 100 pF``."""
-        from .wording import format_element
+        """``series R 12 ohm``, ``shunt R-C 47 ohm, 100 pF``."""
+        from .wording import format_element, topology_words
 
         parts = [format_element(key, values[key]) for key in self.elements]
-        return f"{self.topology} {', '.join(parts)}"
+        return f"{topology_words(self.topology)} {', '.join(parts)}"
 
 
 def port_placements(pair: PreparedPair, names: tuple[str, ...]) -> list[Placement]:

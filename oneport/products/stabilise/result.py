@@ -1,4 +1,4 @@
-"""The frozen result of stabilising advice, and its JSON form (``oneport.stabilise/1``).
+"""The frozen result of stabilising advice, and its JSON form (``oneport.stabilise/2``).
 
 Results carry the original check, each suggestion's verifying check and its scan; ``to_dict()``
 gives the JSON object documented in docs/stabilise.md. Nothing here computes or renders text.
@@ -10,12 +10,13 @@ import math
 from dataclasses import dataclass, field
 from typing import Any
 
+from ...display import Displayed
 from ...findings import Finding
 from .goal import Requirement
 from .placements import Position
 from .scan import Line, Range
 
-STABILISE_SCHEMA = "oneport.stabilise/1"
+STABILISE_SCHEMA = "oneport.stabilise/2"
 #: The command's verdict words (mapped to exit codes in ``commands/outcome.py``).
 VERDICTS = ("stabilised", "no-change-needed", "not-stabilised", "inconclusive")
 
@@ -30,8 +31,8 @@ class MarginsAfter:
 
     min_distance: float
     min_distance_frequency_hz: float | None
-    gain_margin_db: float | None
-    phase_margin_deg: float | None
+    gain_margin: float | None
+    phase_margin_rad: float | None
     outside_wanted_mode: bool
     reference_impedance_ohm: float
 
@@ -41,27 +42,29 @@ class MarginsAfter:
             "reference_impedance_ohm": self.reference_impedance_ohm,
             "min_distance_to_critical_point": _finite(self.min_distance),
             "min_distance_frequency_hz": self.min_distance_frequency_hz,
-            "gain_margin_db": _finite(self.gain_margin_db),
-            "phase_margin_deg": self.phase_margin_deg,
+            "gain_margin_db": _finite(_decibels(self.gain_margin)),
+            "phase_margin_deg": _degrees(self.phase_margin_rad),
             "outside_wanted_mode": self.outside_wanted_mode,
         }
 
 
 @dataclass(frozen=True)
 class GainCost:
-    """What the network costs in the band: the largest loss of gain there, dB.
+    """What the network costs in the band: the largest loss of gain there.
 
     ``kind`` ``"reflection-gain"``: |Γ|² of the device with the port network absorbed, as a
     reflection amplifier's circulator sees it; ``"loop-gain"`` (a network inside the load):
-    the loss of |L| = |Γd·ΓL|, i.e. of the load's reflection.
+    the loss of |L| = |Γd·ΓL|, i.e. of the load's reflection. ``before`` and ``after`` are the
+    smallest and largest |Γd| (or |L|) in the band, linear; ``largest_loss`` the largest ratio
+    before/after (≥ 1 is a loss), at ``largest_loss_frequency_hz``.
     """
 
     kind: str
     band_hz: tuple[float, float]
     band_stated: bool
-    before_db: tuple[float, float]
-    after_db: tuple[float, float]
-    largest_loss_db: float
+    before: tuple[float, float]
+    after: tuple[float, float]
+    largest_loss: float
     largest_loss_frequency_hz: float
     reference_impedance_ohm: float
 
@@ -71,9 +74,9 @@ class GainCost:
             "kind": self.kind,
             "band_hz": list(self.band_hz),
             "band_stated": self.band_stated,
-            "before_db": {"min": self.before_db[0], "max": self.before_db[1]},
-            "after_db": {"min": self.after_db[0], "max": self.after_db[1]},
-            "largest_loss_db": self.largest_loss_db,
+            "before_db": {"min": _decibels(self.before[0]), "max": _decibels(self.before[1])},
+            "after_db": {"min": _decibels(self.after[0]), "max": _decibels(self.after[1])},
+            "largest_loss_db": _decibels(self.largest_loss),
             "largest_loss_frequency_hz": self.largest_loss_frequency_hz,
             "reference_impedance_ohm": self.reference_impedance_ohm,
         }
@@ -93,9 +96,9 @@ class WantedMode:
     keep_hz: float
     starts: bool
     crossing_frequency_hz: float | None
-    loop_gain_at_crossing_db: float | None
+    loop_gain_at_crossing: float | None
     natural_frequency_hz: float | None
-    growth_rate_per_s: float | None
+    sigma_per_s: float | None
     resistance_ratio: float | None
     resistance_ratio_form: str | None
     reference_impedance_ohm: float
@@ -107,9 +110,9 @@ class WantedMode:
             "keep_frequency_hz": self.keep_hz,
             "starts": self.starts,
             "crossing_frequency_hz": self.crossing_frequency_hz,
-            "loop_gain_at_crossing_db": self.loop_gain_at_crossing_db,
+            "loop_gain_at_crossing_db": _decibels(self.loop_gain_at_crossing),
             "natural_frequency_hz": self.natural_frequency_hz,
-            "growth_rate_per_s": self.growth_rate_per_s,
+            "growth_rate_per_s": self.sigma_per_s,
             "negative_to_load_resistance_ratio": self.resistance_ratio,
             "resistance_ratio_form": self.resistance_ratio_form,
             "reference_impedance_ohm": self.reference_impedance_ohm,
@@ -218,12 +221,19 @@ class Suggestion:
             "verdict_after": self.verdict_after,
             "encirclements_after": self.encirclements_after,
             "oscillation_frequencies_after_hz": list(self.check_after.oscillation_frequencies_hz),
-            "margins_after": self.margins_after.to_dict(),
+            "margins_after": _margins_for(self.margins_after.to_dict(), self.verdict_after),
             "cost": None if self.cost is None else self.cost.to_dict(),
             "tolerance": None if self.tolerance is None else self.tolerance.to_dict(),
             "bias": None if self.bias is None else self.bias.to_dict(),
             "notes": list(self.notes),
         }
+
+
+def _margins_for(margins: dict[str, Any], verdict: str) -> dict[str, Any]:
+    """Gain and phase margins only for a stable changed pair; the distance always."""
+    if verdict != "stable":
+        margins = {**margins, "gain_margin_db": None, "phase_margin_deg": None}
+    return margins
 
 
 @dataclass(frozen=True)
@@ -243,8 +253,8 @@ class Unsolved:
         }
 
 
-@dataclass(frozen=True)
-class StabiliseResult:
+@dataclass(frozen=True, repr=False)
+class StabiliseResult(Displayed):
     """Stabilising advice for a device and its load, frozen.
 
     Attributes
@@ -274,8 +284,9 @@ class StabiliseResult:
     tolerance_asked: dict[str, float] = field(default_factory=dict)
 
     def to_dict(self) -> dict[str, Any]:
-        """The ``oneport.stabilise/1`` JSON object (plain Python types only)."""
+        """The ``oneport.stabilise/2`` JSON object (plain Python types only)."""
         original = self.original
+        stable = original.verdict == "stable"
         return {
             "schema": STABILISE_SCHEMA,
             "verdict": self.verdict,
@@ -289,11 +300,16 @@ class StabiliseResult:
                 "encirclements": original.encirclements,
                 "latch_up": original.latch_up,
                 "oscillation_frequencies_hz": list(original.oscillation_frequencies_hz),
+                # Gain and phase margins only where the loop is stable (CONVENTIONS).
                 "margins": {
                     "reference_impedance_ohm": original.reference_impedance_ohm,
                     "min_distance_to_critical_point": original.margins.modulus_margin,
-                    "gain_margin_db": original.margins.gain_margin_db,
-                    "phase_margin_deg": original.margins.phase_margin_deg,
+                    "gain_margin_db": (
+                        _finite(_decibels(original.margins.gain_margin)) if stable else None
+                    ),
+                    "phase_margin_deg": (
+                        _degrees(original.margins.phase_margin_rad) if stable else None
+                    ),
                 },
             },
             "suggestions": [s.to_dict() for s in self.suggestions],
@@ -315,13 +331,6 @@ class StabiliseResult:
 
         return plot_stabilise(self, ax=ax, suggestion=suggestion)
 
-    def _repr_html_(self) -> str:
-        from html import escape
-
-        from ...rendering.stabilise_text import render
-
-        return f"<pre>{escape(render(self))}</pre>"
-
 
 def _range(value: Range) -> dict[str, Any]:
     return {
@@ -330,6 +339,18 @@ def _range(value: Range) -> dict[str, Any]:
         "beyond_low": value.beyond_low,
         "beyond_high": value.beyond_high,
     }
+
+
+def _decibels(magnitude: float | None) -> float | None:
+    """A linear magnitude or margin factor in dB, for the ``_db`` keys (None stays None)."""
+    if magnitude is None:
+        return None
+    return 20.0 * math.log10(magnitude) if magnitude > 0 else -math.inf
+
+
+def _degrees(angle_rad: float | None) -> float | None:
+    """An angle in degrees, for the ``_deg`` keys (None stays None)."""
+    return None if angle_rad is None else math.degrees(angle_rad)
 
 
 def _finite(value: float | None) -> float | None:

@@ -40,14 +40,15 @@ class Evaluation:
     ``cost`` is lower for better candidates: the largest reflection-gain (or loop-gain) loss
     in the band, dB; with ``keep``, how far the wanted crossing moved, as a fraction of the
     wanted frequency (the network should not pull the oscillator off its resonator).
-    ``gain_margin_db`` is ``inf`` where L does not cross (0, 1) and NaN where not computed.
+    ``gain_margin`` (a linear factor) is ``inf`` where L does not cross (0, 1) and NaN where
+    not computed.
     """
 
     values: dict[str, np.ndarray]
     verdict_code: np.ndarray
     goal_met: np.ndarray
     distance: np.ndarray
-    gain_margin_db: np.ndarray
+    gain_margin: np.ndarray
     margin_met: np.ndarray
     cost: np.ndarray
     wanted_hz: np.ndarray
@@ -62,7 +63,7 @@ class Evaluation:
                     "verdict_code",
                     "goal_met",
                     "distance",
-                    "gain_margin_db",
+                    "gain_margin",
                     "margin_met",
                     "cost",
                     "wanted_hz",
@@ -167,7 +168,7 @@ class Scanner:
         else:
             distance = np.asarray(judged.min_distance, dtype=float)
         gain_margin = np.full(count, np.nan)
-        if self.requirement.gain_margin_db is not None:
+        if self.requirement.gain_margin is not None:
             for row in np.flatnonzero(met):
                 trace = (pair.gamma_device * loads[row]) if loop_gain is None else loop_gain[row]
                 gain_margin[row] = goal.gain_margin_outside(
@@ -188,7 +189,7 @@ class Scanner:
             verdict_code=codes,
             goal_met=met,
             distance=distance,
-            gain_margin_db=gain_margin,
+            gain_margin=gain_margin,
             margin_met=margin_met,
             cost=cost,
             wanted_hz=wanted,

@@ -70,7 +70,7 @@ def verify(
         goal.margin_met(
             requirement,
             np.array([margins.min_distance]),
-            np.array([np.inf if margins.gain_margin_db is None else margins.gain_margin_db]),
+            np.array([np.inf if margins.gain_margin is None else margins.gain_margin]),
         )[0]
     )
     return Verified(result, met, margins, margin_met)
@@ -99,8 +99,8 @@ def margins_after(result: Any, requirement: Requirement) -> MarginsAfter:
         return MarginsAfter(
             min_distance=checked.modulus_margin,
             min_distance_frequency_hz=checked.modulus_margin_frequency_hz,
-            gain_margin_db=checked.gain_margin_db,
-            phase_margin_deg=checked.phase_margin_deg,
+            gain_margin=checked.gain_margin,
+            phase_margin_rad=checked.phase_margin_rad,
             outside_wanted_mode=False,
             reference_impedance_ohm=z0,
         )
@@ -117,8 +117,8 @@ def margins_after(result: Any, requirement: Requirement) -> MarginsAfter:
         min_distance_frequency_hz=(
             float(result.frequency_hz[closest]) if np.isfinite(masked[closest]) else None
         ),
-        gain_margin_db=None if not np.isfinite(gain_margin) else gain_margin,
-        phase_margin_deg=checked.phase_margin_deg,
+        gain_margin=None if not np.isfinite(gain_margin) else gain_margin,
+        phase_margin_rad=checked.phase_margin_rad,
         outside_wanted_mode=True,
         reference_impedance_ohm=z0,
     )
@@ -142,18 +142,16 @@ def gain_cost(
         kind = "loop-gain"
         before = np.abs(pair.gamma_device[columns] * pair.gamma_load[columns])
         after = np.abs(pair.gamma_device[columns] * placement.changed_loads(arrays)[0][columns])
-    with np.errstate(divide="ignore"):
-        before_db = 20.0 * np.log10(before)
-        after_db = 20.0 * np.log10(after)
-    loss = before_db - after_db
+    with np.errstate(divide="ignore", invalid="ignore"):
+        loss = before / after
     worst = int(np.nanargmax(loss))
     return GainCost(
         kind=kind,
         band_hz=requirement.band_hz,
         band_stated=requirement.band_stated,
-        before_db=(float(np.min(before_db)), float(np.max(before_db))),
-        after_db=(float(np.min(after_db)), float(np.max(after_db))),
-        largest_loss_db=float(loss[worst]),
+        before=(float(np.min(before)), float(np.max(before))),
+        after=(float(np.min(after)), float(np.max(after))),
+        largest_loss=float(loss[worst]),
         largest_loss_frequency_hz=float(pair.frequency_hz[columns][worst]),
         reference_impedance_ohm=pair.reference_impedance_ohm,
     )
@@ -170,8 +168,7 @@ def wanted_mode(result: Any, requirement: Requirement, starts: bool) -> WantedMo
     crossing = float(modes[0]) if starts else None
     at_crossing = None
     if crossing is not None:
-        magnitude = np.interp(crossing, result.frequency_hz, np.abs(result.loop_gain))
-        at_crossing = float(20.0 * np.log10(magnitude))
+        at_crossing = float(np.interp(crossing, result.frequency_hz, np.abs(result.loop_gain)))
     natural = growth = None
     if starts:
         # A local fit (a factor of three either side, at most FIT_POINTS samples) is enough
@@ -191,9 +188,7 @@ def wanted_mode(result: Any, requirement: Requirement, starts: bool) -> WantedMo
             best = min(near, key=lambda m: abs(m.frequency_hz - keep))
             natural, growth = float(best.frequency_hz), float(best.sigma_per_s)
     ratio = form = None
-    estimates = [
-        e for e in result.startup_estimates if e.resistance_ratio is not None and e.growing
-    ]
+    estimates = [e for e in result.startup_estimates if e.resistance_ratio is not None and e.grows]
     if estimates:
         nearest = min(estimates, key=lambda e: abs(e.crossing_frequency_hz - keep))
         if abs(nearest.crossing_frequency_hz - keep) <= 2 * KEEP_WINDOW * keep:
@@ -202,9 +197,9 @@ def wanted_mode(result: Any, requirement: Requirement, starts: bool) -> WantedMo
         keep_hz=keep,
         starts=starts,
         crossing_frequency_hz=crossing,
-        loop_gain_at_crossing_db=at_crossing,
+        loop_gain_at_crossing=at_crossing,
         natural_frequency_hz=natural,
-        growth_rate_per_s=growth,
+        sigma_per_s=growth,
         resistance_ratio=ratio,
         resistance_ratio_form=form,
         reference_impedance_ohm=z0,

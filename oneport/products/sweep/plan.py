@@ -28,13 +28,13 @@ from functools import lru_cache
 import numpy as np
 
 from ...errors import InputError
+from ..options import MAX_VARIANTS
+from ..options import samples as read_samples
+from ..options import seed as read_seed
 
 _VARY = re.compile(r"^\s*([A-Za-z_]\w*)\s*=\s*([^:]+):([^:]+):(\d+)\s*$")
 _TOLERANCE = re.compile(r"^\s*([A-Za-z_]\w*)\s*=\s*([0-9.eE+-]+)\s*%\s*$")
 
-#: Most variants of one plan (grid combinations or Monte Carlo samples). The runner holds the
-#: per-variant table in memory, about 100 bytes a variant: some 10 GB at the limit.
-MAX_VARIANTS = 100_000_000
 #: Variants per block of the Monte Carlo stream (each block has its own seeded generator).
 MONTE_CARLO_BLOCK = 4096
 
@@ -113,6 +113,25 @@ class _Values(Mapping[str, np.ndarray]):
 
 
 @dataclass(frozen=True)
+class ParameterPlan:
+    """How one parameter's values were chosen (SI units), for reports and JSON.
+
+    A grid parameter has ``start``, ``stop``, ``count`` and ``spacing`` (``"linear"`` or
+    ``"logarithmic"``); a Monte Carlo one has ``nominal``, ``tolerance`` (a fraction, 0.05 for
+    ±5 %) and ``distribution``.
+    """
+
+    name: str
+    start: float | None = None
+    stop: float | None = None
+    count: int | None = None
+    spacing: str | None = None
+    nominal: float | None = None
+    tolerance: float | None = None
+    distribution: str | None = None
+
+
+@dataclass(frozen=True)
 class SweepPlan:
     """How the variants' parameter values are made, how many there are, and how chosen."""
 
@@ -120,6 +139,7 @@ class SweepPlan:
     columns: _GridColumns | _DrawnColumns = field(repr=False)
     shape: tuple[int, ...]
     description: Mapping[str, str]
+    parameters: tuple[ParameterPlan, ...] = ()
 
     @property
     def variants(self) -> int:
@@ -185,6 +205,7 @@ def grid_plan(
         )
     axes = []
     description = {}
+    plans = []
     for name, start, stop, count in specifications:
         if name in logarithmic:
             if start <= 0 or stop <= 0:
@@ -199,8 +220,11 @@ def grid_plan(
                 f"--vary {name}: {start:g} to {stop:g} leaves the finite numbers; give values"
                 " within the netlist's bounds (docs/netlist.md)"
             )
+        spacing = "logarithmic" if name in logarithmic else "linear"
+        plans.append(ParameterPlan(name, start=start, stop=stop, count=count, spacing=spacing))
     shape = tuple(axis.size for axis in axes)
-    return SweepPlan("grid", _GridColumns(tuple(names), tuple(axes)), shape, description)
+    columns = _GridColumns(tuple(names), tuple(axes))
+    return SweepPlan("grid", columns, shape, description, tuple(plans))
 
 
 def parse_tolerance(text: str) -> tuple[str, float]:
@@ -230,16 +254,13 @@ def monte_carlo_plan(
     Variant *i* is the same in every run with the same seed, tolerances and distribution,
     whatever ``samples`` (as long as it exceeds *i*) and however the run is cut into chunks.
     """
-    if not 1 <= samples <= MAX_VARIANTS:
-        raise InputError(
-            f"--samples {samples}: give a number of samples from 1 to {MAX_VARIANTS:,}"
-        )
-    if not 0 <= seed < 2**64:
-        raise InputError(f"--seed {seed}: give a whole number from 0 to {2**64 - 1}")
+    samples = read_samples(samples, "--samples")
+    seed = read_seed(seed, "--seed")
     if distribution not in ("uniform", "normal"):
         raise InputError(f"--distribution {distribution!r}: accepted: uniform, normal")
     names, spreads, centres = [], [], []
     description = {}
+    plans = []
     for name, tolerance in tolerances:
         if name not in nominal:
             known = ", ".join(sorted(nominal)) or "none"
@@ -250,8 +271,13 @@ def monte_carlo_plan(
         spreads.append(float(tolerance))
         centres.append(float(nominal[name]))
         description[name] = f"{nominal[name]:g} ±{tolerance:.0%} ({distribution})"
+        plans.append(
+            ParameterPlan(
+                name, nominal=nominal[name], tolerance=tolerance, distribution=distribution
+            )
+        )
     columns = _DrawnColumns(tuple(names), tuple(spreads), tuple(centres), int(seed), distribution)
-    return SweepPlan("monte-carlo", columns, (samples,), description)
+    return SweepPlan("monte-carlo", columns, (samples,), description, tuple(plans))
 
 
 def _draw(

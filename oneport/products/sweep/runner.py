@@ -35,7 +35,7 @@ CHUNK_SAMPLES = 1_000_000
 
 
 @dataclass(frozen=True)
-class SweepResult:
+class SweepRun:
     """The per-variant table (column name → array, one row per variant) and how it ended."""
 
     plan: SweepPlan
@@ -88,10 +88,10 @@ class ChunkBounds(Sequence[tuple[int, int]]):
 
 def chunk_bounds(variants: int, points: int, chunk_size: int | None = None) -> ChunkBounds:
     """(start, stop) of every chunk; ``chunk_size`` must be a positive number of variants."""
-    if chunk_size is not None and chunk_size < 1:
-        from ...errors import InputError
+    if chunk_size is not None:
+        from ..options import chunk_size as read_chunk_size
 
-        raise InputError(f"--chunk-size {chunk_size}: give a whole number of variants, 1 or more")
+        chunk_size = read_chunk_size(chunk_size, "--chunk-size")
     size = chunk_size or max(1, CHUNK_SAMPLES // max(points, 1))
     return ChunkBounds(variants, size)
 
@@ -152,7 +152,7 @@ def run_sweep(
     workers: int | None = None,
     threads: int | None = None,
     progress: Callable[[int], Any] | None = None,
-) -> SweepResult:
+) -> SweepRun:
     """Run every chunk of ``plan``; ``progress(n)`` is called with each finished chunk's size.
 
     ``scheduler`` (``tcp://host:port``) sends chunks to a running Dask cluster; ``workers``
@@ -195,7 +195,7 @@ def run_sweep(
         {name: np.concatenate([part[name] for part in parts]) for name in parts[0]} if parts else {}
     )
     completed = bounds[done - 1][1] if done else 0
-    return SweepResult(
+    return SweepRun(
         plan, frequency_hz, reference_impedance_ohm, table, completed, interrupted, error
     )
 
