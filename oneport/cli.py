@@ -13,6 +13,7 @@ from collections.abc import Sequence
 from types import ModuleType
 from typing import NoReturn, TextIO
 
+from .commands.common import NonFiniteJSONError
 from .commands.outcome import ExitCode
 from .errors import OneportError, printable
 
@@ -22,20 +23,39 @@ class _UsageError(Exception):
 
 
 class _Parser(argparse.ArgumentParser):
-    """argparse that reports usage errors as one line and exit code 2."""
+    """argparse that reports usage errors as one line and exit code 2, and reads a negative
+    quantity after a space as the value of the option before it (``--device-delay -12ps``)."""
+
+    def parse_known_args(  # type: ignore[override]
+        self, args: Sequence[str] | None = None, namespace: argparse.Namespace | None = None
+    ) -> tuple[argparse.Namespace, list[str]]:
+        from .commands.options import join_negative_values
+
+        given = list(sys.argv[1:] if args is None else args)
+        return super().parse_known_args(join_negative_values(given, self._takes_value), namespace)
+
+    def _takes_value(self, token: str) -> bool:
+        """Whether ``token`` is one of this parser's options that takes exactly one value."""
+        actions = self._option_string_actions
+        action = actions.get(token)
+        if action is None and token.startswith("--") and self.allow_abbrev:
+            matches = {a for option, a in actions.items() if option.startswith(token)}
+            action = matches.pop() if len(matches) == 1 else None
+        return action is not None and action.nargs is None
 
     def error(self, message: str) -> NoReturn:
         raise _UsageError(f"{self.prog}: {message}{_hint(message)} (see --help)")
 
 
 def _hint(message: str) -> str:
-    """A hint for the two slips argparse words least helpfully."""
+    """A hint for the slips argparse words least helpfully, naming the option concerned."""
     if message.startswith("unrecognized arguments:"):
         extra = message.split(":", 1)[1].split()
         if extra and extra[0].isalpha() and len(extra[0]) <= 4:
             return f"; write the unit next to the number (15{extra[0]}, not 15 {extra[0]})"
     if message.endswith("expected one argument"):
-        return "; a negative value goes after '=', e.g. --device-delay=-12ps"
+        option = message.removeprefix("argument ").split(":", 1)[0].split("/")[-1]
+        return f"; give its value after it, e.g. {option} VALUE (or {option}=VALUE)"
     return ""
 
 
@@ -107,6 +127,11 @@ def main(
         # Paths inside messages may hold control characters: never let them reach the terminal.
         print(f"oneport: {printable(str(error))}", file=err)
         return ExitCode.BAD_INPUT
+    except NonFiniteJSONError as error:
+        if arguments is not None and getattr(arguments, "traceback", False):
+            raise
+        print(f"oneport: {error}", file=err)
+        return ExitCode.INTERNAL_ERROR
     except KeyboardInterrupt:
         print("oneport: interrupted", file=err)
         return ExitCode.INTERRUPTED

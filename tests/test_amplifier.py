@@ -207,4 +207,4 @@ def test_command(tmp_path):
     assert code == 0 and json.loads(out)["nyquist"]["encirclements"] == 0
     assert run_cli("amplifier", device, "--load", str(resistor), "--quiet")[0] == 3
     code, _, err = run_cli("amplifier", device, "--port-return-loss=-3dB")
-    assert code == 2 and "0 or more" in err
+    assert code == 2 and "from 0 dB to 100 dB" in err

@@ -74,7 +74,7 @@ def test_two_port_export_with_log_spacing_and_json(tmp_path: Path) -> None:
     [
         (["--start", "2GHz", "--stop", "1GHz"], "--stop 1e+09 Hz must be above --start"),
         (["--start", "0", "--stop", "1GHz", "--spacing", "log"], "--spacing log needs --start"),
-        (["--start", "1GHz", "--stop", "2GHz", "--points", "0"], "--points 0"),
+        (["--start", "1GHz", "--stop", "2GHz", "--points", "0"], "--points: 0 is outside"),
         (["--start", "1Gohm", "--stop", "2GHz"], "--start: unknown unit"),
         (["--start", "1GHz", "--stop", "2GHz", "--param", "RX=3"], "unknown parameter 'RX'"),
         (["--start", "1GHz", "--stop", "2GHz", "--param", "RD"], "give NAME=VALUE"),

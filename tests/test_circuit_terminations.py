@@ -142,7 +142,7 @@ def test_command_text_json_and_chart(tmp_path: Path) -> None:
     assert out.rstrip().endswith("do not replace them."), "the cautions last"
     chart = tmp_path / "chart.png"
     code, out, _ = _run(
-        "terminations", str(TRANSISTOR), "--at", "8GHz", "--terminate", "1", "--json",
+        "terminations", str(TRANSISTOR), "--at", "8GHz", "--terminated-port", "1", "--json",
         "--plot", str(chart),
     )  # fmt: skip
     assert code == 0

@@ -400,7 +400,7 @@ def test_an_already_stable_pair_needs_no_change():
         ({"at_node": ["n1"]}, "not a netlist"),
         ({"tolerance": "L=5%"}, "not a netlist"),
         ({"tolerance": "5"}, "PERCENT%"),
-        ({"tolerance": "5%", "samples": 0}, "at least 1"),
+        ({"tolerance": "5%", "samples": 0}, "from 1 to"),
     ],
 )
 def test_bad_input_is_one_clear_error(options, message):

@@ -213,7 +213,10 @@ class AmplifierResult(Displayed):
                 "gain_lower_db": _power_db(at_peak[0]),
                 "gain_upper_db": _finite_or_none(_power_db(at_peak[1])),
             },
-            "worst_ripple_db": _finite_or_none(float(np.max(_power_db_array(upper / lower)))),
+            # Each bound in dB first: a gain that underflows to 0 in both gives 0 dB, not 0/0.
+            "worst_ripple_db": _finite_or_none(
+                float(np.max(_power_db_array(upper) - _power_db_array(lower)))
+            ),
             "small_gain_verdict": None if self.bound is None else self.bound.verdict,
             "at_stake_ranges_hz": (
                 [] if self.bound is None else [list(r) for r in self.bound.at_stake_ranges_hz]
@@ -243,7 +246,10 @@ class AmplifierResult(Displayed):
                 _finite_or_none(v) for v in _power_db_array(self.gain_bounds[1]).tolist()
             ]
         if self.gain_with_load is not None:
-            arrays["gain_with_load_db"] = _power_db_array(self.gain_with_load).tolist()
+            # +inf where the loaded gain has a pole: null in JSON (docs/json-amplifier.md).
+            arrays["gain_with_load_db"] = [
+                _finite_or_none(v) for v in _power_db_array(self.gain_with_load).tolist()
+            ]
         return arrays
 
 
@@ -318,8 +324,11 @@ def analyse_amplifier(
         edges = bound.edges
     with_load = None
     if gamma_port is not None:
-        effective = gamma_device / (1.0 - gamma_device * gamma_port)
-        with_load = np.maximum(np.abs(effective), 1e-300) ** 2
+        # Where Γd·Γport = 1 the loaded gain has a pole: unbounded (+inf; null in JSON).
+        with np.errstate(divide="ignore", invalid="ignore"):
+            effective = np.abs(gamma_device) / np.abs(1.0 - gamma_device * gamma_port)
+        effective = np.where(np.isnan(effective), np.inf, effective)
+        with_load = np.maximum(effective, 1e-300) ** 2
     partial = _Partial(frequency_hz, gain_db, allowed, z0, bound, source, nyquist)
     verdict, basis, reasons, steps = _decide(partial)
     return AmplifierResult(

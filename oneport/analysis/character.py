@@ -18,6 +18,7 @@ the data show at each edge. This room computes; it never reads files, prints or 
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -516,6 +517,14 @@ def _edge_law(
         exponent = 0.0
     else:
         exponent = _edge_exponent(frequency_hz, values, side)
+    if not math.isfinite(exponent):
+        return (
+            None,
+            0.0,
+            f"{where[0].upper() + where[1:]} the data reach zero or infinity (at"
+            f" {format_frequency(frequency_hz[edge])}): the contour cannot be closed; extend"
+            " the sweep.",
+        )
     k = int(np.rint(exponent))
     offset = k * np.pi / 2.0
     limit = offset + np.pi * np.rint((phase[edge] - offset) / np.pi)
@@ -543,8 +552,11 @@ def _edge_exponent(frequency_hz: np.ndarray, values: np.ndarray, side: str) -> f
     else:
         inner = int(np.searchsorted(frequency_hz, frequency_hz[-1] / EDGE_WINDOW_RATIO))
         chosen = slice(max(min(inner, last - 2), 0), last + 1)
+    magnitude = np.abs(values[chosen])
+    if not (np.all(np.isfinite(magnitude)) and np.all(magnitude > 0)):
+        return math.nan  # zero or unbounded at the edge: no power law to read
     x = np.log(frequency_hz[chosen])
-    y = np.log(np.abs(values[chosen]))
+    y = np.log(magnitude)
     return float(np.polyfit(x, y, 1)[0])
 
 

@@ -547,9 +547,16 @@ def find_bands(frequency_hz: np.ndarray, loop_gain: np.ndarray, noise: float = 0
 
 def _unity_crossing(frequency_hz: np.ndarray, magnitude: np.ndarray, index: int) -> float:
     """Frequency where |L| passes 1 between samples ``index`` and ``index + 1`` (dB-linear)."""
-    a, b = np.log10(magnitude[index]), np.log10(magnitude[index + 1])
-    t = a / (a - b) if a != b else 0.5
+    t = _unity_fraction(magnitude, index)
     return float(frequency_hz[index] + t * (frequency_hz[index + 1] - frequency_hz[index]))
+
+
+def _unity_fraction(magnitude: np.ndarray, index: int) -> float:
+    """How far from sample ``index`` towards the next |L| passes 1, linear in dB."""
+    # |L| = 0 at a sample (a perfectly matched side there) is the far end of the dB scale.
+    tiny = np.finfo(float).tiny
+    a, b = np.log10(max(magnitude[index], tiny)), np.log10(max(magnitude[index + 1], tiny))
+    return float(a / (a - b)) if a != b else 0.5
 
 
 def find_margins(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> Margins:
@@ -577,8 +584,7 @@ def find_margins(frequency_hz: np.ndarray, loop_gain: np.ndarray) -> Margins:
     phase_margin = phase_frequency = None
     magnitude = np.abs(loop_gain)
     for index in np.flatnonzero((magnitude[:-1] >= 1.0) != (magnitude[1:] >= 1.0)):
-        a, b = np.log10(magnitude[index]), np.log10(magnitude[index + 1])
-        t = a / (a - b)
+        t = _unity_fraction(magnitude, int(index))
         value = loop_gain[index] + t * (loop_gain[index + 1] - loop_gain[index])
         margin = float(abs(np.angle(value)))
         if phase_margin is None or margin < phase_margin:

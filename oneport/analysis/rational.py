@@ -74,8 +74,11 @@ class RationalModel:
     def derivative(self, s: np.ndarray) -> np.ndarray:
         """df/ds at ``s`` (rad/s), per rad/s."""
         x = np.asarray(s, dtype=complex) / self.angular_scale
-        terms = -self.residues / (x[..., None] - self.poles) ** 2
-        return (self.slope + terms.sum(axis=-1)) / self.angular_scale
+        # At a pole itself (a zero of a degenerate model sitting on one) the slope is infinite.
+        with np.errstate(divide="ignore", invalid="ignore"):
+            terms = -self.residues / (x[..., None] - self.poles) ** 2
+            slope = (self.slope + terms.sum(axis=-1)) / self.angular_scale
+        return np.where(np.isnan(slope), np.inf, slope)
 
     def _pencil_zeros(self) -> np.ndarray:
         """The pencil's eigenvalues by the QZ method (scipy), for the rare case with neither a
@@ -434,6 +437,8 @@ def _relocate(x: np.ndarray, y: np.ndarray, poles: np.ndarray, proper: bool) -> 
     moved = np.linalg.eigvals(state - np.outer(inputs, weights) / offset)
     if not np.all(np.isfinite(moved)) or np.any(moved == 0):
         return None
+    if np.any(np.abs(x[:, None] - moved[None, :]) <= 1e-9 * np.abs(x[:, None])):
+        return None  # a pole on a sample: the basis and the model would be infinite there
     # A real matrix's eigenvalues: exact conjugate pairs, real ones with zero imaginary part.
     return moved[moved.imag >= 0.0]
 

@@ -100,6 +100,7 @@ def allowed_reflection(gamma_device: np.ndarray) -> np.ndarray:
     >>> round(float(rho), 4), round(float(-20 * np.log10(rho)), 2)
     (0.3333, 9.54)
     """
+    # |Γd| = 0 allows any passive load (1), without a division warning.
     return np.minimum(1.0 / np.maximum(np.abs(gamma_device), 1e-300), 1.0)
 
 

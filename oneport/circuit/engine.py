@@ -154,7 +154,9 @@ class _Axis:
     def of(cls, frequency_hz: np.ndarray) -> _Axis:
         row = frequency_hz[None, :]
         omega = 2.0 * math.pi * row
-        with np.errstate(divide="ignore"):
+        # 1/ω of a subnormal frequency overflows to infinity (the reactances of DC); every
+        # evaluation's answer is checked for finite values before it is returned.
+        with np.errstate(divide="ignore", over="ignore"):
             inverse = np.where(omega == 0.0, np.nan, 1.0 / omega)
         return cls(row, 1j * omega, omega, inverse)
 

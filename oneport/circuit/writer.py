@@ -12,7 +12,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import InputError, printable
 
 
 def touchstone_text(
@@ -43,7 +43,8 @@ def touchstone_text(
     ports = s.shape[0]
     if s.shape[:2] != (ports, ports) or ports not in (1, 2) or s.shape[2] != frequency_hz.size:
         raise InputError("Touchstone output: S must have shape (p, p, n) with p = 1 or 2")
-    lines = [f"! {comment}" for comment in comments]
+    # A comment is one line: a file name with a line break or control characters is escaped.
+    lines = [f"! {printable(comment)}" for comment in comments]
     lines.append(f"# Hz S RI R {reference_impedance_ohm:.15g}")
     order = [(0, 0)] if ports == 1 else [(0, 0), (1, 0), (0, 1), (1, 1)]
     for index, frequency in enumerate(frequency_hz):
@@ -62,13 +63,18 @@ def write_touchstone(
     reference_impedance_ohm: float,
     comments: Sequence[str] = (),
 ) -> None:
-    """Write ``s`` (shape (p, p, n)) to ``path``, whose suffix must be ``.s<p>p``."""
+    """Write ``s`` (shape (p, p, n)) to ``path``, whose suffix must be ``.s<p>p``.
+
+    Written whole through a temporary file and a rename, as every file the package writes
+    (:func:`oneport.rendering.files.write_atomically`): a failure leaves an earlier file as it
+    was.
+    """
     ports = s.shape[0]
     wanted = f".s{ports}p"
     if Path(path).suffix.lower() != wanted:
         raise InputError(f"output {path}: a {ports}-port is written as a {wanted} file; name it so")
     text = touchstone_text(frequency_hz, s, reference_impedance_ohm, comments)
-    try:
-        Path(path).write_text(text, encoding="ascii")
-    except OSError as error:
-        raise InputError(f"output {path}: cannot be written ({error.strerror})") from None
+    # The one writer of the package; imported here so that reading circuits never needs it.
+    from ..rendering.files import write_atomically
+
+    write_atomically(Path(path), text.encode("ascii", "replace"))

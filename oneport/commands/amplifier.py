@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 from typing import Any, TextIO
 
+from . import options
 from .common import add_measurement_impedance_option, add_output_options, write_json
 
 NAME = "amplifier"
@@ -22,22 +23,35 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         epilog="example: oneport amplifier diode.s1p --port-return-loss 20dB --gain-threshold"
         " 10dB --plot gain.png",
     )
-    command.add_argument("device", help="the device's Touchstone one-port (.s1p or 2.x .ts)")
+    options.add(
+        command,
+        "device",
+        rule=options.input_path,
+        help="the device's Touchstone one-port (.s1p or 2.x .ts)",
+    )
     port = command.add_mutually_exclusive_group()
-    port.add_argument("--load", help="the circulator port's Touchstone one-port")
-    port.add_argument(
+    options.add(
+        port, "--load", rule=options.input_path, help="the circulator port's Touchstone one-port"
+    )
+    options.add(
+        port,
         "--port-return-loss",
+        rule=options.return_loss,
         metavar="DB",
         help="the port's guaranteed return loss at every frequency (e.g. 20dB)",
     )
-    command.add_argument(
+    options.add(
+        command,
         "--gain-threshold",
+        rule=options.gain,
         metavar="DB",
-        default="10dB",
+        default=10.0,
         help="list the bands where the gain reaches this (default 10dB)",
     )
     add_measurement_impedance_option(command)
-    command.add_argument("--plot", metavar="FILE", help="save a gain plot (.png, .svg, .pdf)")
+    options.add(
+        command, "--plot", rule=options.plot, metavar="FILE", help="save a gain plot (.png or .svg)"
+    )
     add_output_options(command)
     return command
 
@@ -49,6 +63,7 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     from ..rendering.amplifier_text import render, verdict_line
     from .outcome import exit_code
 
+    targets = options.outputs({"--plot": arguments.plot}, [arguments.device, arguments.load])
     result = amplifier(
         arguments.device,
         arguments.load,
@@ -56,8 +71,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         gain_threshold_db=arguments.gain_threshold,
         measurement_impedance_ohm=arguments.measurement_impedance,
     )
-    if arguments.plot:
-        save_amplifier_plot(result, arguments.plot)
+    if "--plot" in targets:
+        save_amplifier_plot(result, targets["--plot"])
     if arguments.json:
         write_json(result.to_dict(include_arrays=arguments.include_arrays), out)
     elif arguments.quiet:

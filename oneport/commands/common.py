@@ -1,9 +1,22 @@
-"""Options and output shared by the subcommands."""
+"""Options and output shared by the subcommands: the output switches and the one JSON writer."""
 
 from __future__ import annotations
 
 import argparse
+import json
+import math
+from collections.abc import Iterator
 from typing import Any, TextIO
+
+from . import options
+
+
+class NonFiniteJSONError(RuntimeError):
+    """A result held NaN or infinity where its JSON needs a number: a bug, never written.
+
+    Strict JSON has no NaN or infinity; every legitimate figure that can be missing is
+    ``null`` with a documented meaning. The CLI prints this as one line with exit code 1.
+    """
 
 
 def add_output_options(
@@ -29,39 +42,43 @@ def add_output_options(
 
 
 def write_json(data: dict[str, Any], out: TextIO) -> None:
-    """One JSON object on ``out``."""
-    import json
+    """One strict JSON object on ``out``, or nothing at all.
 
-    json.dump(data, out, indent=2, allow_nan=False)
-    out.write("\n")
+    Raises
+    ------
+    NonFiniteJSONError
+        When ``data`` holds NaN or infinity (named by its place in the object); nothing is
+        written then.
+    """
+    try:
+        text = json.dumps(data, indent=2, allow_nan=False)
+    except ValueError:
+        where = next(_non_finite(data, "$"), "$")
+        raise NonFiniteJSONError(
+            f"internal error: the JSON would hold a non-finite number at {where}; nothing was"
+            " written (please report this with the command line)"
+        ) from None
+    out.write(text + "\n")
 
 
-def add_grid_options(command: argparse.ArgumentParser, title: str) -> None:
-    """``--start``, ``--stop``, ``--points``, ``--spacing`` for a grid of the user's choosing."""
-    grid = command.add_argument_group(title)
-    grid.add_argument("--start", metavar="FREQUENCY", help="e.g. 1MHz")
-    grid.add_argument("--stop", metavar="FREQUENCY", help="e.g. 6GHz")
-    grid.add_argument("--points", type=int, default=2001, help="default 2001")
-    grid.add_argument("--spacing", choices=("linear", "log"), default="linear")
-
-
-def grid_from_options(arguments: argparse.Namespace, required: bool) -> Any:
-    """The grid the grid options describe, Hz; None when neither end is given and not required."""
-    if arguments.start is None and arguments.stop is None and not required:
-        return None
-    if arguments.start is None or arguments.stop is None:
-        from ..errors import InputError
-
-        raise InputError("give both --start and --stop (e.g. 1MHz and 6GHz)")
-    from ..products.options import frequency_grid
-
-    return frequency_grid(arguments.start, arguments.stop, arguments.points, arguments.spacing)
+def _non_finite(value: Any, where: str) -> Iterator[str]:
+    """Places (``$.bands[0].peak_db``) of NaN or infinity in a JSON-like object."""
+    if isinstance(value, float) and not math.isfinite(value):
+        yield f"{where} ({value})"
+    elif isinstance(value, dict):
+        for key, item in value.items():
+            yield from _non_finite(item, f"{where}.{key}")
+    elif isinstance(value, list | tuple):
+        for index, item in enumerate(value):
+            yield from _non_finite(item, f"{where}[{index}]")
 
 
 def add_measurement_impedance_option(command: argparse.ArgumentParser) -> None:
     """``--measurement-impedance OHMS``: what the device was really measured in."""
-    command.add_argument(
+    options.add(
+        command,
         "--measurement-impedance",
+        rule=options.impedance,
         metavar="OHMS",
         help="impedance the device was measured in, if its file was renormalised afterwards"
         " (e.g. 50ohm); default: the device file's reference",

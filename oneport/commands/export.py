@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 from typing import Any, TextIO
 
+from . import options
 from .common import add_output_options, write_json
 from .outcome import ExitCode
 
@@ -21,31 +22,29 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         epilog="example: oneport export load.cir --start 1MHz --stop 20GHz --points 2001"
         " -o load.s1p --param RL=75",
     )
-    command.add_argument("circuit", help="the netlist (.cir)")
-    command.add_argument("--start", required=True, help="first frequency, e.g. 1MHz")
-    command.add_argument("--stop", required=True, help="last frequency, e.g. 20GHz")
-    command.add_argument(
-        "--points", type=int, default=1001, help="number of frequencies (default 1001)"
+    options.add(command, "circuit", rule=options.input_path, help="the netlist (.cir)")
+    options.add_grid(command, "frequency grid (required)", default_points=1001)
+    options.add(
+        command,
+        "-o",
+        "--output",
+        rule=options.touchstone_output,
+        required=True,
+        help="the Touchstone file to write (.s1p or .s2p)",
     )
-    command.add_argument(
-        "--spacing",
-        choices=("linear", "log"),
-        default="linear",
-        help="linear (default) or log spacing of the frequencies",
-    )
-    command.add_argument(
-        "-o", "--output", required=True, help="the Touchstone file to write (.s1p or .s2p)"
-    )
-    command.add_argument(
+    options.add(
+        command,
         "--param",
-        action="append",
-        default=[],
+        rule=options.parameter,
+        repeat=True,
         metavar="NAME=VALUE",
         help="override a .set parameter (netlist suffixes: 5meg, 2.2p); repeatable",
     )
-    command.add_argument(
+    options.add(
+        command,
         "--reference-impedance",
-        default="50ohm",
+        rule=options.impedance,
+        default=50.0,
         metavar="OHMS",
         help="reference impedance of the written data (default 50ohm)",
     )
@@ -56,13 +55,14 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
     """Write the file; return 0 (bad input raises and becomes exit code 2)."""
     from ..products.export import export
-    from ..products.options import frequency_grid
     from ..rendering.export_text import verdict_line
 
+    targets = options.outputs({"--output": arguments.output}, [arguments.circuit])
+    grid = options.grid(arguments, netlists=True, required=True)
     result = export(
         arguments.circuit,
-        arguments.output,
-        frequency_grid(arguments.start, arguments.stop, arguments.points, arguments.spacing),
+        targets["--output"],
+        grid,
         reference_impedance_ohm=arguments.reference_impedance,
         params=arguments.param,
         spacing=arguments.spacing,

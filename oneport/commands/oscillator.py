@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 from typing import Any, TextIO
 
+from . import options
 from .common import add_output_options, write_json
 
 NAME = "oscillator"
@@ -23,9 +24,18 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         epilog="example: oneport oscillator touchstone_examples/oscillator/drive_levels.toml"
         " --load touchstone_examples/oscillator/load.s1p --plot operating_points.png",
     )
-    command.add_argument("device", help="the device manifest (TOML): drive levels or I-V curve")
-    command.add_argument(
-        "--load", required=True, help="the load: a Touchstone one-port or a netlist (.cir)"
+    options.add(
+        command,
+        "device",
+        rule=options.input_path,
+        help="the device manifest (TOML): drive levels or I-V curve",
+    )
+    options.add(
+        command,
+        "--load",
+        rule=options.input_path,
+        required=True,
+        help="the load: a Touchstone one-port or a netlist (.cir)",
     )
     command.add_argument(
         "--form",
@@ -34,14 +44,18 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         help="Kurokawa's form: admittance (G_T, B_T, port voltage) or impedance (R_T, X_T, port"
         " current); default: the manifest's form, else chosen to suit the device",
     )
-    command.add_argument(
+    options.add(
+        command,
         "--injection-below",
+        rule=options.injection_below,
         metavar="DB",
-        default="20dB",
+        default=20.0,
         help="how far the injected power lies below the oscillator's, 0dB to 100dB, for the"
         " stated injection-locking range (default 20dB)",
     )
-    command.add_argument("--plot", metavar="FILE", help="write the plot (.png or .svg)")
+    options.add(
+        command, "--plot", rule=options.plot, metavar="FILE", help="write the plot (.png or .svg)"
+    )
     add_output_options(command)
     return command
 
@@ -52,22 +66,18 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
     from ..rendering.oscillator_text import render, verdict_line
     from .outcome import exit_code
 
-    target = None
-    if arguments.plot is not None:
-        from ..rendering.figures import image_target
-
-        target, _ = image_target(arguments.plot)  # checked before any work
+    targets = options.outputs({"--plot": arguments.plot}, [arguments.device, arguments.load])
     result = oscillator(
         arguments.device,
         arguments.load,
         form=arguments.form,
         injection_below_db=arguments.injection_below,
     )
-    if target is not None:
+    if "--plot" in targets:
         from ..rendering.figures import save_figure
         from ..rendering.oscillator_plot import plot_oscillator
 
-        save_figure(plot_oscillator(result), target)
+        save_figure(plot_oscillator(result), targets["--plot"])
     if arguments.json:
         write_json(result.to_dict(include_arrays=arguments.include_arrays), out)
     elif arguments.quiet:

@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 from typing import Any, TextIO
 
+from . import options
 from .common import add_measurement_impedance_option, add_output_options, write_json
 from .outcome import exit_code
 
@@ -21,8 +22,19 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         " rate, half plane), each with the trust rules it passed.",
         epilog="example: oneport poles diode.s1p --load bias_tee.s1p --character --json",
     )
-    command.add_argument("device", help="the device's Touchstone one-port (.s1p or 2.x .ts)")
-    command.add_argument("--load", required=True, help="the load's Touchstone one-port")
+    options.add(
+        command,
+        "device",
+        rule=options.input_path,
+        help="the device's Touchstone one-port (.s1p or 2.x .ts)",
+    )
+    options.add(
+        command,
+        "--load",
+        rule=options.input_path,
+        required=True,
+        help="the load's Touchstone one-port",
+    )
     add_measurement_impedance_option(command)
     command.add_argument(
         "--character",
@@ -30,25 +42,17 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         help="add the device's character: stable open-circuited, short-circuited, in Z0, and"
         " the Nyquist count in the reflection, impedance and admittance forms",
     )
-    command.add_argument(
+    options.add(
+        command,
         "--max-order",
-        type=_positive_int,
+        rule=options.model_order,
         default=None,
         metavar="N",
-        help="highest model order (number of poles) tried; default 24",
+        help=f"highest model order (number of poles) tried; default 24, at most"
+        f" {options.MAX_MODEL_ORDER}",
     )
     add_output_options(command)
     return command
-
-
-def _positive_int(text: str) -> int:
-    try:
-        value = int(text)
-    except ValueError:
-        value = 0
-    if value < 1:
-        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of 1 or more")
-    return value
 
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:

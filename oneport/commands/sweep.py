@@ -7,7 +7,8 @@ import argparse
 import sys
 from typing import Any, TextIO
 
-from .common import add_grid_options, add_output_options, grid_from_options, write_json
+from . import options
+from .common import add_output_options, write_json
 
 NAME = "sweep"
 
@@ -29,24 +30,37 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         epilog=_EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
-    command.add_argument("devices", nargs="+", help="device Touchstone file(s) or one .cir netlist")
-    command.add_argument(
-        "--load", required=True, help="the load: a Touchstone file or a .cir netlist"
+    options.add(
+        command,
+        "devices",
+        rule=options.input_path,
+        nargs="+",
+        help="device Touchstone file(s) or one .cir netlist",
     )
-    command.add_argument(
+    options.add(
+        command,
+        "--load",
+        rule=options.input_path,
+        required=True,
+        help="the load: a Touchstone file or a .cir netlist",
+    )
+    options.add(
+        command,
         "--vary",
-        action="append",
-        default=[],
+        rule=options.vary,
+        repeat=True,
         metavar="NAME=START:STOP:COUNT",
-        help="sweep a netlist parameter (repeatable; all combinations are run)",
+        help="sweep a netlist parameter (repeatable; all combinations are run, at most"
+        f" {options.MAX_VARIANTS:,})",
     )
     command.add_argument(
         "--log", action="append", default=[], metavar="NAME", help="sweep NAME geometrically"
     )
-    command.add_argument(
+    options.add(
+        command,
         "--tolerance",
-        action="append",
-        default=[],
+        rule=options.tolerance,
+        repeat=True,
         metavar="NAME=PERCENT%",
         help="Monte Carlo: vary NAME within ±PERCENT of its netlist value (repeatable)",
     )
@@ -56,38 +70,77 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         default="uniform",
         help="uniform within ±tol (default), or normal with sigma = tol/3 truncated at ±tol",
     )
-    command.add_argument(
-        "--samples", type=int, default=1000, help="Monte Carlo variants (default 1000)"
+    options.add(
+        command,
+        "--samples",
+        rule=options.samples,
+        default=1000,
+        metavar="N",
+        help=f"Monte Carlo variants (default 1000, at most {options.MAX_VARIANTS:,})",
     )
-    command.add_argument("--seed", type=int, default=1, help="random seed (default 1): runs repeat")
-    add_grid_options(command, "frequency grid when both sides are netlists")
+    options.add(
+        command,
+        "--seed",
+        rule=options.seed,
+        default=1,
+        metavar="S",
+        help="random seed, 0 or more (default 1): the same seed gives the same variants",
+    )
+    options.add_grid(command, "frequency grid when both sides are netlists")
     facts = command.add_argument_group("DC facts (give both)")
-    facts.add_argument("--device-dc-resistance", metavar="OHMS")
-    facts.add_argument("--load-dc-resistance", metavar="OHMS")
-    command.add_argument(
+    options.add(facts, "--device-dc-resistance", rule=options.dc_resistance, metavar="OHMS")
+    options.add(facts, "--load-dc-resistance", rule=options.dc_resistance, metavar="OHMS")
+    options.add(
+        command,
         "--reference-impedance",
+        rule=options.impedance,
         metavar="OHMS",
         help="the analysis impedance: for a netlist device the Z0 it is analysed in (default"
         " 50ohm), for device files the impedance they were measured in (default: their own)",
     )
     out = command.add_argument_group("output")
-    out.add_argument(
-        "-o", "--output", metavar="FILE", help="the per-variant table (.parquet or .csv)"
+    options.add(
+        out,
+        "-o",
+        "--output",
+        rule=options.table,
+        metavar="FILE",
+        help="the per-variant table (.parquet or .csv)",
     )
-    out.add_argument(
-        "--plot", metavar="FILE", help="stability map or margin histogram (.png, .svg)"
+    options.add(
+        out,
+        "--plot",
+        rule=options.plot,
+        metavar="FILE",
+        help="stability map or margin histogram (.png or .svg)",
     )
     run_group = command.add_argument_group("where it runs")
-    run_group.add_argument(
-        "--scheduler", metavar="tcp://HOST:PORT", help="a running Dask scheduler"
+    options.add(
+        run_group,
+        "--scheduler",
+        rule=options.scheduler,
+        metavar="tcp://HOST:PORT",
+        help="a running Dask scheduler",
     )
-    run_group.add_argument("--workers", type=int, help="start a local Dask cluster with N workers")
-    run_group.add_argument(
-        "--threads", type=int, help="threads in this process (default 1; --workers uses cores)"
+    options.add(
+        run_group,
+        "--workers",
+        rule=options.workers,
+        metavar="N",
+        help=f"start a local Dask cluster with N workers (1 to {options.MAX_PARALLEL})",
     )
-    run_group.add_argument(
+    options.add(
+        run_group,
+        "--threads",
+        rule=options.threads,
+        metavar="N",
+        help=f"threads in this process (default 1, at most {options.MAX_PARALLEL})",
+    )
+    options.add(
+        run_group,
         "--chunk-size",
-        type=int,
+        rule=options.chunk_size,
+        metavar="N",
         help="variants per chunk, 1 or more (default: about 1e6 samples)",
     )
     add_output_options(command, json_help="print the summary as one JSON object", arrays=False)
@@ -95,15 +148,24 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
 
 
 def run(arguments: argparse.Namespace, out: TextIO) -> int:
-    """Plan, run, write the table and print the summary; exit code per the conventions."""
+    """Plan, run, write the table and print the summary; exit code per the conventions.
+
+    Whatever stops the run early, the finished variants are written (marked partial) and
+    summarised before the failure is reported: Ctrl-C exits with 130, a refused input with 2
+    (its one line), a bug with 1.
+    """
+    from ..circuit import is_circuit_path
     from ..products.sweep import sweep
     from ..rendering.sweep_text import render, verdict_line
     from .outcome import exit_code
 
-    if arguments.plot:
-        from ..rendering.figures import image_target
-
-        image_target(arguments.plot)  # checked before any work
+    targets = options.outputs(
+        {"--output": arguments.output, "--plot": arguments.plot},
+        [*arguments.devices, arguments.load],
+    )
+    both_netlists = is_circuit_path(arguments.devices[0]) and is_circuit_path(arguments.load)
+    data = arguments.load if is_circuit_path(arguments.devices[0]) else arguments.devices[0]
+    grid = options.grid(arguments, netlists=both_netlists, required=both_netlists, data=data)
     progress, close = _progress(arguments)
     try:
         result = sweep(
@@ -118,8 +180,8 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
             measurement_impedance_ohm=arguments.reference_impedance,
             device_dc_resistance_ohm=arguments.device_dc_resistance,
             load_dc_resistance_ohm=arguments.load_dc_resistance,
-            frequency_hz=grid_from_options(arguments, required=False),
-            output=arguments.output,
+            frequency_hz=grid,
+            output=targets.get("--output"),
             chunk_size=arguments.chunk_size,
             scheduler=arguments.scheduler,
             workers=arguments.workers,
@@ -128,16 +190,18 @@ def run(arguments: argparse.Namespace, out: TextIO) -> int:
         )
     finally:
         close()
-    if arguments.plot and result.run.completed:
+    if "--plot" in targets and result.run.completed:
         from ..rendering.figures import save_figure
 
-        save_figure(result.plot(), arguments.plot)
+        save_figure(result.plot(), targets["--plot"])
     if arguments.json:
         write_json(result.to_dict(), out)
     elif arguments.quiet:
         print(verdict_line(result), file=out)
     else:
         out.write(render(result))
+    if result.error is not None:
+        raise result.error
     return exit_code(result.verdict, interrupted=result.interrupted)
 
 

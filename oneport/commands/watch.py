@@ -9,6 +9,7 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any, TextIO
 
+from . import options
 from .outcome import ExitCode
 
 NAME = "watch"
@@ -25,19 +26,29 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         " 'waiting' for a file that is not complete yet); stop with Ctrl-C (exit code 130).",
         epilog="example: oneport watch bench/ --load bias_tee.s1p --report-dir reports/",
     )
-    command.add_argument("folder", help="the folder the device files arrive in")
-    command.add_argument(
-        "--load", required=True, help="the load: a Touchstone one-port or a netlist (.cir)"
+    options.add(
+        command, "folder", rule=options.folder, help="the folder the device files arrive in"
     )
-    command.add_argument(
+    options.add(
+        command,
+        "--load",
+        rule=options.input_path,
+        required=True,
+        help="the load: a Touchstone one-port or a netlist (.cir)",
+    )
+    options.add(
+        command,
         "--report-dir",
+        rule=options.folder,
         metavar="DIR",
         help="write an HTML report per file into DIR (made if missing), named <file>.html",
     )
-    command.add_argument(
+    options.add(
+        command,
         "--interval",
+        rule=options.interval,
         metavar="SECONDS",
-        default="1s",
+        default=1.0,
         help="polling interval, 50ms to 1h (default 1s); a file must stay unchanged for two",
     )
     command.add_argument(

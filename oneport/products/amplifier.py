@@ -41,12 +41,10 @@ def amplifier(
     -------
     AmplifierResult
     """
-    from .options import optional_decibels, positive_resistance
+    from .options import gain, optional, positive_resistance, return_loss
 
-    port_return_loss_db = optional_decibels(port_return_loss_db, "--port-return-loss")
-    threshold = optional_decibels(gain_threshold_db, "--gain-threshold")
-    assert threshold is not None
-    gain_threshold_db = threshold
+    port_loss: float | None = optional(return_loss, port_return_loss_db, "--port-return-loss")
+    threshold: float = gain(gain_threshold_db, "--gain-threshold")
     measurement_impedance_ohm = positive_resistance(
         measurement_impedance_ohm, "--measurement-impedance"
     )
@@ -59,8 +57,8 @@ def amplifier(
             port.frequency_hz,
             port.gamma,
             port.reference_impedance_ohm,
-            gain_threshold_db=gain_threshold_db,
-            port_return_loss_db=port_return_loss_db,
+            gain_threshold_db=threshold,
+            port_return_loss_db=port_loss,
             inputs=(prepared.record,),
         )
         return replace(result, warnings=result.warnings + prepared.findings)
@@ -70,7 +68,7 @@ def amplifier(
         pair.frequency_hz,
         pair.gamma_device,
         pair.reference_impedance_ohm,
-        gain_threshold_db=gain_threshold_db,
+        gain_threshold_db=threshold,
         gamma_port=pair.gamma_load,
         nyquist=nyquist,
         inputs=nyquist.inputs,

@@ -166,7 +166,7 @@ def check(
     oneport.errors.InputError: --measurement-impedance: cannot read 'fifty' as a resistance; \
 give a number with an optional SI prefix and unit, e.g. 50ohm
     """
-    from .options import optional_decibels, pair_arguments, positive_resistance, uncertainty
+    from .options import pair_arguments, positive_resistance, return_loss, uncertainty
 
     device_setup = device_port_setup(
         terminate=terminate,
@@ -190,12 +190,11 @@ give a number with an optional SI prefix and unit, e.g. 50ohm
         if any(given.values()):
             listed = ", ".join(name for name, on in given.items() if on)
             raise InputError(f"{listed}: go with --load, not with --load-return-loss")
-        return_loss = optional_decibels(load_return_loss_db, "--load-return-loss")
-        assert return_loss is not None
+        least = return_loss(load_return_loss_db, "--load-return-loss")
         errors = uncertainty(gamma_uncertainty)
         return check_load_class(
             device,
-            return_loss,
+            least,
             measurement_impedance_ohm=positive_resistance(
                 measurement_impedance_ohm, "--measurement-impedance"
             ),

@@ -20,7 +20,7 @@ from ..cautions import CAUTIONS
 from ..circuit.netlist import read_circuit
 from ..circuit.writer import write_touchstone
 from ..display import Displayed
-from ..errors import InputError
+from ..errors import InputError, printable
 from ..reading.files import read_user_bytes
 from .options import frequency_grid
 from .parameters import parameter_units
@@ -143,15 +143,20 @@ def export(
     -------
     ExportResult
     """
-    from .options import given_grid, parameters, positive_resistance
+    from .options import given_grid, output_targets, parameters, positive_resistance
 
+    # The target is checked before any work: a writable place, never the netlist or a file
+    # its blocks name, never a special file or a system folder.
+    target = output_targets({"--output": output}, [netlist]).get("--output")
+    if target is None:
+        raise InputError("export: give the output file (.s1p or .s2p)")
     grid = given_grid(frequency_hz)
     if grid is None:
         raise InputError("export: give the grid, frequency_hz (see oneport.frequency_grid)")
     reference = positive_resistance(reference_impedance_ohm, "--reference-impedance")
     return export_circuit(
         netlist,
-        output,
+        target,
         grid,
         reference_impedance_ohm=50.0 if reference is None else reference,
         params=parameters(params),
@@ -205,12 +210,27 @@ def export_circuit(
         digest = hashlib.sha256(read_user_bytes(circuit_path, "a netlist")).hexdigest()
     else:
         raise InputError(f"export: {circuit_path!r} is no netlist; give a .cir path or a Circuit")
+    ports = len(circuit.ports)
+    wanted = f".s{ports}p"
+    if Path(output_path).suffix.lower() != wanted:
+        # Refused before the evaluation: the port count is known once the netlist is read.
+        raise InputError(
+            f"output {printable(str(output_path))}: a {ports}-port is written as a {wanted}"
+            " file; name it so"
+        )
     overrides = dict(params or {})
     s = circuit.s_parameters(frequency_hz, reference_impedance_ohm, **overrides)
+    bad = ~np.isfinite(s).all(axis=(0, 1))
+    if bad.any():
+        raise InputError(
+            f"{printable(str(name))}: its S-parameters are not finite at"
+            f" {float(frequency_hz[np.argmax(bad)]):g} Hz, so nothing was written; keep the"
+            " grid and the values within the netlist's bounds (docs/netlist.md)"
+        )
     used = dict(circuit.parameters)
     lowered = {key.lower(): key for key in used}
-    for name, value in overrides.items():
-        used[lowered[name.lower()]] = float(value)
+    for key, value in overrides.items():
+        used[lowered[key.lower()]] = float(value)
     comments = [
         f"S-parameters computed by oneport export from {name}",
         "parameters: " + (", ".join(f"{k}={v:.12g}" for k, v in used.items()) or "none"),

@@ -140,11 +140,11 @@ def prepare_pair(
         The grid when both sides are netlists; default: chosen by :func:`netlist_grid`.
     """
     device_errors, load_errors = _uncertainties(gamma_uncertainty)
-    if measurement_impedance_ohm is not None and not measurement_impedance_ohm > 0:
-        raise InputError(
-            f"measurement impedance {measurement_impedance_ohm!r} ohm: a positive number of ohms"
-            " is needed"
-        )
+    from .options import positive_resistance
+
+    measurement_impedance_ohm = positive_resistance(
+        measurement_impedance_ohm, "--measurement-impedance"
+    )
     device_circuit, load_circuit = as_circuit(device), as_circuit(load)
     for circuit, setup, role in (
         (device_circuit, device_setup, "device"),
@@ -370,14 +370,17 @@ class NetlistProbe:
     def __call__(self, rows: np.ndarray, frequency_hz: np.ndarray) -> np.ndarray:
         """ΓL of variants ``rows`` at ``frequency_hz`` (shape (k, m), one row per variant)."""
         frequency_hz = np.asarray(frequency_hz, dtype=float)
+        rows = np.asarray(rows)
         gamma = np.empty(frequency_hz.shape, dtype=complex)
-        # Rows that ask for the same frequencies are evaluated together, vectorised over them.
-        grids, group = np.unique(frequency_hz, axis=0, return_inverse=True)
-        for index, grid in enumerate(grids):
-            members = np.flatnonzero(group.reshape(-1) == index)
-            given = {name: values[rows[members]] for name, values in self.parameters.items()}
-            values = self.circuit.gamma(grid, self.reference_impedance_ohm, **given)
-            gamma[members] = np.broadcast_to(np.asarray(values), (members.size, grid.size))
+        # One evaluation per variant over every frequency its rows ask for (each interval asks
+        # for its own; one call per interval cost seconds on a long ladder).
+        variants = np.unique(rows) if self.parameters else rows[:1]
+        for variant in variants:
+            members = np.flatnonzero(rows == variant) if self.parameters else np.arange(rows.size)
+            grid, back = np.unique(frequency_hz[members], return_inverse=True)
+            given = {name: values[[variant]] for name, values in self.parameters.items()}
+            values = np.asarray(self.circuit.gamma(grid, self.reference_impedance_ohm, **given))
+            gamma[members] = values.reshape(-1)[back].reshape(members.size, -1)
         return gamma
 
 

@@ -17,9 +17,8 @@ from ..analysis.pole_zero import (
     identify_natural_frequencies,
     with_count_check,
 )
-from ..errors import InputError
 from .check import judge_prepared
-from .options import pair_arguments, port_setup
+from .options import model_order, optional, pair_arguments, port_setup
 from .pair import prepare_pair
 
 
@@ -62,10 +61,7 @@ def poles(
         Its ``verdict`` is the check's (the one judgement); the fit's own is ``fit_verdict``,
         and the reasons say whether they agree and, where not, which to believe.
     """
-    if max_order is not None and (
-        isinstance(max_order, bool) or not isinstance(max_order, int) or max_order < 1
-    ):
-        raise InputError(f"--max-order {max_order!r}: give a whole number of 1 or more")
+    max_order = optional(model_order, max_order, "--max-order")
     pair = prepare_pair(
         device,
         load,

@@ -15,7 +15,7 @@ from typing import Any
 from ..analysis.terminations import TerminationsResult, analyse_terminations
 from ..errors import InputError
 from ..reading.touchstone import Multiport
-from .options import given_grid, parameters, positive_resistance, quantity
+from .options import frequency, given_grid, parameters, positive_resistance
 
 
 def terminations(
@@ -25,7 +25,7 @@ def terminations(
     terminated_port: int = 2,
     frequency_hz: Any = None,
     params: Any = None,
-    reference_impedance_ohm: float | str = 50.0,
+    reference_impedance_ohm: float | str | None = None,
 ) -> TerminationsResult:
     """Which passive terminations of port ``terminated_port`` make the other port negative?
 
@@ -43,8 +43,9 @@ def terminations(
         A netlist's grid, Hz (:func:`oneport.frequency_grid`); data bring their own.
     params : mapping or sequence of str, optional
         A netlist's parameter overrides (``{"gm": 0.05}`` or ``["gm=50m"]``).
-    reference_impedance_ohm : float or str
-        The reference of a netlist's S-parameters (default 50 Ω).
+    reference_impedance_ohm : float or str, optional
+        The reference of a netlist's S-parameters (default 50 Ω); a Touchstone file's data
+        keep their own.
 
     Returns
     -------
@@ -57,9 +58,9 @@ def terminations(
     >>> result.observed_port, result.negative_fraction > 0
     (1, True)
     """
-    at = quantity(at_hz, "frequency", option="--at")
+    at = frequency(at_hz, "--at")
     if isinstance(terminated_port, bool) or terminated_port not in (1, 2):
-        raise InputError(f"--terminate {terminated_port!r}: give 1 or 2")
+        raise InputError(f"--terminated-port {terminated_port!r}: give 1 or 2")
     return analyse_terminations(
         _two_port(device, frequency_hz, params, reference_impedance_ohm),
         at,
@@ -71,10 +72,14 @@ def _two_port(device: Any, frequency_hz: Any, params: Any, reference: Any) -> Mu
     """The two-port as a :class:`Multiport`, whichever way it was given."""
     from .pair import as_circuit
 
+    ohms = positive_resistance(reference, "--reference-impedance")
     circuit = None if isinstance(device, Multiport) else as_circuit(device)
     if circuit is None:
-        if frequency_hz is not None or params:
-            raise InputError("--start, --stop and --param apply to netlists (.cir) only")
+        if frequency_hz is not None or params or ohms is not None:
+            raise InputError(
+                "--start, --stop, --param and --reference-impedance apply to netlists (.cir)"
+                " only; a Touchstone file's data keep their own reference"
+            )
         if isinstance(device, Multiport):
             return device
         if isinstance(device, str | Path):
@@ -94,5 +99,4 @@ def _two_port(device: Any, frequency_hz: Any, params: Any, reference: Any) -> Mu
         raise InputError(f"{circuit.source}: a netlist needs --start and --stop for its grid")
     from ..circuit import multiport_from_circuit
 
-    ohms = positive_resistance(reference, "--reference-impedance")
     return multiport_from_circuit(device, grid, 50.0 if ohms is None else ohms, parameters(params))

@@ -167,12 +167,9 @@ class FolderWatcher:
             raise InputError(
                 f"{printable(str(self.folder))}: no such folder; give the folder to watch"
             )
-        if not MINIMUM_INTERVAL_S <= interval_s <= MAXIMUM_INTERVAL_S:
-            raise InputError(
-                f"--interval: {interval_s:g} s is outside the accepted range; give a time from"
-                f" {MINIMUM_INTERVAL_S * 1e3:g} ms to {MAXIMUM_INTERVAL_S / 3600:g} h, e.g. 1s"
-            )
-        self.interval_s = float(interval_s)
+        from .options import interval
+
+        self.interval_s = interval(interval_s, "--interval")
         self._ignored = {os.path.realpath(path) for path in ignore}
         self._tracked: dict[Path, _Tracked] = {}
 
@@ -363,22 +360,22 @@ def watch(
     >>> [(o.path.name, o.result.verdict) for o in seen.outcomes]
     [('device.s1p', 'stable')]
     """
-    from ..units import quantity
+    from .options import interval
 
-    interval = quantity(interval_s, "time", option="--interval")
+    seconds = interval(interval_s, "--interval")
     if polls is not None and (
         isinstance(polls, bool) or not isinstance(polls, int | float) or not polls >= 1
     ):
         raise InputError(f"polls {polls!r}: give a number of polls, 1 or more, or None")
-    watcher = FolderWatcher(folder, interval, ignore=(load,))
+    watcher = FolderWatcher(folder, seconds, ignore=(load,))
     _read_load(load)
-    reports = _report_folder(report_dir)
+    reports = _report_folder(report_dir)  # made and checked before the watch starts
     if on_start is not None:
         on_start(watcher)
     kept: list[WatchOutcome] = []
 
     def handle(path: Path, version: FileVersion | None) -> None:
-        outcome = _with_report(check_file(path, load, version), reports)
+        outcome = _with_report(check_file(path, load, version), reports, load)
         if on_outcome is not None:
             on_outcome(outcome)
         else:
@@ -397,7 +394,7 @@ def watch(
             sleep=sleep,
             max_polls=limit,
         )
-    return WatchResult(watcher.folder, str(load), interval, made, tuple(kept))
+    return WatchResult(watcher.folder, str(load), seconds, made, tuple(kept))
 
 
 def _read_load(load: str | Path) -> None:
@@ -415,26 +412,29 @@ def _read_load(load: str | Path) -> None:
 
 
 def _report_folder(report_dir: str | Path | None) -> Path | None:
+    """The report folder, made if missing and checked (never a system folder, writable)."""
     if report_dir is None:
         return None
-    folder = Path(report_dir)
-    try:
-        folder.mkdir(parents=True, exist_ok=True)
-    except OSError as error:
-        raise InputError(f"--report-dir: {folder} cannot be made ({error.strerror})") from None
-    return folder
+    from ..rendering.files import check_folder
+
+    return check_folder(report_dir, "--report-dir")
 
 
-def _with_report(outcome: WatchOutcome, reports: Path | None) -> WatchOutcome:
-    """The outcome with its HTML report written, when reports are asked for."""
+def _with_report(outcome: WatchOutcome, reports: Path | None, load: str | Path) -> WatchOutcome:
+    """The outcome with its HTML report written, when reports are asked for: checked first
+    (never the checked file or the load, never a special file), written whole."""
     if reports is None or outcome.result is None:
         return outcome
     from dataclasses import replace
 
     from ..rendering.report import write_report
+    from .options import output_targets
 
     try:
-        written = write_report(outcome.result, reports / f"{outcome.path.name}.html")
+        target = output_targets(
+            {"--report-dir": reports / f"{outcome.path.name}.html"}, [outcome.path, load]
+        )
+        written = write_report(outcome.result, target["--report-dir"])
     except OneportError as error:
         return replace(outcome, report_error=str(error))
     return replace(outcome, report=written)

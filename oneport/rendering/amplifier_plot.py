@@ -13,7 +13,6 @@ from typing import Any
 import numpy as np
 
 from ..analysis.amplifier import AmplifierResult
-from ..errors import InputError
 from ..units import format_plain, format_resistance
 
 
@@ -72,9 +71,8 @@ def _power_db(ratio: np.ndarray) -> np.ndarray:
 
 
 def save_amplifier_plot(result: AmplifierResult, path: str | Path) -> None:
-    """Draw :func:`plot_amplifier` on a new figure and save it (format from the suffix)."""
-    figure = plot_amplifier(result)
-    try:
-        figure.savefig(path)
-    except (OSError, ValueError) as error:
-        raise InputError(f"--plot {path}: cannot write the plot ({error})") from error
+    """Draw :func:`plot_amplifier` on a new figure and save it (format from the suffix), whole
+    or not at all."""
+    from .figures import save_figure
+
+    save_figure(plot_amplifier(result), path)

@@ -104,8 +104,8 @@ def _requirement(result: AmplifierResult) -> list[str]:
 
 
 def _power(ratio: float) -> float:
-    """A power gain in dB."""
-    return 10.0 * math.log10(ratio) if ratio > 0 else -math.inf
+    """A power gain in dB (a gain that underflows to 0 reads as -3000 dB, never -inf)."""
+    return 10.0 * math.log10(max(ratio, 1e-300))
 
 
 def _return_loss(reflection: float | None) -> float:

@@ -14,12 +14,13 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from ..errors import InputError
-from .files import require_folder, write_atomically
+from .files import check_target, write_atomically
 
 if TYPE_CHECKING:
     from matplotlib.figure import Figure
 
-_SAVE_FORMATS = {".png": "png", ".svg": "svg"}
+#: Every picture the package writes, by suffix: one set of formats for every command's --plot.
+PLOT_FORMATS = {".png": "png", ".svg": "svg"}
 
 
 def new_figure(size: tuple[float, float], margins: dict[str, float] | None = None) -> Figure:
@@ -79,14 +80,21 @@ def save_figure(figure: Figure, path: str | Path) -> Path:
     return target
 
 
-def image_target(path: str | Path) -> tuple[Path, str]:
-    """The target path and image format, checked before anything is drawn."""
+def image_target(path: str | Path, option: str = "--plot") -> tuple[Path, str]:
+    """The target path and image format, checked before anything is drawn.
+
+    Raises
+    ------
+    InputError
+        For a suffix other than ``.png`` or ``.svg``, or a target that cannot be written
+        (:func:`oneport.rendering.files.check_target`).
+    """
     target = Path(path)
-    image_format = _SAVE_FORMATS.get(target.suffix.lower())
+    image_format = PLOT_FORMATS.get(target.suffix.lower())
     if image_format is None:
         raise InputError(
             f"{target}: cannot write plots as {target.suffix or 'a file without suffix'!r};"
             " give a file name ending in .png or .svg"
         )
-    require_folder(target)
+    check_target(target, option)
     return target, image_format

@@ -138,10 +138,9 @@ def write_report(
     InputError
         When the file cannot be written (one line naming it).
     """
-    from .files import require_folder, write_atomically
+    from .files import check_target, write_atomically
 
-    target = Path(path)
-    require_folder(target)
+    target = check_target(path, "--report")
     write_atomically(target, render_report(result, title, run).encode("utf-8"))
     return target
 

@@ -47,7 +47,7 @@ def plot_sweep(result: SweepRun, ax: Any = None, summary: Any = None) -> Any:
         figure = ax.figure
     names = list(result.plan.values)
     units = dict(getattr(summary, "units", {}) or {})
-    if result.plan.kind == "grid" and len(result.plan.shape) == 2 and not result.interrupted:
+    if result.plan.kind == "grid" and len(result.plan.shape) == 2 and result.complete:
         _map(result, names, units, ax, figure)
     else:
         _histogram(result, ax, summary)

@@ -50,6 +50,15 @@ def render(result: Any) -> str:
     rows += ["", "Found"]
     if summary.interrupted:
         rows.append(f"  interrupted: {summary.completed} of {summary.variants} variants finished")
+    elif not summary.complete:
+        rows.append(
+            wrap(
+                f"stopped by an error after {summary.completed} of {summary.variants} variants:"
+                f" {summary.error}",
+                "  ",
+                hang=4,
+            )
+        )
     if summary.stable_bounds:
         rows.append("  stable variants span (not necessarily one connected region):")
         for name, (low, high) in summary.stable_bounds.items():
@@ -70,6 +79,7 @@ def render(result: Any) -> str:
             )
         )
     if table_path:
-        rows.append(f"  table: {table_path}")
+        partial = "" if summary.complete else " (partial: its column complete is false)"
+        rows.append(f"  table: {table_path}{partial}")
     rows += closing_sections(warnings, (), None, result.cautions)
     return "\n".join(rows) + "\n"

@@ -86,10 +86,12 @@ def oscillator(
     -------
     OscillatorResult
     """
-    from ..options import optional_decibels
+    from ..options import injection_below
 
-    below = optional_decibels(injection_below_db, "--injection-below")
-    injection_ratio = injection_ratio_below(20.0 if below is None else below, "--injection-below")
+    below = injection_below(
+        20.0 if injection_below_db is None else injection_below_db, "--injection-below"
+    )
+    injection_ratio = injection_ratio_below(below, "--injection-below")
     if form not in (None, "auto", "admittance", "impedance"):
         raise InputError(f"--form {form!r}: accepted: auto, admittance, impedance")
     description = (

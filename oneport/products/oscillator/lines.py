@@ -77,7 +77,9 @@ class DeviceLine:
     def gamma(self, parameter: np.ndarray, frequency_hz: np.ndarray) -> np.ndarray:
         """Γd(p, f) referred to ``reference_impedance_ohm``."""
         scaled = self.admittance(parameter, frequency_hz) * self.reference_impedance_ohm
-        result: np.ndarray = (1.0 - scaled) / (1.0 + scaled)
+        # Y = −1/Z0 exactly is Z = −Z0: a pole of Γ (infinite), which callers expect.
+        with np.errstate(divide="ignore", invalid="ignore"):
+            result: np.ndarray = (1.0 - scaled) / (1.0 + scaled)
         return result
 
 

@@ -17,6 +17,7 @@ import numpy as np
 from ...cautions import CAUTIONS, STABILISER_CAUTIONS
 from ...errors import InputError
 from ...units import format_frequency, parse_quantity, to_decibels
+from .. import options as read_options
 from ..options import pair_arguments, port_setup
 from . import adapter, goal, placements, search, verify
 from .families import FAMILIES
@@ -115,8 +116,8 @@ def stabilise(
     if keep_hz is not None and band_hz is not None:
         raise InputError("--band and --keep: give one (a band's gain, or a mode to keep)")
     element_tolerance, parameter_tolerances = _tolerances(tolerance)
-    if tolerance is not None and samples < 1:
-        raise InputError(f"--samples {samples}: at least 1 is needed")
+    samples = read_options.samples(samples, "--samples")
+    seed = read_options.seed(seed, "--seed")
     if distribution not in ("uniform", "normal"):
         raise InputError(f"--distribution {distribution!r}: accepted: uniform, normal")
     names = tuple(FAMILIES) if families is None else tuple(families)

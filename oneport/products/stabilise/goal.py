@@ -19,7 +19,8 @@ from typing import Any
 import numpy as np
 
 from ...errors import InputError
-from ...units import parse_decibels, parse_quantity, to_decibels
+from ...units import parse_decibels, to_decibels
+from ..options import frequency, positive_frequency
 from . import adapter
 
 #: A wanted mode is "the same mode" when its crossing lies within this fraction of its
@@ -113,9 +114,9 @@ def parse_band(band: Any) -> tuple[float, float] | None:
         parts = band.split(":")
         if len(parts) != 2:
             raise InputError(f"--band {band!r}: give LOW:HIGH, e.g. 2GHz:3GHz")
-        low, high = (parse_quantity(p, "frequency", option="--band") for p in parts)
+        low, high = (frequency(p, "--band") for p in parts)
     else:
-        low, high = (float(v) for v in band)
+        low, high = (frequency(v, "--band") for v in band)
     if not (np.isfinite(low) and np.isfinite(high) and 0.0 <= low < high):
         raise InputError(f"--band {band!r}: the low end must lie below the high end, both >= 0 Hz")
     return float(low), float(high)
@@ -125,12 +126,7 @@ def parse_frequency(value: Any, option: str) -> float | None:
     """A frequency given as a number (Hz) or text with a unit (``2.1GHz``)."""
     if value is None:
         return None
-    frequency = (
-        parse_quantity(value, "frequency", option=option) if isinstance(value, str) else value
-    )
-    if not (np.isfinite(frequency) and frequency > 0):
-        raise InputError(f"{option} {value!r}: a frequency above 0 Hz is needed")
-    return float(frequency)
+    return positive_frequency(value, option)
 
 
 def goal_met(requirement: Requirement, variants: adapter.VariantAnalysis) -> np.ndarray:

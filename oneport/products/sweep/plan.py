@@ -1,26 +1,115 @@
 """Which variants a sweep runs: a grid over named parameters, or Monte Carlo over tolerances.
 
-A plan only holds parameter values (SI units, one array per name, one entry per variant) and
-hands them out by chunk; it knows nothing of circuits or analysis.
+A plan holds how to make parameter values (SI units), not the values: :meth:`SweepPlan.chunk`
+makes the values of variants ``start`` to ``stop`` − 1 when they are needed, so a plan's
+memory does not grow with the number of variants, and a chunk can be made wherever it runs (a
+Dask worker too). It knows nothing of circuits or analysis.
+
+Grids: every combination of the axes, the first parameter varying slowest; a chunk's values
+come from its variants' indices into the axes.
 
 Tolerances: ``uniform`` draws each parameter uniformly within nominal·(1 ± tol); ``normal``
 draws from a normal distribution with σ = tol/3 about the nominal, truncated at ±tol (values
-outside are drawn again, so the distribution inside is the normal one, renormalised). The seed
-makes a run repeatable: the same seed, samples and tolerances give the same variants.
+outside are drawn again, so the distribution inside is the normal one, renormalised). The
+variants come in blocks of :data:`MONTE_CARLO_BLOCK`; block *b* is drawn by its own generator,
+seeded with NumPy's ``SeedSequence(seed, spawn_key=(b,))`` (the *b*-th child of the seed), one
+parameter after another in the order given. A variant's values therefore depend only on the
+seed, the tolerances, the distribution and its own index — never on the chunk size, the
+number of samples asked for, threads or Dask — and a chunk draws only the blocks it covers.
 """
 
 from __future__ import annotations
 
 import re
-from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from collections.abc import Iterator, Mapping, Sequence
+from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 
 from ...errors import InputError
+from ..options import MAX_VARIANTS
+from ..options import samples as read_samples
+from ..options import seed as read_seed
 
 _VARY = re.compile(r"^\s*([A-Za-z_]\w*)\s*=\s*([^:]+):([^:]+):(\d+)\s*$")
 _TOLERANCE = re.compile(r"^\s*([A-Za-z_]\w*)\s*=\s*([0-9.eE+-]+)\s*%\s*$")
+
+#: Variants per block of the Monte Carlo stream (each block has its own seeded generator).
+MONTE_CARLO_BLOCK = 4096
+
+
+@dataclass(frozen=True)
+class _GridColumns:
+    """Values of a grid's variants from their indices: the axes, first varying slowest."""
+
+    names: tuple[str, ...]
+    axes: tuple[np.ndarray, ...] = field(repr=False)
+
+    def rows(self, start: int, stop: int) -> dict[str, np.ndarray]:
+        shape = tuple(axis.size for axis in self.axes)
+        indices = np.unravel_index(np.arange(start, stop), shape)
+        return {
+            name: axis[index]
+            for name, axis, index in zip(self.names, self.axes, indices, strict=True)
+        }
+
+
+@dataclass(frozen=True)
+class _DrawnColumns:
+    """Values of Monte Carlo variants, drawn block by block from the seeded stream."""
+
+    names: tuple[str, ...]
+    tolerances: tuple[float, ...]
+    nominal: tuple[float, ...]
+    seed: int
+    distribution: str
+
+    def rows(self, start: int, stop: int) -> dict[str, np.ndarray]:
+        if stop <= start:
+            return {name: np.empty(0) for name in self.names}
+        first, last = start // MONTE_CARLO_BLOCK, (stop - 1) // MONTE_CARLO_BLOCK
+        blocks = [self.block(index) for index in range(first, last + 1)]
+        offset = first * MONTE_CARLO_BLOCK
+        span = slice(start - offset, stop - offset)
+        return {
+            name: np.concatenate([block[column] for block in blocks])[span]
+            for column, name in enumerate(self.names)
+        }
+
+    def block(self, index: int) -> tuple[np.ndarray, ...]:
+        """Every parameter's values in block ``index`` (read-only arrays)."""
+        return _block(self, index)
+
+
+@lru_cache(maxsize=4)
+def _block(columns: _DrawnColumns, index: int) -> tuple[np.ndarray, ...]:
+    sequence = np.random.SeedSequence(columns.seed, spawn_key=(index,))
+    rng = np.random.Generator(np.random.PCG64(sequence))
+    drawn = []
+    for tolerance, nominal in zip(columns.tolerances, columns.nominal, strict=True):
+        values = nominal * (1.0 + _draw(rng, columns.distribution, tolerance, MONTE_CARLO_BLOCK))
+        values.flags.writeable = False
+        drawn.append(values)
+    return tuple(drawn)
+
+
+class _Values(Mapping[str, np.ndarray]):
+    """Every variant's value by parameter, made on access (iterating gives the names only)."""
+
+    def __init__(self, plan: SweepPlan) -> None:
+        self._plan = plan
+
+    def __getitem__(self, name: str) -> np.ndarray:
+        if name not in self._plan.columns.names:
+            raise KeyError(name)
+        return self._plan.chunk(0, self._plan.variants)[name]
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self._plan.columns.names)
+
+    def __len__(self) -> int:
+        return len(self._plan.columns.names)
 
 
 @dataclass(frozen=True)
@@ -44,10 +133,10 @@ class ParameterPlan:
 
 @dataclass(frozen=True)
 class SweepPlan:
-    """Parameter values per variant, and how they were chosen."""
+    """How the variants' parameter values are made, how many there are, and how chosen."""
 
     kind: str  # "grid" or "monte-carlo"
-    values: Mapping[str, np.ndarray]
+    columns: _GridColumns | _DrawnColumns = field(repr=False)
     shape: tuple[int, ...]
     description: Mapping[str, str]
     parameters: tuple[ParameterPlan, ...] = ()
@@ -57,9 +146,15 @@ class SweepPlan:
         """Number of variants."""
         return int(np.prod(self.shape)) if self.shape else 0
 
+    @property
+    def values(self) -> Mapping[str, np.ndarray]:
+        """Parameter values of every variant by name (made when a name is looked up)."""
+        return _Values(self)
+
     def chunk(self, start: int, stop: int) -> dict[str, np.ndarray]:
         """Parameter values of variants ``start`` to ``stop`` − 1."""
-        return {name: column[start:stop] for name, column in self.values.items()}
+        stop = min(stop, self.variants)
+        return self.columns.rows(start, max(start, stop))
 
 
 def parse_vary(text: str) -> tuple[str, float, float, int]:
@@ -69,8 +164,11 @@ def parse_vary(text: str) -> tuple[str, float, float, int]:
         raise InputError(f"--vary {text!r}: give NAME=START:STOP:COUNT, e.g. Lbias=10nH:100nH:21")
     name, start, stop, count = match.groups()
     count_value = int(count)
-    if count_value < 1:
-        raise InputError(f"--vary {text!r}: COUNT must be at least 1")
+    if not 1 <= count_value <= MAX_VARIANTS:
+        raise InputError(
+            f"--vary {text!r}: COUNT must be from 1 to {MAX_VARIANTS:,} (the limit of variants"
+            " per sweep)"
+        )
     return name, _value(start, text), _value(stop, text), count_value
 
 
@@ -81,7 +179,7 @@ def _value(token: str, text: str) -> float:
         value = parse_number(token)
     except ValueTokenError as error:
         raise InputError(f"--vary {text!r}: {error}") from None
-    if value is None:
+    if value is None or not np.isfinite(value):
         raise InputError(f"--vary {text!r}: {token!r} is not a number (e.g. 3.3nH, 10p, 5meg)")
     return value
 
@@ -96,6 +194,15 @@ def grid_plan(
     unknown = set(logarithmic) - set(names)
     if unknown:
         raise InputError(f"--log {', '.join(sorted(unknown))}: not a swept parameter (--vary)")
+    total = 1
+    for _, _, _, count in specifications:
+        total *= int(count)
+    if total > MAX_VARIANTS:
+        raise InputError(
+            f"--vary: {' × '.join(str(spec[3]) for spec in specifications)} = {total:,}"
+            f" combinations is above the limit of {MAX_VARIANTS:,} variants per sweep; give"
+            " fewer values"
+        )
     axes = []
     description = {}
     plans = []
@@ -108,12 +215,16 @@ def grid_plan(
         else:
             axes.append(np.linspace(start, stop, count))
             description[name] = f"{count} values from {start:g} to {stop:g}, linear"
+        if not np.all(np.isfinite(axes[-1])):
+            raise InputError(
+                f"--vary {name}: {start:g} to {stop:g} leaves the finite numbers; give values"
+                " within the netlist's bounds (docs/netlist.md)"
+            )
         spacing = "logarithmic" if name in logarithmic else "linear"
         plans.append(ParameterPlan(name, start=start, stop=stop, count=count, spacing=spacing))
-    mesh = np.meshgrid(*axes, indexing="ij")
     shape = tuple(axis.size for axis in axes)
-    values = {name: grid.reshape(-1) for name, grid in zip(names, mesh, strict=True)}
-    return SweepPlan("grid", values, shape, description, tuple(plans))
+    columns = _GridColumns(tuple(names), tuple(axes))
+    return SweepPlan("grid", columns, shape, description, tuple(plans))
 
 
 def parse_tolerance(text: str) -> tuple[str, float]:
@@ -121,7 +232,11 @@ def parse_tolerance(text: str) -> tuple[str, float]:
     match = _TOLERANCE.match(text)
     if not match:
         raise InputError(f"--tolerance {text!r}: give NAME=PERCENT%, e.g. Cblock=5%")
-    name, percent = match.group(1), float(match.group(2))
+    name = match.group(1)
+    try:
+        percent = float(match.group(2))
+    except ValueError:
+        percent = float("nan")
     if not 0 < percent < 100:
         raise InputError(f"--tolerance {text!r}: the tolerance must be between 0 and 100 %")
     return name, percent / 100.0
@@ -134,28 +249,35 @@ def monte_carlo_plan(
     seed: int,
     distribution: str = "uniform",
 ) -> SweepPlan:
-    """``samples`` random variants, each parameter within nominal·(1 ± tol)."""
-    if samples < 1:
-        raise InputError(f"--samples {samples}: at least 1 is needed")
+    """``samples`` random variants, each parameter within nominal·(1 ± tol).
+
+    Variant *i* is the same in every run with the same seed, tolerances and distribution,
+    whatever ``samples`` (as long as it exceeds *i*) and however the run is cut into chunks.
+    """
+    samples = read_samples(samples, "--samples")
+    seed = read_seed(seed, "--seed")
     if distribution not in ("uniform", "normal"):
         raise InputError(f"--distribution {distribution!r}: accepted: uniform, normal")
-    rng = np.random.default_rng(seed)
-    values = {}
+    names, spreads, centres = [], [], []
     description = {}
     plans = []
     for name, tolerance in tolerances:
         if name not in nominal:
             known = ", ".join(sorted(nominal)) or "none"
             raise InputError(f"--tolerance {name}: no parameter of that name (known: {known})")
-        relative = _draw(rng, distribution, tolerance, samples)
-        values[name] = nominal[name] * (1.0 + relative)
+        if name in names:
+            raise InputError(f"--tolerance {name}: given twice; give each parameter once")
+        names.append(name)
+        spreads.append(float(tolerance))
+        centres.append(float(nominal[name]))
         description[name] = f"{nominal[name]:g} ±{tolerance:.0%} ({distribution})"
         plans.append(
             ParameterPlan(
                 name, nominal=nominal[name], tolerance=tolerance, distribution=distribution
             )
         )
-    return SweepPlan("monte-carlo", values, (samples,), description, tuple(plans))
+    columns = _DrawnColumns(tuple(names), tuple(spreads), tuple(centres), int(seed), distribution)
+    return SweepPlan("monte-carlo", columns, (samples,), description, tuple(plans))
 
 
 def _draw(

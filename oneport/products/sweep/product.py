@@ -60,8 +60,8 @@ def sweep(
         Monte Carlo: ``"R=20%"`` or ``{"R": 0.2}`` (a fraction) — each within ±tolerance of its
         netlist value.
     samples, seed, distribution
-        The Monte Carlo's size, seed (runs repeat) and ``"uniform"`` or ``"normal"``
-        (σ = tol/3, truncated at ±tol).
+        The Monte Carlo's size (1 to 100,000,000), seed (0 to 2⁶⁴ − 1; the same seed gives the
+        same variants) and ``"uniform"`` or ``"normal"`` (σ = tol/3, truncated at ±tol).
     measurement_impedance_ohm : float or str, optional
         The analysis impedance (``--reference-impedance``): for a netlist device its Z0 (default
         50 Ω), for device files what they were measured in (default: their own reference).
@@ -70,7 +70,10 @@ def sweep(
     frequency_hz : array_like, optional
         The grid when both sides are netlists (required then; :func:`oneport.frequency_grid`).
     output : str or Path, optional
-        Write the per-variant table there (``.parquet`` or ``.csv``).
+        Write the per-variant table there (``.parquet`` or ``.csv``; CSV up to 200,000
+        variants). Checked before any work: a file in an existing folder that can be written,
+        not an input of the run, not a special file or a system folder. Written whole through
+        a temporary file and a rename.
     chunk_size, scheduler, workers, threads
         Where and how the chunks run (:func:`~oneport.products.sweep.runner.run_sweep`).
     progress : callable, optional
@@ -80,7 +83,10 @@ def sweep(
     -------
     SweepResult
         Verdict, fractions, the stable bounds, the worst variant, the table; ``to_dict()`` is
-        the command's JSON.
+        the command's JSON. A run stopped early — Ctrl-C, a variant the netlist refuses, a lost
+        worker, a bug — returns the finished variants (written to ``output``, marked partial):
+        ``complete`` is False, ``interrupted`` says Ctrl-C, and ``error`` holds any other
+        failure (the command reports it after the partial results, with its exit code).
 
     Examples
     --------
@@ -93,34 +99,44 @@ def sweep(
     >>> result.verdict, result.summary.variants
     ('unstable', 15)
     """
-    from ..options import pair_arguments
+    from ...rendering.sweep_table import check_table, write_table
+    from .. import options
     from .sources import pair_source_is_netlist, prepare_sweep
 
+    paths = list(devices) if isinstance(devices, list | tuple) else [devices]
+    if not paths:
+        raise InputError("sweep: give at least one device")
     specifications = _specifications(vary)
     tolerances = _tolerances(tolerance)
     if specifications and tolerances:
         raise InputError("sweep: give --vary (a grid) or --tolerance (Monte Carlo), not both")
     if distribution not in DISTRIBUTIONS:
         raise InputError(f"--distribution {distribution!r}: accepted: {', '.join(DISTRIBUTIONS)}")
-    if output is not None:
-        from ...rendering.files import require_folder
-
-        require_folder(Path(output))  # checked before any work
-    paths = list(devices) if isinstance(devices, list | tuple) else [devices]
-    if not paths:
-        raise InputError("sweep: give at least one device")
+    samples = options.samples(samples, "--samples")
+    seed = options.seed(seed, "--seed")
+    chunk_size = options.optional(options.chunk_size, chunk_size, "--chunk-size")
+    workers = options.optional(options.workers, workers, "--workers")
+    threads = options.optional(options.threads, threads, "--threads")
+    scheduler = options.optional(options.scheduler, scheduler, "--scheduler")
+    # The table's target is checked before anything is read or run: a writable place, never
+    # an input of the run (nor a file a netlist or the load names), never a special file.
+    target = options.output_targets({"--output": output}, [*paths, load]).get("--output")
+    if target is not None:
+        check_table(target, 0)  # its format now; CSV's row limit once the plan is known
     if frequency_hz is None and pair_source_is_netlist(paths[0]) and pair_source_is_netlist(load):
         raise InputError("give both --start and --stop (e.g. 1MHz and 6GHz)")
-    options = pair_arguments(
+    arguments = options.pair_arguments(
         measurement_impedance_ohm=measurement_impedance_ohm,
         device_dc_resistance_ohm=device_dc_resistance_ohm,
         load_dc_resistance_ohm=load_dc_resistance_ohm,
         frequency_hz=frequency_hz,
         measurement_option="--reference-impedance",
     )
-    del options["load_setup"], options["gamma_uncertainty"]
-    prepared = prepare_sweep(paths, load, **options)
+    del arguments["load_setup"], arguments["gamma_uncertainty"]
+    prepared = prepare_sweep(paths, load, **arguments)
     plan = _plan(specifications, tolerances, log, prepared, samples, seed, distribution)
+    if target is not None:
+        check_table(target, plan.variants)
     from .runner import run_sweep
 
     done = [0]
@@ -142,10 +158,9 @@ def sweep(
         progress=advance,
     )
     table_path = None
-    if output is not None and run.completed:
-        from ...rendering.sweep_table import write_table
-
-        table_path = str(write_table(run.table, output))
+    if target is not None and run.completed:
+        # Whatever stopped the run, the finished variants are written, marked partial.
+        table_path = str(write_table(run.table, target, plan.variants))
     return SweepResult(
         run=run,
         summary=summarise(run, prepared.source),

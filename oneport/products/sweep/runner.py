@@ -5,8 +5,10 @@ A chunk is the unit of work: a slice of the plan's variants, evaluated by a *var
 out, with the facts the single check would know of each variant) and judged by the one
 judgement, :func:`oneport.analysis.judgement.judge`. Memory stays bounded by the
 chunk size; the result is the same whichever way the chunks are run, since each chunk is
-computed alone and the table is assembled in chunk order. Ctrl-C stops after the chunks already
-finished, which stay valid.
+computed alone and the table is assembled in chunk order. Whatever stops a run — Ctrl-C, a
+variant the netlist refuses, a lost worker, a bug — the chunks already finished are kept (the
+longest run of them from the first, so rows stay in plan order) and the result says how it
+ended, so the caller can write the partial table, mark it, and then report the failure.
 """
 
 from __future__ import annotations
@@ -14,10 +16,10 @@ from __future__ import annotations
 import contextlib
 import itertools
 import logging
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterator, Sequence
 from concurrent.futures import FIRST_COMPLETED, Future, ThreadPoolExecutor, wait
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, overload
 
 import numpy as np
 
@@ -42,6 +44,14 @@ class SweepRun:
     table: dict[str, np.ndarray] = field(repr=False)
     completed: int
     interrupted: bool
+    #: What stopped the run before its end, other than Ctrl-C (re-raised by the caller once
+    #: the finished chunks are written); None when nothing did.
+    error: BaseException | None = field(default=None, repr=False, compare=False)
+
+    @property
+    def complete(self) -> bool:
+        """Whether every variant of the plan was run."""
+        return self.completed == self.plan.variants and not self.interrupted
 
     @property
     def verdicts(self) -> np.ndarray:
@@ -49,16 +59,41 @@ class SweepRun:
         return np.asarray(VERDICT_CODES, dtype=object)[self.table["verdict_code"]]
 
 
-def chunk_bounds(
-    variants: int, points: int, chunk_size: int | None = None
-) -> list[tuple[int, int]]:
-    """(start, stop) of every chunk; ``chunk_size`` must be a positive number of variants."""
-    if chunk_size is not None and chunk_size < 1:
-        from ...errors import InputError
+class ChunkBounds(Sequence[tuple[int, int]]):
+    """(start, stop) of every chunk, made on demand: no list that grows with the variants."""
 
-        raise InputError(f"--chunk-size {chunk_size}: give a whole number of variants, 1 or more")
+    def __init__(self, variants: int, size: int) -> None:
+        self.variants = variants
+        self.size = size
+
+    def __len__(self) -> int:
+        return -(-self.variants // self.size)
+
+    @overload
+    def __getitem__(self, index: int) -> tuple[int, int]: ...
+
+    @overload
+    def __getitem__(self, index: slice) -> list[tuple[int, int]]: ...
+
+    def __getitem__(self, index: int | slice) -> Any:
+        if isinstance(index, slice):
+            return [self[i] for i in range(*index.indices(len(self)))]
+        if index < 0:
+            index += len(self)
+        if not 0 <= index < len(self):
+            raise IndexError(index)
+        start = index * self.size
+        return start, min(start + self.size, self.variants)
+
+
+def chunk_bounds(variants: int, points: int, chunk_size: int | None = None) -> ChunkBounds:
+    """(start, stop) of every chunk; ``chunk_size`` must be a positive number of variants."""
+    if chunk_size is not None:
+        from ..options import chunk_size as read_chunk_size
+
+        chunk_size = read_chunk_size(chunk_size, "--chunk-size")
     size = chunk_size or max(1, CHUNK_SAMPLES // max(points, 1))
-    return [(start, min(start + size, variants)) for start in range(0, variants, size)]
+    return ChunkBounds(variants, size)
 
 
 def run_chunk(
@@ -130,6 +165,7 @@ def run_sweep(
     bounds = chunk_bounds(plan.variants, frequency_hz.size, chunk_size)
     finished: dict[int, dict[str, np.ndarray]] = {}
     interrupted = False
+    error: BaseException | None = None
     try:
         for index, columns in _execute(
             plan,
@@ -147,16 +183,21 @@ def run_sweep(
                 progress(bounds[index][1] - bounds[index][0])
     except KeyboardInterrupt:
         interrupted = True
+    except Exception as failure:  # kept, and raised again by the caller after writing
+        error = failure
     # Keep the longest run of finished chunks from the start, so rows stay in plan order.
     done = 0
     while done in finished:
         done += 1
-    parts = [finished[i] for i in range(done)]
+    parts = [finished.pop(i) for i in range(done)]
+    finished.clear()
     table = (
         {name: np.concatenate([part[name] for part in parts]) for name in parts[0]} if parts else {}
     )
     completed = bounds[done - 1][1] if done else 0
-    return SweepRun(plan, frequency_hz, reference_impedance_ohm, table, completed, interrupted)
+    return SweepRun(
+        plan, frequency_hz, reference_impedance_ohm, table, completed, interrupted, error
+    )
 
 
 def _execute(
@@ -165,7 +206,7 @@ def _execute(
     frequency_hz: np.ndarray,
     reference_impedance_ohm: float,
     dc_sign: int | None,
-    bounds: list[tuple[int, int]],
+    bounds: ChunkBounds,
     scheduler: str | None,
     workers: int | None,
     threads: int | None,
@@ -181,7 +222,7 @@ def _execute_here(
     plan: SweepPlan,
     source: VariantSource,
     arguments: tuple[Any, ...],
-    bounds: list[tuple[int, int]],
+    bounds: ChunkBounds,
     threads: int | None,
 ) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
     """Chunks in this process: on ``threads`` threads (numpy releases the GIL in its loops),
@@ -214,7 +255,7 @@ def _execute_on_dask(
     plan: SweepPlan,
     source: VariantSource,
     arguments: tuple[Any, ...],
-    bounds: list[tuple[int, int]],
+    bounds: ChunkBounds,
     scheduler: str | None,
     workers: int | None,
 ) -> Iterator[tuple[int, dict[str, np.ndarray]]]:
@@ -240,11 +281,17 @@ def _execute_on_dask(
             except OSError as error:
                 raise InputError(f"--scheduler {scheduler}: cannot reach it ({error})") from None
         shared = client.scatter(source, broadcast=True)
+        shared_plan = client.scatter(plan, broadcast=True)
         slots = max(1, sum(client.nthreads().values()))
         futures = {}
         for group in _groups(len(bounds), slots):
-            chunks = [plan.chunk(*bounds[index]) for index in group]
-            futures[client.submit(run_chunks, shared, chunks, *arguments, pure=False)] = group
+            # The worker makes the chunks' parameter values itself: nothing here grows with
+            # the number of variants.
+            spans = [bounds[index] for index in group]
+            task = client.submit(
+                run_planned_chunks, shared, shared_plan, spans, *arguments, pure=False
+            )
+            futures[task] = group
         try:
             for future in as_completed(futures):
                 yield from zip(futures[future], future.result(), strict=True)
@@ -260,17 +307,18 @@ def _execute_on_dask(
 TASKS_PER_SLOT = 4
 
 
-def _groups(chunks: int, slots: int) -> list[list[int]]:
+def _groups(chunks: int, slots: int) -> list[range]:
     """Chunk indices in consecutive groups, one task each: about TASKS_PER_SLOT per slot."""
     size = max(1, chunks // (TASKS_PER_SLOT * slots))
-    return [list(range(start, min(start + size, chunks))) for start in range(0, chunks, size)]
+    return [range(start, min(start + size, chunks)) for start in range(0, chunks, size)]
 
 
-def run_chunks(
-    source: VariantSource, chunks: list[dict[str, np.ndarray]], *arguments: Any
+def run_planned_chunks(
+    source: VariantSource, plan: SweepPlan, spans: list[tuple[int, int]], *arguments: Any
 ) -> list[dict[str, np.ndarray]]:
-    """Several chunks one after another (one cluster task): memory stays that of one chunk."""
-    return [run_chunk(source, parameters, *arguments) for parameters in chunks]
+    """Several chunks one after another (one cluster task), their values made by the plan
+    here: memory stays that of one chunk and its table columns."""
+    return [run_chunk(source, plan.chunk(start, stop), *arguments) for start, stop in spans]
 
 
 #: Dask settings for a sweep: local workers are forked from this process, so they start with

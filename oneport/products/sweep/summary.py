@@ -59,6 +59,10 @@ class SweepSummary:
     worst_row: int | None
     worst_reason: str
     interrupted: bool
+    #: Whether every planned variant ran; a partial run's table holds the finished ones.
+    complete: bool = True
+    #: What stopped the run early, other than Ctrl-C (one line); None when nothing did.
+    error: str | None = None
     units: dict[str, str] = field(default_factory=dict)
     nominal: Nominal | None = None
     reasons: tuple[str, ...] = ()
@@ -79,7 +83,9 @@ def summarise(result: SweepRun, source: Any = None, dc_sign: int | None = None) 
     units = {name: units.get(name, "") for name in result.plan.values}
     table = result.table
     completed = result.completed
-    nominal = _nominal(result, source, dc_sign)
+    error = None if result.error is None else " ".join(str(result.error).split())
+    # After a failure the nominal design is not judged: what failed may fail again.
+    nominal = _nominal(result, source, dc_sign) if result.error is None else None
     if not completed:
         empty = SweepSummary(
             "inconclusive",
@@ -91,9 +97,11 @@ def summarise(result: SweepRun, source: Any = None, dc_sign: int | None = None) 
             {},
             None,
             "",
-            True,
-            units,
-            nominal,
+            result.interrupted,
+            complete=False,
+            error=error,
+            units=units,
+            nominal=nominal,
         )
         return _with_reasons(empty, result)
     codes = table["verdict_code"]
@@ -106,7 +114,7 @@ def summarise(result: SweepRun, source: Any = None, dc_sign: int | None = None) 
     }
     worst, reason = _worst(table, stable, unstable)
     verdict = "unstable" if unstable.any() else ("stable" if stable.all() else "inconclusive")
-    if result.interrupted and verdict == "stable":
+    if not result.complete and verdict == "stable":
         verdict = "inconclusive"
     summary = SweepSummary(
         verdict=verdict,
@@ -119,6 +127,8 @@ def summarise(result: SweepRun, source: Any = None, dc_sign: int | None = None) 
         worst_row=worst,
         worst_reason=reason,
         interrupted=result.interrupted,
+        complete=result.complete,
+        error=error,
         units=units,
         nominal=nominal,
     )
@@ -220,6 +230,12 @@ def _with_reasons(summary: SweepSummary, result: SweepRun) -> SweepSummary:
             f"Interrupted after {done} of {summary.variants} variants: the verdict covers the"
             " variants finished (their rows are valid)."
         )
+    elif not summary.complete:
+        reasons.append(
+            f"Stopped by an error after {done} of {summary.variants} variants"
+            f" ({summary.error}): the verdict covers the variants finished (their rows are"
+            " valid)."
+        )
     if done:
         unstable = round(summary.unstable_fraction * done)
         undecided = round(summary.inconclusive_fraction * done)
@@ -287,8 +303,19 @@ class SweepResult(Displayed):
 
     @property
     def interrupted(self) -> bool:
-        """True when the run was stopped before every chunk finished."""
+        """True when the run was stopped by Ctrl-C before every chunk finished."""
         return self.run.interrupted
+
+    @property
+    def complete(self) -> bool:
+        """True when every planned variant ran (else the table holds the finished ones)."""
+        return self.run.complete
+
+    @property
+    def error(self) -> BaseException | None:
+        """What stopped the run early, other than Ctrl-C (the command re-raises it after
+        writing and reporting the finished variants); None when nothing did."""
+        return self.run.error
 
     def plot(self, ax: Any = None) -> Figure:
         """A stability map over two swept parameters, else a histogram of min |1 − L|.
@@ -361,6 +388,8 @@ def summary_dict(
         "variants": summary.variants,
         "completed": summary.completed,
         "interrupted": summary.interrupted,
+        "complete": summary.complete,
+        "error": summary.error,
         "stable_fraction": summary.stable_fraction,
         "unstable_fraction": summary.unstable_fraction,
         "inconclusive_fraction": summary.inconclusive_fraction,
