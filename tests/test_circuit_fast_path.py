@@ -209,6 +209,8 @@ def test_row_exchanges_where_pivots_are_small_give_the_same_answer(
     [
         ("L1 1 0 1e308\nR1 1 0 50", "L1: inductance = 1e+308 H; it must be"),
         ("L1 2 0 1e-320\nR1 1 2 50", "L1: inductance = 9.99989e-321 H"),
+        # Just beyond the bound: the value is shown with the digits that break the rule.
+        ("L1 1 0 1000.0000000005\nR1 1 0 50", "inductance = 1000.0000000005 H; it must be 0 or"),
         ("T1 1 0 0 0 z0=50 delay=1e300", "T1: delay = 1e+300 s; it must be from 0 to 0.001 s"),
         ("L1 1 0 0 q=30\nR1 1 0 50", "q= needs a nonzero inductance"),
         ("T1 1 0 2 0 z0=50 delay=1n loss=1e300 at=1g\nR1 2 0 50", "loss = 1e+300 dB"),

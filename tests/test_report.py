@@ -222,3 +222,19 @@ def test_the_report_needs_no_matplotlib(tmp_path):
     done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True)
     assert done.returncode == 0, done.stderr
     assert done.stdout.strip() == "False"
+
+
+def test_report_carries_the_second_opinion_the_text_has(tmp_path):
+    """``check --poles --report``: the fit's section is in the HTML as in the text report."""
+    from oneport.rendering.poles_text import second_opinion_lines
+
+    result = oneport.check(
+        EXAMPLES / "oscillates/device.s1p", EXAMPLES / "oscillates/load.s1p", poles=True
+    )
+    assert result.second_opinion is not None
+    text = write_report(result, tmp_path / "poles.html").read_text(encoding="utf-8")
+    headings = re.findall(r"<h2>(.*?)</h2>", text)
+    assert "Second opinion: pole-zero fit of 1 - L" in headings
+    assert headings.index("Second opinion: pole-zero fit of 1 - L") < headings.index("Premise")
+    for line in second_opinion_lines(result.second_opinion)[1:]:
+        assert html.escape(line.strip()) in text

@@ -526,10 +526,12 @@ def _check_rules(
         if broken.any():
             index = int(np.flatnonzero(broken)[0])
             shown = float(np.ravel(np.asarray(value, dtype=float))[index])
+            # Short, unless rounding would hide what broke the rule (1000.0000000005 H > 1000 H).
+            text = f"{shown:g}" if float(f"{shown:g}") == shown else repr(shown)
             unit = f" {rule.unit}" if rule.unit else ""
             where = describe(index) if broken.size > 1 else ""
             raise circuit.error(
-                f"{element.name}: {key} = {shown:g}{unit}{where}; it must be {rule.accepted()}",
+                f"{element.name}: {key} = {text}{unit}{where}; it must be {rule.accepted()}",
                 element.line,
             )
     combination = element.combination_problem(dict(resolved)) if together else None

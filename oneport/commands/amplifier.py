@@ -17,7 +17,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         NAME,
         help="reflection-amplifier screening: gain, bandwidth, the port match stability needs",
         description="Screen a negative-resistance device behind a circulator: gain"
-        " |gamma_device|^2, the bands above a threshold, the -3 dB bandwidth, the gain ripple"
+        " |Γd|², the bands above a threshold, the -3 dB bandwidth, the gain ripple"
         " for a stated port match, the return loss the port needs for guaranteed stability,"
         " and with the port's file the Nyquist verdict.",
         epilog="example: oneport amplifier diode.s1p --port-return-loss 20dB --gain-threshold"

@@ -32,7 +32,7 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
         NAME,
         help="small-signal stability of a device into a load (Nyquist test)",
         description="Small-signal stability of a device one-port into a load one-port: the"
-        " Nyquist count of the loop gain L = gamma_device * gamma_load around +1, in the"
+        " Nyquist count of the loop gain L = Γd·ΓL around +1, in the"
         " device's measurement impedance.",
         epilog=_EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter,
@@ -108,7 +108,7 @@ def add_check_inputs(command: argparse.ArgumentParser) -> None:
         "--gamma-uncertainty",
         rule=options.gamma_uncertainty,
         metavar="X[,Y]",
-        help="worst-case absolute error of |gamma|: one value for both sides, or device,load",
+        help="worst-case absolute error of |Γ|: one value for both sides, or device,load",
     )
     device = command.add_argument_group("device as measured")
     terminations = device.add_mutually_exclusive_group()

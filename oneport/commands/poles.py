@@ -16,8 +16,8 @@ def add_parser(commands: Any) -> argparse.ArgumentParser:
     """Register ``poles`` and its options."""
     command: argparse.ArgumentParser = commands.add_parser(
         NAME,
-        help="natural frequencies from a rational fit of 1 - gamma_device * gamma_load",
-        description="Fit a rational model to F = 1 - gamma_device * gamma_load over the"
+        help="natural frequencies from a rational fit of 1 − Γd·ΓL",
+        description="Fit a rational model to F = 1 − Γd·ΓL over the"
         " measured band and list the natural frequencies its zeros imply (frequency, growth"
         " rate, half plane), each with the trust rules it passed.",
         epilog="example: oneport poles diode.s1p --load bias_tee.s1p --character --json",

@@ -66,6 +66,7 @@ th, td { border: 1px solid #d5d9dc; padding: 0.2rem 0.55rem; text-align: left;
 th { background: #eef0f1; }
 td.number { text-align: right; font-variant-numeric: tabular-nums; }
 code { font-size: 0.85rem; word-break: break-all; }
+pre { font-size: 0.85rem; overflow-x: auto; }
 figure { margin: 1rem 0; }
 figure img { max-width: 100%; border: 1px solid #d5d9dc; background: #ffffff; }
 figcaption { font-size: 0.9rem; color: #4d5962; }
@@ -166,6 +167,8 @@ def render_report(
     ]
     if result.modes is not None or result.verdict == "unstable":
         sections.append(_section("Modes the count establishes", _modes_table(result)))
+    if result.second_opinion is not None:
+        sections.append(_section("Second opinion: pole-zero fit of 1 - L", _second_opinion(result)))
     sections += [
         _section("Warnings", _warnings_list(result)),
         _section("What to do next", _list(result.next_steps, empty="Nothing further.")),
@@ -298,6 +301,16 @@ def _modes_table(result: CheckResult) -> str:
     headings, rows = mode_rows(result)
     notes = "".join(f"<p>{_escape(note)}</p>" for note in mode_notes(result))
     return (_table(headings, rows, numeric_columns=(1,)) if rows else "") + notes
+
+
+def _second_opinion(result: CheckResult) -> str:
+    """The fit's verdict, natural frequencies and fit quality, laid out as the text report has
+    them (``check --poles``); a disagreement with the count is among the warnings."""
+    from .poles_text import second_opinion_lines
+
+    assert result.second_opinion is not None
+    lines = second_opinion_lines(result.second_opinion)[1:]
+    return f"<pre>{_escape(chr(10).join(line.removeprefix('  ') for line in lines))}</pre>"
 
 
 def _warnings_list(result: CheckResult) -> str:
