@@ -261,3 +261,31 @@ def test_a_near_short_beside_an_inductor_cut_set_adds_no_natural_frequency():
     expected = roots(characteristic_polynomial(device, load))
     assert joined.size == expected.size == 2
     np.testing.assert_allclose(np.sort_complex(joined), np.sort_complex(expected), rtol=1e-6)
+
+
+def test_only_right_half_plane_roots_pay_for_the_isolation_test(monkeypatch):
+    """The isolation test (three SVDs of the pencil per root) runs only where a root would
+    change a count: on a 40-section RLC ladder (passive: every natural frequency in the left
+    half plane, common practice) it runs on none of the ~80 roots, and the near-short case
+    above still loses its rounding-made root."""
+    from oneport.circuit import Circuit, natural
+
+    tested: list[complex] = []
+    original = natural._isolated
+
+    def recording(constant, slope, root, scale):
+        tested.append(root)
+        return original(constant, slope, root, scale)
+
+    monkeypatch.setattr(natural, "_isolated", recording)
+    ladder = Circuit("ladder").resistor("RS", "0", "n0", 50.0)
+    for k in range(40):
+        ladder = ladder.inductor(f"L{k}", f"n{k}", f"n{k + 1}", 1e-9)
+        ladder = ladder.capacitor(f"C{k}", f"n{k + 1}", "0", 1e-12).resistor(
+            f"R{k}", f"n{k + 1}", "0", 1e3
+        )
+    roots = natural.natural_frequencies(ladder.port("n40"), 50.0)
+    assert roots.size >= 40 and np.all(roots.real < 0)
+    assert tested == [], "no left-half-plane root is tested"
+    test_a_near_short_beside_an_inductor_cut_set_adds_no_natural_frequency()
+    assert tested and all(root.real > 0 for root in tested)
