@@ -278,6 +278,7 @@ def test_only_right_half_plane_roots_pay_for_the_isolation_test(monkeypatch):
         return original(constant, slope, root, scale)
 
     monkeypatch.setattr(natural, "_isolated", recording)
+    monkeypatch.setattr(natural, "_SOLVED", type(natural._SOLVED)())  # solve afresh
     ladder = Circuit("ladder").resistor("RS", "0", "n0", 50.0)
     for k in range(40):
         ladder = ladder.inductor(f"L{k}", f"n{k}", f"n{k + 1}", 1e-9)
@@ -289,3 +290,30 @@ def test_only_right_half_plane_roots_pay_for_the_isolation_test(monkeypatch):
     assert tested == [], "no left-half-plane root is tested"
     test_a_near_short_beside_an_inductor_cut_set_adds_no_natural_frequency()
     assert tested and all(root.real > 0 for root in tested)
+
+
+def test_a_pencil_asked_twice_is_solved_once(monkeypatch):
+    """The check asks for the same pencils for its grid and for its facts: the second answer
+    comes from the first, equal and a copy of it (changing it changes nothing kept)."""
+    from oneport.circuit import Circuit, natural
+
+    monkeypatch.setattr(natural, "_SOLVED", type(natural._SOLVED)())
+    solved: list[int] = []
+    original = natural._finite_eigenvalues
+
+    def counting(constant, slope, source):
+        solved.append(constant.shape[0])
+        return original(constant, slope, source)
+
+    monkeypatch.setattr(natural, "_finite_eigenvalues", counting)
+    device = Circuit("d").resistor("R1", "1", "0", -60.0).port("1")
+    load = Circuit("l").resistor("R1", "1", "2", 50.0).inductor("L1", "2", "3", 10e-9)
+    load = load.capacitor("C1", "3", "0", 2.533e-12).port("1")
+    first = joined_natural_frequencies(device, load)
+    first[:] = 0
+    second = joined_natural_frequencies(device, load)
+    assert len(solved) == 1
+    np.testing.assert_allclose(np.abs(second.real), 5.0e8, rtol=1e-3)  # METHODS §7's example
+    other = Circuit("l").resistor("R1", "1", "2", 40.0).inductor("L1", "2", "3", 10e-9)
+    joined_natural_frequencies(device, other.capacitor("C1", "3", "0", 2.533e-12).port("1"))
+    assert len(solved) == 2, "another circuit is solved anew"

@@ -13,12 +13,16 @@ one pass and solved one small eigenproblem per distinct set; a side whose every 
 resistor, inductor or capacitor of non-negative value is passive, and terminated in a positive
 resistance has no right-half-plane natural frequency, so it needs none. The joined circuit of a
 device one-port and a load one-port (port to port) gives the loop's natural frequencies
-directly: :func:`joined_natural_frequencies`.
+directly: :func:`joined_natural_frequencies`. A check asks for the same pencils twice (its grid
+and its facts); the last few answers are kept by the pencil's bytes, so each is solved once.
 """
 
 from __future__ import annotations
 
+import hashlib
 import math
+import threading
+from collections import OrderedDict
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -107,8 +111,33 @@ def pencils(
     return constant, slope
 
 
+#: Pencils solved lately (digest of their bytes → roots), most recent last.
+_SOLVED: OrderedDict[bytes, np.ndarray] = OrderedDict()
+_SOLVED_KEPT = 16
+_SOLVED_LOCK = threading.Lock()
+
+
 def finite_eigenvalues(constant: np.ndarray, slope: np.ndarray, source: str) -> np.ndarray:
     """The finite s with det(A0 + s·A1) = 0 (QZ on a row- and frequency-scaled pencil)."""
+    digest = hashlib.blake2b(digest_size=20)
+    for matrix in (constant, slope):
+        matrix = np.ascontiguousarray(matrix, dtype=complex)
+        digest.update(repr(matrix.shape).encode())
+        digest.update(matrix.tobytes())
+    key = digest.digest()
+    with _SOLVED_LOCK:  # a sweep's threads share it
+        if key in _SOLVED:
+            _SOLVED.move_to_end(key)
+            return _SOLVED[key].copy()
+    roots = _finite_eigenvalues(constant, slope, source)
+    with _SOLVED_LOCK:
+        _SOLVED[key] = roots.copy()
+        while len(_SOLVED) > _SOLVED_KEPT:
+            _SOLVED.popitem(last=False)
+    return roots
+
+
+def _finite_eigenvalues(constant: np.ndarray, slope: np.ndarray, source: str) -> np.ndarray:
     import scipy.linalg
 
     scale = _frequency_scale(constant, slope)
