@@ -331,6 +331,11 @@ def test_shipped_oscillating_example_gets_the_bias_window(shipped):
     found = next(s for s in result.suggestions if s.topology == "series-resistor")
     assert _within(found.stable_range["resistance_ohm"].low, 8.5)
     assert _within(found.stable_range["resistance_ohm"].high, 66.0)
+    # Outside the window the pair oscillates (below) or latches up (above), by the same
+    # closed form; the values right at each edge are inconclusive (the loop passes through
+    # +1 there), and the range says what lies beyond them.
+    window = found.stable_range["resistance_ohm"]
+    assert (window.beyond_low, window.beyond_high) == ("unstable", "unstable")
     for suggestion in result.suggestions:
         assert suggestion.verdict_after == "stable" and suggestion.reaches_margin
 

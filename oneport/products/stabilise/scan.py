@@ -77,7 +77,8 @@ class Range:
     """A run of candidates reaching the goal along one element, refined at both ends.
 
     ``low``/``high`` are None for an open end (the candidate standing in for the limit reaches
-    the goal too); ``beyond_low``/``beyond_high`` are the judgement's verdicts just outside.
+    the goal too); ``beyond_low``/``beyond_high`` are the judgement's verdicts at the next value
+    scanned outside.
     """
 
     low: float | None
@@ -287,21 +288,21 @@ class Scanner:
         # Brackets (inside, outside) of every finite edge, refined together.
         inside: list[float] = []
         outside: list[int] = []
+        outward: list[int] = []
         for first, final in runs:
             if first > 0:
                 inside.append(grid[first])
                 outside.append(first - 1)
+                outward.append(-1)
             if final < last:
                 inside.append(grid[final])
                 outside.append(final + 1)
-        refined, beyond = self._bisect(
-            placement,
-            key,
-            np.array(inside),
-            grid[outside],
-            evaluation.verdict_code[outside],
-            fixed,
-        )
+                outward.append(+1)
+        refined = self._bisect(placement, key, np.array(inside), grid[outside], fixed)
+        beyond = [
+            _beyond(evaluation.verdict_code, index, step)
+            for index, step in zip(outside, outward, strict=True)
+        ]
         words = VERDICT_WORDS
         ranges = []
         index = 0
@@ -323,13 +324,12 @@ class Scanner:
         key: str,
         inside: np.ndarray,
         outside: np.ndarray,
-        codes: np.ndarray,
         fixed: dict[str, float],
-    ) -> tuple[np.ndarray, np.ndarray]:
-        """Edges to within :data:`EDGE_PRECISION`: the last value inside (reaching the goal) and
-        the verdict code just outside (``codes``: those of the ``outside`` ends), per bracket."""
+    ) -> np.ndarray:
+        """Edges to within :data:`EDGE_PRECISION`: the last value inside (reaching the goal),
+        per bracket."""
         if inside.size == 0:
-            return inside, np.zeros(0, dtype=int)
+            return inside
         widest = float(np.max(np.abs(np.log(outside / inside))))
         steps = max(0, math.ceil(math.log2(widest / math.log1p(EDGE_PRECISION))))
         for _ in range(steps):
@@ -338,8 +338,20 @@ class Scanner:
             met = evaluation.goal_met
             inside = np.where(met, middle, inside)
             outside = np.where(met, outside, middle)
-            codes = np.where(met, codes, evaluation.verdict_code)
-        return inside, codes
+        return inside
+
+
+def _beyond(codes: np.ndarray, index: int, step: int) -> int:
+    """The verdict beyond a range's edge: the first decisive one among the values scanned
+    from ``index`` (the value next to the edge) outward by ``step``. At a stability edge the
+    loop passes through +1, so the values nearest it are inconclusive whatever lies beyond;
+    inconclusive only when every value out to the scan's end is."""
+    undecided = VERDICT_WORDS.index("inconclusive")
+    while 0 <= index < codes.size:
+        if codes[index] != undecided:
+            return int(codes[index])
+        index += step
+    return undecided
 
 
 def preferred_values(low: float, high: float, series: tuple[float, ...]) -> np.ndarray:
