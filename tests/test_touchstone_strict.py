@@ -429,3 +429,33 @@ def test_plain_files_need_neither_scikit_rf_nor_the_circuit_package():
     )
     assert done.stderr == ""
     assert done.stdout.split() == ["0", "False", "False"]
+
+
+@pytest.mark.parametrize(
+    ("text", "line", "wanted"),
+    [
+        ("# GHz S RI R 50\n1 0.5 0.1\n2 1e308 0.2\n", 3, "magnitude 1e+308 is not a measurement"),
+        ("# GHz S MA R 50\n1 0.5 10\n2 3e20 20\n", 3, "magnitude 3e+20 is not a measurement"),
+        ("# GHz S DB R 50\n1 -6 0\n2 401 0\n", 3, "beyond 400 dB"),
+    ],
+)
+def test_values_no_measurement_gives_are_refused(tmp_path, text: str, line: int, wanted: str):
+    # One bound for every format: magnitudes up to 1e20 (a DB level of 400 dB). Beyond it the
+    # arithmetic of a check (products of a few reflections) would overflow double precision
+    # (IEEE 754 binary64 reaches about 1.8e308) and no VNA reads such a value (common practice).
+    path = write(tmp_path, "loud.s1p", text)
+    with pytest.raises(FileFormatError, match=wanted.replace("+", r"\+")) as caught:
+        read_one_port(path)
+    assert f":{line}:" in str(caught.value)
+    port = read_one_port(write(tmp_path, "ok.s1p", "# GHz S RI R 50\n1 1e19 0\n2 0.5 0\n"))
+    assert abs(port.gamma[0]) == 1e19, "just inside the bound is read as written"
+
+
+def test_a_network_in_memory_meets_the_same_bound():
+    # The API's scikit-rf door: S beyond 1e20 in magnitude is refused as a file's value is.
+    from oneport.reading.touchstone import one_port_from_network
+
+    frequency = skrf.Frequency(1, 2, 2, unit="GHz")
+    loud = skrf.Network(frequency=frequency, s=np.array([0.5, 2e20], dtype=complex), z0=50)
+    with pytest.raises(FileFormatError, match=r"exceed 1e\+20 in magnitude"):
+        one_port_from_network(loud, "in memory")

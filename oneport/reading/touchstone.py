@@ -44,7 +44,9 @@ from .touchstone_header import (
 )
 
 _PARAMETERS = ("s", "y", "z")
-#: Levels beyond this in a DB file are not measurements (10^(400/20) = 1e20).
+#: Values beyond this in magnitude (RI, MA, or the S they give) are not measurements: a DB
+#: level of 400 dB. Below it, products of a few such numbers stay finite in double precision.
+_LARGEST_MAGNITUDE = 1e20
 _LARGEST_DECIBELS = 400.0
 _WHAT = "a Touchstone file (.s1p, .s2p, ... or .ts)"
 #: Code of the warning for a file without an option line.
@@ -471,8 +473,20 @@ def _check_frequencies(
 
 
 def _check_levels(name: str, header: Header, lines: np.ndarray, table: np.ndarray) -> None:
-    """MA magnitudes are >= 0; DB levels are measurements (Touchstone specification, formats)."""
+    """MA magnitudes are >= 0; DB levels, MA magnitudes and RI pairs are measurements
+    (Touchstone specification, formats; the bound is :data:`_LARGEST_MAGNITUDE`)."""
     first = table[:, 1::2]
+    if header.number_format in ("ri", "ma"):
+        size = np.hypot(first, table[:, 2::2]) if header.number_format == "ri" else np.abs(first)
+        loud = np.flatnonzero(size.max(axis=1) > _LARGEST_MAGNITUDE)
+        if loud.size:
+            raise FileFormatError(
+                name,
+                f"a value of magnitude {float(size[loud[0]].max()):g} is not a measurement;"
+                f" magnitudes up to {_LARGEST_MAGNITUDE:g} ({_LARGEST_DECIBELS:g} dB) are"
+                " accepted",
+                int(lines[loud[0]]),
+            )
     if header.number_format == "ma":
         negative = np.flatnonzero((first < 0).any(axis=1))
         if negative.size:
@@ -699,6 +713,15 @@ def _check_arrays(description: str, frequency_hz: np.ndarray, values: np.ndarray
             description,
             f"S-parameters at {frequency_hz[index]:.6g} Hz are not finite (an impedance of exactly"
             " the reference value in a Y file, or infinite Z, cannot be converted to S)",
+        )
+    loud = (np.abs(values) > _LARGEST_MAGNITUDE).reshape(-1, frequency_hz.size).any(axis=0)
+    if loud.any():
+        index = int(np.flatnonzero(loud)[0])
+        raise FileFormatError(
+            description,
+            f"S-parameters at {frequency_hz[index]:.6g} Hz exceed {_LARGEST_MAGNITUDE:g} in"
+            f" magnitude ({_LARGEST_DECIBELS:g} dB), which no measurement gives (an impedance"
+            " within a hair of minus the reference)",
         )
     if frequency_hz[0] < 0 or np.any(np.diff(frequency_hz) <= 0):
         raise FileFormatError(description, "frequencies must be >= 0 and increase strictly")
