@@ -11,7 +11,7 @@ written but the named outputs and no input changed, an answer within the time li
 worker that does not answer at all is a hang too). The tally is printed at the end; failing
 cases are saved (files and command line) for replay.
 
-Run (about 20 minutes on the 2-core benchmark machine):
+Run (about 5 minutes for 8,400 cases on the 2-core benchmark machine):
 
     .venv/bin/python benchmarks/robustness_campaign.py --cases 8400 --seed 13 --save /tmp/fails
     .venv/bin/python benchmarks/robustness_campaign.py --replay /tmp/fails/touchstone-0042

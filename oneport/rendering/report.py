@@ -66,7 +66,7 @@ th, td { border: 1px solid #d5d9dc; padding: 0.2rem 0.55rem; text-align: left;
 th { background: #eef0f1; }
 td.number { text-align: right; font-variant-numeric: tabular-nums; }
 code { font-size: 0.85rem; word-break: break-all; }
-pre { font-size: 0.85rem; overflow-x: auto; }
+pre { font-size: 0.85rem; white-space: pre-wrap; }
 figure { margin: 1rem 0; }
 figure img { max-width: 100%; border: 1px solid #d5d9dc; background: #ffffff; }
 figcaption { font-size: 0.9rem; color: #4d5962; }
