@@ -166,6 +166,13 @@ def test_rules_return_si_values(rule, text, value):
         (options.touchstone_output, "x.s3p"),
         (options.input_path, " "),
         (options.folder, ""),
+        # No file name holds a NUL byte (POSIX, "Filename"): refused as typed, for every
+        # kind of path, before the system is asked (it raises ValueError on such a name).
+        (options.input_path, "12\0"),
+        (options.folder, "be\0nch"),
+        (options.plot, "a\0.png"),
+        (options.report, "\0.html"),
+        (options.table, "t\0.csv"),
     ],
 )
 def test_rules_refuse_with_one_line_naming_the_option(rule, text):
@@ -351,3 +358,12 @@ def test_export_at_the_grid_limit_writes_only_finite_numbers(tmp_path):
         return
     numbers = [line.split() for line in target.read_text().splitlines() if line[0].isdigit()]
     assert np.isfinite(np.asarray(numbers, dtype=float)).all()
+
+
+def test_a_nul_byte_in_any_path_is_one_line(tmp_path):
+    # A campaign case: watch with a second --load holding a NUL byte ended in a traceback.
+    folder = tmp_path / "bench"
+    folder.mkdir()
+    err = refused("watch", str(folder), "--load", LOAD, "--load", "12\0", naming="--load 12\\x00")
+    assert "NUL byte" in err
+    refused("check", "dev\0.s1p", "--load", LOAD, naming="DEVICE dev\\x00.s1p")

@@ -177,26 +177,31 @@ def voltage(text: str, option: str) -> str:
 # -- rules of the command line's own: file names -------------------------------------------------
 
 
-def input_path(text: str, option: str) -> str:
-    """A file to read: any non-empty path (reading refuses what is not a regular file)."""
+def _named(text: str, option: str, what: str, wanted: str) -> str:
+    """Any path the system can name: not empty, no NUL byte (no file name holds one)."""
     if not text.strip():
-        raise InputError(f"{option}: an empty file name; give the file's path")
+        raise InputError(f"{option}: an empty {what} name; give {wanted}")
+    if "\0" in text:
+        raise InputError(
+            f"{option} {printable(text)}: a {what} name cannot hold a NUL byte; give {wanted}"
+        )
     return text
+
+
+def input_path(text: str, option: str) -> str:
+    """A file to read: any path the system can name (reading refuses what is not a regular
+    file)."""
+    return _named(text, option, "file", "the file's path")
 
 
 def folder(text: str, option: str) -> str:
-    """A folder: any non-empty path."""
-    if not text.strip():
-        raise InputError(f"{option}: an empty folder name; give the folder's path")
-    return text
+    """A folder: any path the system can name."""
+    return _named(text, option, "folder", "the folder's path")
 
 
 def _output(suffixes: Sequence[str], what: str) -> Rule:
     def rule(text: str, option: str) -> str:
-        if not text.strip():
-            raise InputError(
-                f"{option}: an empty file name; give a path ending in {_listed(suffixes)}"
-            )
+        _named(text, option, "file", f"a path ending in {_listed(suffixes)}")
         suffix = Path(text).suffix.lower()
         if suffix not in suffixes:
             raise InputError(
