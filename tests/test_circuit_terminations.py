@@ -122,6 +122,45 @@ def test_degenerate_circle_is_sampled() -> None:
     assert fraction == pytest.approx(brute, abs=5e-3)
 
 
+@pytest.mark.parametrize("s11", [0.0, 0.6j, 3.0, -2.0 + 1.0j])
+def test_an_uncoupled_port_sees_its_own_reflection_whatever_terminates_the_other(s11):
+    # S21 = S12 = 0: Γ_o = S_oo for every termination (the formula above, common practice),
+    # so the resistance is negative for all passive terminations or for none. A campaign case
+    # (50 ohm to ground at port 1, 50 ohm ∥ 1 nH at port 2) was reported as 100 % negative
+    # with "most negative resistance: 50 ohm", then failed on the termination's equivalent.
+    s = np.array([[s11, 0.0], [0.0, 0.3 - 0.4j]], dtype=complex)[:, :, None]
+    center, radius, inside = stability_circle(s, 1)
+    fraction = negative_fraction(s, 1, center, radius, inside)[0]
+    assert fraction == (1.0 if abs(s11) > 1 else 0.0)
+    data = Multiport(
+        frequency_hz=np.array([1e9, 2e9]),
+        s=np.repeat(s, 2, axis=2),
+        reference_impedance_ohm=np.array([50.0, 50.0]),
+        source="uncoupled",
+    )
+    result = analyse_terminations(data, 1.5e9, terminated_port=2)
+    assert not result.best.unbounded
+    assert result.best.observed_impedance_ohm == pytest.approx(50 * (1 + s11) / (1 - s11))
+    json.dumps(result.to_dict(), allow_nan=False)
+
+
+def test_negative_side_agrees_with_brute_force_on_random_two_ports() -> None:
+    # Random S, some with |S_oo| > 1 and some nearly uncoupled: the share of the unit disk
+    # where |Γ_o| > 1, by the circle, equals a brute-force count on an equal-area grid.
+    generator = np.random.default_rng(13)
+    size = 300
+    s = generator.normal(0, 0.8, (2, 2, size)) + 1j * generator.normal(0, 0.8, (2, 2, size))
+    s[0, 1] *= np.where(np.arange(size) % 5 == 0, 1e-9, 1.0)
+    grid = _passive_grid(120)
+    for terminated in (0, 1):
+        center, radius, inside = stability_circle(s, terminated)
+        fraction = negative_fraction(s, terminated, center, radius, inside)
+        brute = np.array(
+            [np.mean(np.abs(observed_gamma(s[:, :, k], grid, terminated)) > 1) for k in range(size)]
+        )
+        assert np.max(np.abs(fraction - brute)) < 0.01
+
+
 def test_chart_draws_the_result() -> None:
     figure = termination_figure(analyse_terminations(read_touchstone(TRANSISTOR), 8e9))
     gids = {artist.get_gid() for artist in figure.axes[0].get_children()}
@@ -192,3 +231,19 @@ def test_netlist_needs_a_grid_and_two_ports(tmp_path: Path) -> None:
         "terminations", str(netlist), "--at", "1GHz", "--start", "1GHz", "--stop", "2GHz"
     )
     assert code == 2 and "has 1 ports; the analysis needs a two-port" in err
+
+
+def test_an_uncoupled_netlist_reads_no_negative_resistance(tmp_path: Path) -> None:
+    # The campaign's netlist: port 1 is 50 ohm to ground, port 2 is 50 ohm ∥ 1 nH; nothing
+    # couples them, so port 1 is 50 ohm whatever terminates port 2 (common practice).
+    netlist = tmp_path / "apart.cir"
+    netlist.write_text("R2 0 2 50\nR1 1 0 50\nL2 2 0 1n\n.twoport 1 2\n")
+    grid = ("--start", "1GHz", "--stop", "3GHz", "--points", "21")
+    code, out, err = _run("terminations", str(netlist), "--at", "2GHz", *grid)
+    assert (code, err) == (0, "")
+    assert out.startswith("NO NEGATIVE RESISTANCE at 2 GHz")
+    assert "does not couple to port 1 here" in out
+    assert "lowest resistance (positive): 50 ohm at port 1" in out
+    code, out, _ = _run("terminations", str(netlist), "--at", "2GHz", *grid, "--json")
+    best = json.loads(out)["at"]["best_termination"]
+    assert best["equivalent"] == {"kind": "resistor", "resistance_ohm": 50.0}

@@ -84,13 +84,16 @@ class BestTermination:
 
     def equivalent(self, frequency_hz: float) -> dict[str, Any]:
         """The termination as lumped elements at ``frequency_hz``: a reactance (inductor or
-        capacitor) with its series resistance (0 for a lossless termination), or open/short."""
+        capacitor) with its series resistance (0 for a lossless termination), a plain resistor
+        (no reactance), or open/short."""
         impedance = self.impedance_ohm
         if not math.isfinite(impedance.imag) or abs(1 - self.gamma) < 1e-12:
             return {"kind": "open"}
         if abs(1 + self.gamma) < 1e-12:
             return {"kind": "short"}
         resistance = impedance.real if abs(impedance.real) > 1e-9 * abs(impedance) else 0.0
+        if abs(impedance.imag) <= 1e-9 * abs(impedance):
+            return {"kind": "resistor", "resistance_ohm": resistance}
         omega = 2 * math.pi * frequency_hz
         if impedance.imag > 0:
             element = {"kind": "inductor", "inductance_h": impedance.imag / omega}
@@ -228,7 +231,14 @@ def stability_circle(s: np.ndarray, terminated: int) -> tuple[np.ndarray, np.nda
         center = np.conj(s[t, t] - delta * np.conj(s[o, o])) / denominator
         radius = np.abs(s[o, t] * s[t, o]) / np.abs(denominator)
         pole = 1 / s[t, t]
-        negative_inside = np.abs(pole - center) < radius
+        # The side holding Γ_T = 0, where Γ_o = S_oo, is negative iff |S_oo| > 1; the pole's
+        # side decides only when 0 lies on the circle. (Without coupling the pole cancels and
+        # the circle shrinks to a point: Γ_o = S_oo for every termination.)
+        zero_inside = np.abs(center) < radius
+        on_circle = np.abs(np.abs(s[o, o]) - 1.0) <= 1e-9
+        negative_inside = np.where(
+            on_circle, np.abs(pole - center) < radius, zero_inside == (np.abs(s[o, o]) > 1.0)
+        )
     degenerate = np.abs(denominator) < _DEGENERATE
     radius = np.where(degenerate, np.inf, radius)
     return center, radius, negative_inside & ~degenerate
@@ -282,6 +292,9 @@ def best_termination(s: np.ndarray, terminated: int, reference_ohm: float) -> Be
     b = -reference_ohm * (s[t, t] + delta)
     c = 1 - s[o, o]
     d = -(s[t, t] - delta)
+    if abs(b * c - a * d) <= 1e-12 * (abs(a * d) + abs(b * c)) and abs(c) > 0:
+        # No coupling (S_ot·S_to = 0): Z_o = a/c whatever terminates port t.
+        return BestTermination(0j, _impedance(0j, reference_ohm), complex(a / c), False)
     if abs(d) > 0 and abs(c / d) <= 1.0:
         pole = complex(-c / d)
         return BestTermination(pole, _impedance(pole, reference_ohm), None, True)

@@ -64,7 +64,15 @@ def render(result: Any) -> str:
         f"At {format_frequency(result.frequency_hz)} (terminations ΓT referred to Z0 ="
         f" {format_resistance(result.reference_impedance_ohm)})"
     )
-    if circle.radius < float("inf"):
+    if circle.radius == 0:
+        lines.append(
+            wrap(
+                f"stability circle: none; port {result.terminated_port} does not couple to port"
+                f" {result.observed_port} here, so its termination changes nothing",
+                "  ",
+            )
+        )
+    elif circle.radius < float("inf"):
         side = "inside" if circle.negative_inside else "outside"
         lines.append(
             wrap(
@@ -96,6 +104,9 @@ def _best_line(result: Any, best: Any) -> str:
     if equivalent["kind"] in ("open", "short"):
         element = "an open" if equivalent["kind"] == "open" else "a short"
         where = f"{termination} ({element})"
+    elif equivalent["kind"] == "resistor":
+        resistance = format_resistance(equivalent["resistance_ohm"])
+        where = f"{termination}, ZT = {resistance} (a resistor)"
     else:
         if equivalent["kind"] == "inductor":
             reactive = f"a {format_component(equivalent['inductance_h'], 'H')} inductor"
@@ -109,7 +120,6 @@ def _best_line(result: Any, best: Any) -> str:
         where = f"{termination}, ZT = {format_impedance(impedance)} ({element})"
     if best.unbounded:
         return f"unbounded: {where} makes port {result.observed_port}'s impedance infinite"
-    return (
-        f"most negative resistance: {format_resistance(best.observed_resistance_ohm)} at port"
-        f" {result.observed_port}, with {where}"
-    )
+    lowest = best.observed_resistance_ohm
+    words = "most negative resistance" if lowest < 0 else "lowest resistance (positive)"
+    return f"{words}: {format_resistance(lowest)} at port {result.observed_port}, with {where}"
