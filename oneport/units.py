@@ -228,6 +228,8 @@ def format_plain(value: float, digits: int = 3) -> str:
     ('330', '2.14', '-1.2e10', '0.0123')
     >>> format_plain(269.4, 2), format_plain(18594.0)
     ('270', '18600')
+    >>> format_plain(9.9996e7), format_plain(5e-324)
+    ('1e8', '4.94e-324')
     """
     if not math.isfinite(value):
         return "unbounded" if value > 0 else "-unbounded" if value < 0 else "undefined"
@@ -240,11 +242,11 @@ def format_plain(value: float, digits: int = 3) -> str:
             return f"{round(value, decimals):.0f}"
         text = f"{value:.{decimals}f}"
         return text.rstrip("0").rstrip(".") if "." in text else text
-    mantissa = value / 10.0**exponent
-    if round(abs(mantissa), digits - 1) >= 10:
-        mantissa, exponent = mantissa / 10, exponent + 1
-    text = f"{mantissa:.{digits - 1}f}".rstrip("0").rstrip(".")
-    return f"{text}e{exponent}"
+    # Python's own rounding to significant digits (10.0**exponent underflows for subnormals)
+    mantissa, _, power = f"{value:.{digits - 1}e}".partition("e")
+    if "." in mantissa:
+        mantissa = mantissa.rstrip("0").rstrip(".")
+    return f"{mantissa}e{int(power)}"
 
 
 def format_rate(per_second: float) -> str:
