@@ -41,7 +41,7 @@ def verdict_line(result: StabiliseResult) -> str:
     reaching = [s for s in result.suggestions if s.reaches_margin]
     if result.verdict == "stabilised":
         tried = len(result.suggestions) + len(result.unsolved)
-        verb = "network reaches" if len(reaching) == 1 else "networks reach"
+        verb = "networks reaches" if len(reaching) == 1 else "networks reach"  # 1 of 4 …
         return (
             f"{head}: {len(reaching)} of {tried} {verb} {_margin(result)};"
             f" best: {_short(reaching[0])}"
