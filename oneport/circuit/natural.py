@@ -169,13 +169,15 @@ def _finite_eigenvalues(constant: np.ndarray, slope: np.ndarray, source: str) ->
 
 def _isolated(constant: np.ndarray, slope: np.ndarray, root: complex, scale: float) -> bool:
     """Whether the pencil is singular at ``root`` and clearly less so half its size away."""
-    at_root = _singularity(constant + root * slope)
+    needed = ISOLATED_ROOT_RISE * max(_singularity(constant + root * slope), np.finfo(float).tiny)
+    if needed > 1.0:  # the measure never exceeds 1: not singular enough at the root itself
+        return False
     step = 0.5 * max(abs(root), 1e-6 * scale)
-    away = max(
-        _singularity(constant + (root + step * direction) * slope)
+    # Either direction rising enough is enough (the second is tried only if the first fails).
+    return any(
+        _singularity(constant + (root + step * direction) * slope) >= needed
         for direction in (1.0, 0.6 + 0.8j)
     )
-    return bool(away >= ISOLATED_ROOT_RISE * max(at_root, np.finfo(float).tiny))
 
 
 def _singularity(matrix: np.ndarray) -> float:
