@@ -309,8 +309,9 @@ def _second_opinion(result: CheckResult) -> str:
     from .poles_text import second_opinion_lines
 
     assert result.second_opinion is not None
-    lines = second_opinion_lines(result.second_opinion)[1:]
-    return f"<pre>{_escape(chr(10).join(line.removeprefix('  ') for line in lines))}</pre>"
+    # The text's section without its heading (the page's <h2> says it) and its indent.
+    lines = [line.removeprefix("  ") for line in second_opinion_lines(result.second_opinion)[1:]]
+    return f"<pre>{_escape(chr(10).join(lines))}</pre>"
 
 
 def _warnings_list(result: CheckResult) -> str:
